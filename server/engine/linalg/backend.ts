@@ -1,0 +1,53 @@
+/**
+ * The one small interface through which the engine does dense linear algebra.
+ *
+ * Two implementations: `mlMatrixBackend` (portable, pure JavaScript, the reference in tests) and a
+ * native one bound to OpenBLAS/LAPACK (see DEVELOPERS.md). Every engine module that needs a
+ * decomposition or a dense product asks for a backend instead of calling a library directly.
+ *
+ * Storage convention: every DenseMatrix is column-major — element (i, j) is `data[i + j * rows]` —
+ * which is LAPACK's order, so the native path copies nothing.
+ */
+export interface DenseMatrix {
+  rows: number;
+  cols: number;
+  /** column-major, length rows * cols */
+  data: Float64Array;
+}
+
+export interface SymmetricEigenOptions {
+  /** compute eigenvectors (default true) */
+  vectors?: boolean;
+  /** keep only eigenpairs whose eigenvalue is strictly greater than this */
+  above?: number;
+}
+
+export interface SymmetricEigenResult {
+  /** eigenvalues in ascending order */
+  values: Float64Array;
+  /** rows × values.length, column k is the unit eigenvector of values[k]; null when vectors: false */
+  vectors: DenseMatrix | null;
+}
+
+export interface TriangularSolveOptions {
+  /** T is lower triangular (otherwise upper) */
+  lower: boolean;
+  /** the diagonal of T is taken as all ones and not read */
+  unitDiagonal?: boolean;
+  /** solve Tᵀ X = B instead of T X = B */
+  transpose?: boolean;
+}
+
+export type BackendName = 'native' | 'ml-matrix';
+
+export interface LinearAlgebraBackend {
+  readonly name: BackendName;
+  /** Eigendecomposition of a real symmetric matrix; only its lower triangle is read. */
+  symmetricEigen(a: DenseMatrix, options?: SymmetricEigenOptions): SymmetricEigenResult;
+  /** C = op(A) · op(B) with op the identity or the transpose. */
+  multiply(a: DenseMatrix, b: DenseMatrix, options?: { transposeA?: boolean; transposeB?: boolean }): DenseMatrix;
+  /** C = Aᵀ A, returned with both triangles filled. */
+  gram(a: DenseMatrix): DenseMatrix;
+  /** X with T X = B (or Tᵀ X = B) for a triangular T, by substitution; never forms T⁻¹. */
+  solveTriangular(t: DenseMatrix, b: DenseMatrix, options: TriangularSolveOptions): DenseMatrix;
+}
