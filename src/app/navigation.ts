@@ -1,0 +1,19 @@
+import type { Permission } from '@shared/roles';
+
+export interface NavigationItem {
+  to: string;
+  label: string;
+  /** Shown only to roles that have this permission in the current team. */
+  permission: Permission;
+  /** A one-line description, used as the link's title. */
+  description: string;
+}
+
+/**
+ * The main navigation, in order. Only pages that exist are listed; later issues add
+ * Runs, Studies, Causal sets and Cut rules here.
+ */
+export const navigation: NavigationItem[] = [
+  { to: '/team', label: 'Team', permission: 'read', description: 'Members, roles and invitations' },
+  { to: '/outbox', label: 'Outbox', permission: 'manageTeam', description: 'E-mail kept by a development server' },
+];
