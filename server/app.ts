@@ -1,0 +1,57 @@
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import type { AppDeps } from './api/context';
+import { apiNotFound, errorHandler } from './api/middleware/errors';
+import { authRoutes } from './api/routes/auth';
+import { healthRoutes } from './api/routes/health';
+import { invitationRoutes } from './api/routes/invitations';
+import { outboxRoutes } from './api/routes/outbox';
+import { teamRoutes } from './api/routes/team';
+import { createAuthService } from './api/services/auth-service';
+import { createHealthService } from './api/services/health-service';
+import { createInvitationService } from './api/services/invitation-service';
+import { createOutboxService } from './api/services/outbox-service';
+import { createTeamService } from './api/services/team-service';
+
+export type { AppDeps } from './api/context';
+
+/** Builds the Express app; server/main.ts runs it, tests drive it through supertest. */
+export function createApp(deps: AppDeps): Express {
+  const { config, dataSource, mailer, redis, computeQueue } = deps;
+  const invitations = createInvitationService({ config, dataSource, mailer });
+  const auth = createAuthService({ config, dataSource, mailer, invitations });
+  const teams = createTeamService({ dataSource });
+  const outbox = createOutboxService({ dataSource });
+  const health = createHealthService({ dataSource, redis, computeQueue, version: config.version });
+
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+
+  const api = express.Router();
+  api.use(express.json({ limit: '1mb' }));
+  api.use(cookieParser());
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+  api.use(healthRoutes({ health }));
+  api.use(authRoutes({ config, auth }));
+  api.use(teamRoutes({ auth, teams, invitations }));
+  api.use(invitationRoutes({ auth, invitations }));
+  if (config.mode === 'development') api.use(outboxRoutes({ auth, teams, outbox }));
+  api.use(apiNotFound);
+  api.use(errorHandler);
+  app.use('/api', api);
+
+  if (deps.clientDir && existsSync(join(deps.clientDir, 'index.html'))) {
+    const indexHtml = join(deps.clientDir, 'index.html');
+    app.use(express.static(deps.clientDir, { index: false, maxAge: '1h' }));
+    // Every other GET is a client-side route: answer with the app shell and let React Router decide.
+    app.get('/{*path}', (_req, res) => res.sendFile(indexHtml));
+  }
+  app.use(errorHandler);
+  return app;
+}

@@ -1,0 +1,7 @@
+import { Platform1764633600000 } from './1764633600000-platform';
+
+/**
+ * Every migration, oldest first. Add new ones at the end; never edit one that has shipped.
+ * The class name ends in the timestamp TypeORM orders by.
+ */
+export const migrations = [Platform1764633600000];
