@@ -1,0 +1,226 @@
+import type { DenseMatrix, LinearAlgebraBackend } from './linalg/backend';
+import { denseMatrix, getBackend } from './linalg';
+import type { PauliJordanSpectrum } from './pauliJordan';
+
+/**
+ * The (possibly truncated) SJ state in the basis of the kept eigenvectors of ΔᵀΔ. With B the N × r
+ * matrix of kept eigenvectors (orthonormal columns), s their σ = √(eigenvalue of ΔᵀΔ) and
+ * A = Bᵀ Δ B (r × r):
+ *   Re W_c = ½ B diag(s) Bᵀ = ½ P|Δ|P,   Im W_c = ½ B A Bᵀ = ½ P Δ P,   P = B Bᵀ,
+ * so W_c = B W̃ Bᵀ with the small Hermitian W̃ = ½(diag(s) + iA) (physics notes §4; Sorkin 2011;
+ * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used.
+ */
+export interface SjState {
+  size: number;
+  /** true when every mode is kept (no truncation): then Δ_c = Δ */
+  complete: boolean;
+  /** positive modes kept (pairs of eigenvectors of ΔᵀΔ) */
+  modesKept: number;
+  cutoff: number;
+  basis: DenseMatrix;
+  sigma: Float64Array;
+  /** A = Bᵀ Δ B */
+  deltaInBasis: DenseMatrix;
+  /** Δ of the whole causal set */
+  delta: DenseMatrix;
+}
+
+export interface SjDiagnostics {
+  /** ‖W − W†‖_F / ‖W‖_F */
+  hermiticityError: number;
+  /** smallest eigenvalue of W_c (≥ 0 up to rounding); see `smallestEigenvalueMethod` */
+  smallestEigenvalue: number;
+  /** 'exact': eigenvalues of W̃ from a symmetric solver; 'lower-bound': −½√‖s² − AᵀA‖_F, a rigorous bound */
+  smallestEigenvalueMethod: 'exact' | 'lower-bound';
+  /** ‖W − W̄ − iΔ_c‖_F with iΔ_c = iΔP (P commutes with Δ), relative to ‖Δ‖_F */
+  commutatorError: number;
+  /** ‖W W̄‖_F relative to ‖W‖_F² */
+  orthogonalityError: number;
+  /** tr W_c */
+  trace: number;
+  /** sum of the kept positive eigenvalues of iΔ above the kernel resolution, what tr W_c must equal */
+  positiveEigenvalueSum: number;
+  /** ‖BᵀB − I‖_F: how orthonormal the kept eigenvectors are */
+  basisOrthonormalityError: number;
+}
+
+/**
+ * σ/σ_max below which a mode of ΔᵀΔ is taken as an exact zero: rounding puts true zeros near
+ * √ε ≈ 1e-8 of σ_max, while genuine modes in the reference data stay above 5e-4 (physics notes §4–5).
+ */
+export const KERNEL_RESOLUTION = 1e-6;
+
+/** Columns [0, count) of the eigenvector matrix taken from the top (largest eigenvalue first). */
+function topColumns(vectors: DenseMatrix, count: number): DenseMatrix {
+  const n = vectors.rows;
+  const out = denseMatrix(n, count);
+  for (let c = 0; c < count; c++) {
+    const source = vectors.cols - 1 - c;
+    out.data.set(vectors.data.subarray(source * n, (source + 1) * n), c * n);
+  }
+  return out;
+}
+
+/**
+ * Builds the SJ state of Δ keeping the `modesKept` largest positive modes (all of them when `complete`).
+ * Keeping whole pairs of eigenvectors of ΔᵀΔ (the two copies of each σ²) makes P commute with Δ even
+ * inside a degenerate pair.
+ */
+export function sjState(
+  delta: DenseMatrix,
+  spectrum: PauliJordanSpectrum,
+  truncation: { modesKept: number; cutoff: number },
+  backend: LinearAlgebraBackend = getBackend(),
+): SjState {
+  if (!spectrum.gramVectors) throw new Error('the SJ state needs the eigenvectors of ΔᵀΔ');
+  const n = spectrum.size;
+  const complete = truncation.modesKept >= spectrum.positive.length;
+  const r = complete ? n : 2 * truncation.modesKept;
+  const basis = topColumns(spectrum.gramVectors, r);
+  const sigma = new Float64Array(r);
+  const top = Math.sqrt(Math.max(spectrum.gramValues[n - 1] ?? 0, 0));
+  for (let c = 0; c < r; c++) {
+    const value = Math.sqrt(Math.max(spectrum.gramValues[n - 1 - c], 0));
+    // through ΔᵀΔ a true zero comes out near √ε‖Δ‖: below the resolution the mode is the kernel, σ = 0
+    sigma[c] = value > KERNEL_RESOLUTION * top ? value : 0;
+  }
+  const deltaBasis = backend.multiply(delta, basis);
+  const deltaInBasis = backend.multiply(basis, deltaBasis, { transposeA: true });
+  return { size: n, complete, modesKept: Math.min(truncation.modesKept, spectrum.positive.length), cutoff: truncation.cutoff, basis, sigma, deltaInBasis, delta };
+}
+
+/** Real and imaginary parts of W_c restricted to the given elements (both |O| × |O|, column-major). */
+export function restrictedWightman(
+  state: SjState,
+  elements: ArrayLike<number>,
+  backend: LinearAlgebraBackend = getBackend(),
+): { real: DenseMatrix; imaginary: DenseMatrix } {
+  const m = elements.length;
+  const r = state.sigma.length;
+  const n = state.size;
+  const rows = denseMatrix(m, r);
+  const scaled = denseMatrix(m, r);
+  for (let c = 0; c < r; c++) {
+    for (let a = 0; a < m; a++) {
+      const v = state.basis.data[elements[a] + c * n];
+      rows.data[a + c * m] = v;
+      scaled.data[a + c * m] = 0.5 * state.sigma[c] * v;
+    }
+  }
+  const real = backend.multiply(scaled, rows, { transposeB: true });
+  let imaginary: DenseMatrix;
+  if (state.complete) {
+    imaginary = denseMatrix(m, m);
+    for (let b = 0; b < m; b++) for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + elements[b] * n];
+  } else {
+    const half = backend.multiply(rows, state.deltaInBasis);
+    imaginary = backend.multiply(half, rows, { transposeB: true });
+    for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
+  }
+  for (let b = 0; b < m; b++) for (let a = 0; a < b; a++) real.data[a + b * m] = real.data[b + a * m];
+  return { real, imaginary };
+}
+
+function frobenius(data: Float64Array): number {
+  let s = 0;
+  for (let k = 0; k < data.length; k++) s += data[k] * data[k];
+  return Math.sqrt(s);
+}
+
+/** Largest 2r for which the smallest eigenvalue of W̃ is computed exactly (a 2r × 2r symmetric solve). */
+export const EXACT_POSITIVITY_LIMIT = 800;
+
+/**
+ * Checks of physics notes §4 on a state: W Hermitian and positive semidefinite, W − W̄ = iΔ_c,
+ * W W̄ = 0, tr W = sum of the positive eigenvalues. All but the orthonormality check work in the kept
+ * basis (cost O(r³) + O(N r²)) since W_c = B W̃ Bᵀ. The smallest eigenvalue of the Hermitian W̃ = X + iY
+ * is that of the real symmetric [[X, −Y], [Y, X]] (each eigenvalue twice); beyond EXACT_POSITIVITY_LIMIT
+ * it is bounded from below instead: W̃ = ½(|A| + iA) + ½(s − |A|) with the first term positive
+ * semidefinite, and ‖s − |A|‖₂ ≤ √‖s² − AᵀA‖₂ for positive semidefinite square roots.
+ */
+export function sjDiagnostics(state: SjState, positive: Float64Array, backend: LinearAlgebraBackend = getBackend()): SjDiagnostics {
+  const r = state.sigma.length;
+  const n = state.size;
+  const a = state.deltaInBasis;
+  const s = state.sigma;
+
+  let antisymmetryDefect = 0;
+  for (let j = 0; j < r; j++) for (let i = 0; i < r; i++) antisymmetryDefect += (a.data[i + j * r] + a.data[j + i * r]) ** 2;
+  const normA = frobenius(a.data);
+  const normW = 0.5 * Math.sqrt(frobenius(s) ** 2 + normA ** 2);
+  const hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
+
+  // W − W̄ − iΔP = i(BA − ΔB)Bᵀ, whose norm is ‖BA − ΔB‖_F for orthonormal B
+  const deltaB = backend.multiply(state.delta, state.basis);
+  const bA = backend.multiply(state.basis, a);
+  let leak = 0;
+  for (let k = 0; k < deltaB.data.length; k++) leak += (bA.data[k] - deltaB.data[k]) ** 2;
+  const commutatorError = Math.sqrt(leak) / Math.max(frobenius(state.delta.data), Number.MIN_VALUE);
+
+  // 4 W̃ conj(W̃) = (s + iA)(s − iA) = s² + A² + i(As − sA)
+  const aa = backend.multiply(a, a);
+  let product = 0;
+  for (let j = 0; j < r; j++) {
+    for (let i = 0; i < r; i++) {
+      const re = aa.data[i + j * r] + (i === j ? s[i] * s[i] : 0);
+      const im = a.data[i + j * r] * (s[j] - s[i]);
+      product += re * re + im * im;
+    }
+  }
+  const orthogonalityError = normW > 0 ? (0.25 * Math.sqrt(product)) / normW ** 2 : 0;
+
+  let smallestEigenvalue: number;
+  let smallestEigenvalueMethod: SjDiagnostics['smallestEigenvalueMethod'];
+  if (2 * r <= EXACT_POSITIVITY_LIMIT) {
+    const m = 2 * r;
+    const embedding = denseMatrix(m, m);
+    for (let j = 0; j < r; j++) {
+      for (let i = 0; i < r; i++) {
+        const y = 0.25 * (a.data[i + j * r] - a.data[j + i * r]);
+        const x = i === j ? 0.5 * s[i] : 0;
+        embedding.data[i + j * m] = x;
+        embedding.data[i + r + (j + r) * m] = x;
+        embedding.data[i + r + j * m] = y;
+        embedding.data[i + (j + r) * m] = -y;
+      }
+    }
+    const values = backend.symmetricEigen(embedding, { vectors: false }).values;
+    smallestEigenvalue = r < n ? Math.min(values[0], 0) : values[0];
+    smallestEigenvalueMethod = 'exact';
+  } else {
+    // AᵀA = −A·A for antisymmetric A
+    let defect = 0;
+    for (let j = 0; j < r; j++) {
+      for (let i = 0; i < r; i++) {
+        const d = (i === j ? s[i] * s[i] : 0) + aa.data[i + j * r];
+        defect += d * d;
+      }
+    }
+    smallestEigenvalue = -0.5 * Math.sqrt(Math.sqrt(defect));
+    smallestEigenvalueMethod = 'lower-bound';
+  }
+
+  let trace = 0;
+  for (let c = 0; c < r; c++) {
+    let norm2 = 0;
+    for (let i = 0; i < n; i++) norm2 += state.basis.data[i + c * n] ** 2;
+    trace += 0.5 * s[c] * norm2;
+  }
+  let positiveEigenvalueSum = 0;
+  for (let k = 0; k < state.modesKept; k++) if (positive[k] > KERNEL_RESOLUTION * positive[0]) positiveEigenvalueSum += positive[k];
+
+  const gram = backend.multiply(state.basis, state.basis, { transposeA: true });
+  for (let c = 0; c < r; c++) gram.data[c + c * r] -= 1;
+  const basisOrthonormalityError = frobenius(gram.data);
+
+  return {
+    hermiticityError,
+    smallestEigenvalue,
+    smallestEigenvalueMethod,
+    commutatorError,
+    orthogonalityError,
+    trace,
+    positiveEigenvalueSum,
+    basisOrthonormalityError,
+  };
+}
