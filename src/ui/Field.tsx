@@ -1,7 +1,7 @@
 import { useId, type InputHTMLAttributes, type ReactNode, type SelectHTMLAttributes } from 'react';
 
 const inputClasses =
-  'w-full bg-transparent border-0 border-b border-rule px-0 py-1.5 text-ink placeholder:text-ink-faint ' +
+  'h-9 w-full bg-transparent border-0 border-b border-rule px-0 py-1.5 text-base text-ink placeholder:text-ink-faint ' +
   'focus:border-accent focus:outline-none focus:ring-0 aria-[invalid=true]:border-danger';
 
 interface FieldShellProps {

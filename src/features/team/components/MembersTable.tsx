@@ -50,7 +50,7 @@ function MemberRow({ member, isSelf, canManage }: { member: Member; isSelf: bool
           {canManage ? (
             <select
               aria-label={`Role of ${member.name}`}
-              className="cursor-pointer border-0 border-b border-transparent bg-transparent py-0.5 hover:border-rule focus:border-accent focus:outline-none"
+              className="min-w-32 cursor-pointer border-0 border-b border-transparent bg-transparent py-0.5 pr-1 hover:border-rule focus:border-accent focus:outline-none"
               value={member.role}
               disabled={changeRole.isPending}
               onChange={(e) => changeRole.mutate({ userId: member.userId, role: e.target.value as Role })}

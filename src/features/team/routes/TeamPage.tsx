@@ -32,7 +32,8 @@ export function TeamPage() {
           title={team.data.name}
           context={
             <>
-              You are <span className="text-ink">{roleLabels[team.data.role].toLowerCase()}</span> in this team.
+              You are {team.data.role === 'owner' ? 'an' : 'a'}{' '}
+              <span className="text-ink">{roleLabels[team.data.role].toLowerCase()}</span> of this team.
               {!canManage && ' Only owners change members, roles and invitations.'}
             </>
           }

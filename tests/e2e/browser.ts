@@ -1,0 +1,98 @@
+import { mkdirSync } from 'node:fs';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { createServer, type Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { chromium, type Browser, type Page } from 'playwright-core';
+import { build } from 'vite';
+import { createApp } from '../../server/app';
+import { seedDemoTeam } from '../../server/db/demo-team';
+import { createTestContext, type TestContext } from '../support/app';
+
+const projectRoot = resolve(import.meta.dirname, '../..');
+export const screenshotDir = join(projectRoot, 'tests', 'e2e', 'screenshots');
+
+/** Debian's chromium, headless and quiet: no updates, sync or background traffic. */
+export function launchChromium(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-background-networking',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  });
+}
+
+async function freePort(): Promise<number> {
+  const probe = createServer();
+  await new Promise<void>((ready) => probe.listen(0, '127.0.0.1', ready));
+  const { port } = probe.address() as AddressInfo;
+  await new Promise((closed) => probe.close(closed));
+  return port;
+}
+
+/** Builds the client into a temporary folder, so a running `npm start` keeps its own dist/client. */
+async function buildClient(): Promise<string> {
+  const outDir = await mkdtemp(join(tmpdir(), 'tacet-e2e-client-'));
+  await build({
+    root: projectRoot,
+    configFile: join(projectRoot, 'vite.config.ts'),
+    logLevel: 'error',
+    build: { outDir, emptyOutDir: true },
+  });
+  return outDir;
+}
+
+export interface RunningApp {
+  baseUrl: string;
+  context: TestContext;
+  browser: Browser;
+  close(): Promise<void>;
+}
+
+/**
+ * The whole app as a user meets it: the built client and the API on one free loopback port,
+ * a migrated database of its own with the demo team seeded, and a browser.
+ */
+export async function startApp(): Promise<RunningApp> {
+  mkdirSync(screenshotDir, { recursive: true });
+  const [clientDir, port] = await Promise.all([buildClient(), freePort()]);
+  const baseUrl = `http://127.0.0.1:${port}`;
+  const context = await createTestContext({ port, appUrl: baseUrl });
+  await seedDemoTeam(context.dataSource, context.config.bcryptCost);
+  const app = createApp({
+    config: context.config,
+    dataSource: context.dataSource,
+    mailer: context.mailer,
+    redis: context.redis,
+    computeQueue: context.computeQueue,
+    clientDir,
+  });
+  const server: Server = await new Promise((listening) => {
+    const s = app.listen(port, '127.0.0.1', () => listening(s));
+  });
+  const browser = await launchChromium();
+  return {
+    baseUrl,
+    context,
+    browser,
+    async close() {
+      await browser.close();
+      server.closeAllConnections();
+      await new Promise((closed) => server.close(closed));
+      await context.close();
+      await rm(clientDir, { recursive: true, force: true });
+    },
+  };
+}
+
+export function screenshot(page: Page, name: string): Promise<Buffer> {
+  return page.screenshot({ path: join(screenshotDir, `${name}.png`), fullPage: true });
+}
