@@ -57,7 +57,7 @@ export const meResponseSchema = z.object({ user: userSchema, memberships: z.arra
 export type MeResponse = z.infer<typeof meResponseSchema>;
 
 export const updateMeRequestSchema = z.strictObject({
-  name: z.string().trim().min(1).max(120).optional(),
+  name: z.string().trim().min(1, 'Enter your name.').max(120, 'Use at most 120 characters.').optional(),
   notifyOnRunDone: z.boolean().optional(),
 });
 

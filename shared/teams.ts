@@ -37,7 +37,9 @@ export const invitationPreviewSchema = z.object({
 });
 export type InvitationPreview = z.infer<typeof invitationPreviewSchema>;
 
-export const renameTeamRequestSchema = z.strictObject({ name: z.string().trim().min(1).max(120) });
+export const renameTeamRequestSchema = z.strictObject({
+  name: z.string().trim().min(1, 'Enter a team name.').max(120, 'Use at most 120 characters.'),
+});
 
 export const outboxMessageSchema = z.object({
   id: z.string(),

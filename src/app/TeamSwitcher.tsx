@@ -43,7 +43,7 @@ export function TeamSwitcher() {
         data-testid="current-team"
         value={current.team.id}
         onChange={(e) => switchTo(e.target.value)}
-        className="max-w-[18rem] cursor-pointer truncate border-0 border-b border-rule bg-transparent py-0.5 pr-6 hover:border-ink-faint focus:border-accent focus:outline-none"
+        className="field-sizing-content max-w-[24rem] cursor-pointer truncate border-0 border-b border-rule bg-transparent py-0.5 pr-6 hover:border-ink-faint focus:border-accent focus:outline-none"
       >
         {memberships.map((membership) => (
           <option key={membership.team.id} value={membership.team.id}>

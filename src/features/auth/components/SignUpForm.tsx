@@ -33,7 +33,7 @@ export function SignUpForm({ invitation, onSignedUp }: SignUpFormProps) {
   return (
     <form onSubmit={submit} noValidate className="flex flex-col gap-6" aria-label="Create account">
       <TextField
-        label="Name"
+        label="Your name"
         name="name"
         autoComplete="name"
         value={name}
