@@ -19,6 +19,15 @@ export function createRedisConnection(redisUrl: string, role: 'worker' | 'client
   return redis;
 }
 
+let lastRedisWarning = 0;
+
+/** The producer side used by the API. Redis trouble is logged once a minute at most; /api/health reports it. */
 export function createComputeQueue(connection: Redis, prefix: string): Queue {
-  return new Queue(computeQueueName, { connection, prefix, skipWaitingForReady: true });
+  const queue = new Queue(computeQueueName, { connection, prefix, skipWaitingForReady: true });
+  queue.on('error', (error) => {
+    if (Date.now() - lastRedisWarning < 60_000) return;
+    lastRedisWarning = Date.now();
+    console.warn(`[queue] Redis problem: ${error.message}`);
+  });
+  return queue;
 }
