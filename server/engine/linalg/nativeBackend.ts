@@ -1,0 +1,158 @@
+/**
+ * The native dense backend: a thin N-API addon (native/src/addon.cc) bound to Debian's OpenBLAS and
+ * the LAPACK it carries, built by `npm run build:native` (postinstall runs it and never fails the install).
+ *
+ * Routines, all on column-major Float64Array storage read in place (see backend.ts):
+ * - symmetricEigen: LAPACK dsyevd (divide and conquer) for the whole spectrum, dsyevr for the range
+ *   `above` a cut (eigenvalues in (above, Gershgorin bound]); vectors on or off. Lower triangle read.
+ * - multiply: BLAS dgemm, C = op(A) op(B).
+ * - gram: BLAS dsyrk, C = AᵀA (half the flops of a general product), mirrored to both triangles.
+ * - solveTriangular: BLAS dtrsm, T X = B or Tᵀ X = B by substitution.
+ *
+ * When the addon is missing or does not load (no compiler, no OpenBLAS at build or run time), this
+ * module yields no backend and the reason, and the engine serves from ml-matrix instead.
+ */
+import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type {
+  DenseMatrix,
+  LinearAlgebraBackend,
+  SymmetricEigenOptions,
+  SymmetricEigenResult,
+  TriangularSolveOptions,
+} from './backend';
+
+/** The functions exported by native/src/addon.cc; each argument list is documented there. */
+interface TacetLinalgAddon {
+  symmetricEigen(
+    n: number,
+    a: Float64Array,
+    vectors: boolean,
+    above?: number,
+    algorithm?: 'dsyevd' | 'dsyevr',
+  ): { values: Float64Array; vectors: Float64Array | null };
+  multiply(m: number, n: number, k: number, a: Float64Array, transA: boolean, b: Float64Array, transB: boolean): Float64Array;
+  gram(rows: number, cols: number, a: Float64Array): Float64Array;
+  solveTriangular(
+    n: number,
+    t: Float64Array,
+    nrhs: number,
+    b: Float64Array,
+    lower: boolean,
+    unitDiagonal: boolean,
+    transpose: boolean,
+  ): Float64Array;
+  info(): { blasConfig: string; threads: number };
+}
+
+export interface NativeLoadResult {
+  backend: LinearAlgebraBackend | null;
+  /** why the backend is null; null when it loaded */
+  reason: string | null;
+  /** the BLAS build the addon is linked to, e.g. "OpenBLAS 0.3.21 …", when it loaded */
+  blasConfig: string | null;
+  addonPath: string;
+}
+
+const repositoryRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
+
+/** Where `npm run build:native` puts the addon; TACET_NATIVE_ADDON overrides it. */
+export const defaultAddonPath =
+  process.env.TACET_NATIVE_ADDON ?? path.join(repositoryRoot, 'native', 'build', 'Release', 'tacet_linalg.node');
+
+function checkData(name: string, m: DenseMatrix): void {
+  if (!(m.data instanceof Float64Array)) throw new TypeError(`${name}: data must be a Float64Array`);
+  if (m.data.length !== m.rows * m.cols) {
+    throw new RangeError(`${name}: ${m.rows}×${m.cols} matrix needs ${m.rows * m.cols} entries, has ${m.data.length}`);
+  }
+}
+
+/** Wraps the addon in the LinearAlgebraBackend interface, checking shapes with messages in our terms. */
+export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend {
+  return {
+    name: 'native',
+
+    symmetricEigen(a: DenseMatrix, options: SymmetricEigenOptions = {}): SymmetricEigenResult {
+      checkData('symmetricEigen', a);
+      if (a.rows !== a.cols) throw new RangeError(`symmetricEigen needs a square matrix, got ${a.rows}×${a.cols}`);
+      const wantVectors = options.vectors !== false;
+      const n = a.rows;
+      const r = addon.symmetricEigen(n, a.data, wantVectors, options.above);
+      return {
+        values: r.values,
+        vectors: wantVectors && r.vectors ? { rows: n, cols: r.values.length, data: r.vectors } : null,
+      };
+    },
+
+    multiply(a, b, options = {}) {
+      checkData('multiply (A)', a);
+      checkData('multiply (B)', b);
+      const transposeA = options.transposeA === true;
+      const transposeB = options.transposeB === true;
+      const m = transposeA ? a.cols : a.rows;
+      const k = transposeA ? a.rows : a.cols;
+      const kb = transposeB ? b.cols : b.rows;
+      const n = transposeB ? b.rows : b.cols;
+      if (k !== kb) {
+        throw new RangeError(
+          `cannot multiply ${transposeA ? '(' : ''}${a.rows}×${a.cols}${transposeA ? ')ᵀ' : ''} by ` +
+            `${transposeB ? '(' : ''}${b.rows}×${b.cols}${transposeB ? ')ᵀ' : ''}`,
+        );
+      }
+      return { rows: m, cols: n, data: addon.multiply(m, n, k, a.data, transposeA, b.data, transposeB) };
+    },
+
+    gram(a) {
+      checkData('gram', a);
+      return { rows: a.cols, cols: a.cols, data: addon.gram(a.rows, a.cols, a.data) };
+    },
+
+    solveTriangular(t, b, options: TriangularSolveOptions) {
+      checkData('solveTriangular (T)', t);
+      checkData('solveTriangular (B)', b);
+      if (t.rows !== t.cols || b.rows !== t.rows) {
+        throw new RangeError(`solveTriangular: T (${t.rows}×${t.cols}) must be square and match B (${b.rows}×${b.cols})`);
+      }
+      const data = addon.solveTriangular(
+        t.rows,
+        t.data,
+        b.cols,
+        b.data,
+        options.lower,
+        options.unitDiagonal === true,
+        options.transpose === true,
+      );
+      return { rows: b.rows, cols: b.cols, data };
+    },
+  };
+}
+
+/** Loads the addon at `addonPath` (uncached); never throws, a failure is described in `reason`. */
+export function loadNativeBackend(addonPath: string = defaultAddonPath): NativeLoadResult {
+  if (!existsSync(addonPath)) {
+    return {
+      backend: null,
+      reason: `native addon not built (${addonPath} is missing; run npm run build:native)`,
+      blasConfig: null,
+      addonPath,
+    };
+  }
+  try {
+    const addon = createRequire(import.meta.url)(addonPath) as TacetLinalgAddon;
+    const blasConfig = addon.info().blasConfig;
+    return { backend: backendFromAddon(addon), reason: null, blasConfig, addonPath };
+  } catch (error) {
+    const message = error instanceof Error ? error.message.split('\n')[0] : String(error);
+    return { backend: null, reason: `native addon failed to load: ${message}`, blasConfig: null, addonPath };
+  }
+}
+
+let cached: NativeLoadResult | null = null;
+
+/** The native backend from the default location, loaded once per process. */
+export function nativeBackendStatus(): NativeLoadResult {
+  cached ??= loadNativeBackend();
+  return cached;
+}
