@@ -14,6 +14,11 @@ export interface GreenFunctionInput {
   backend?: LinearAlgebraBackend;
 }
 
+/** Weight of a link in the 4D massless K = (√ρ / (2π√6)) Lᵀ (Johnston 2009, PRL 103 180401). */
+export function fourDimensionalLinkWeight(density: number): number {
+  return Math.sqrt(density) / (2 * Math.PI * Math.sqrt(6));
+}
+
 /**
  * The massless retarded Green function, K[x][y] ≠ 0 only for y ≺ x (Johnston 2008, CQG 25 202001;
  * Johnston 2009, PRL 103 180401): 2D K = ½ Cᵀ; 4D K = (√ρ / (2π√6)) Lᵀ. Column-major N × N.
@@ -28,7 +33,7 @@ export function masslessRetardedGreen(input: GreenFunctionInput): DenseMatrix {
     return k;
   }
   if (!(input.density !== undefined && input.density > 0)) throw new RangeError('the 4D Green function needs the density ρ');
-  const weight = Math.sqrt(input.density) / (2 * Math.PI * Math.sqrt(6));
+  const weight = fourDimensionalLinkWeight(input.density);
   (input.links ?? linkMatrix(input.causal)).forEach((i, j) => {
     k.data[j + i * n] = weight;
   });

@@ -23,6 +23,8 @@ export interface SjState {
   deltaInBasis: DenseMatrix;
   /** Δ of the whole causal set */
   delta: DenseMatrix;
+  /** Δ B (N × r), kept for the diagnostics */
+  deltaTimesBasis: DenseMatrix;
 }
 
 export interface SjDiagnostics {
@@ -86,7 +88,7 @@ export function sjState(
   }
   const deltaBasis = backend.multiply(delta, basis);
   const deltaInBasis = backend.multiply(basis, deltaBasis, { transposeA: true });
-  return { size: n, complete, modesKept: Math.min(truncation.modesKept, spectrum.positive.length), cutoff: truncation.cutoff, basis, sigma, deltaInBasis, delta };
+  return { size: n, complete, modesKept: Math.min(truncation.modesKept, spectrum.positive.length), cutoff: truncation.cutoff, basis, sigma, deltaInBasis, delta, deltaTimesBasis: deltaBasis };
 }
 
 /** Real and imaginary parts of W_c restricted to the given elements (both |O| × |O|, column-major). */
@@ -151,7 +153,7 @@ export function sjDiagnostics(state: SjState, positive: Float64Array, backend: L
   const hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
 
   // W − W̄ − iΔP = i(BA − ΔB)Bᵀ, whose norm is ‖BA − ΔB‖_F for orthonormal B
-  const deltaB = backend.multiply(state.delta, state.basis);
+  const deltaB = state.deltaTimesBasis;
   const bA = backend.multiply(state.basis, a);
   let leak = 0;
   for (let k = 0; k < deltaB.data.length; k++) leak += (bA.data[k] - deltaB.data[k]) ** 2;

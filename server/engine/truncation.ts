@@ -1,7 +1,7 @@
 import type { TruncationRule } from '../../shared/vacuum';
 
 export interface KneeFit {
-  /** fitted λ_k ≈ amplitude · k^(−exponent) over k = 1..fitWindow */
+  /** fitted λ_k ≈ amplitude · k^(−exponent) over k = 2..fitWindow */
   amplitude: number;
   exponent: number;
   fitWindow: number;
@@ -35,17 +35,19 @@ function cutBetween(descending: Float64Array, kept: number): number {
   return (descending[kept - 1] + descending[kept]) / 2;
 }
 
-const DEFAULT_KNEE_TOLERANCE = 0.3;
+const DEFAULT_KNEE_TOLERANCE = 0.05;
 /** consecutive departures needed before the knee is declared: a single noisy eigenvalue is not a knee */
-const KNEE_RUN = 3;
+const KNEE_RUN = 5;
 
 /**
  * Our knee finder. Above the knee a sprinkled spectrum follows the continuum, which at the top of the
  * spectrum is close to a power law in the mode number (for the 2D diamond λ_k ≈ N/(4x_k) with x_k
  * growing linearly in k, physics notes §4); past the knee the discrete spectrum leaves that curve.
- *  1. Fit log λ_k = log a − p log k by least squares over the top window k = 1..w, with
- *     w = max(6, ⌈√M⌉) of the M positive eigenvalues: far enough from the knee (which sits near 2√N modes
- *     in 2D) to see only continuum-like modes, long enough to average out sprinkling noise.
+ *  1. Fit log λ_k = log a − p log k by least squares over the window k = 2..w, with
+ *     w = max(8, ⌈√M⌉) of the M positive eigenvalues: far enough above the knee (which sits beyond 2√N
+ *     modes in 2D) to see only continuum-like modes, long enough to average out sprinkling noise. The
+ *     first mode is left out because it sits off the asymptotic law (for the 2D diamond x₁ ≈ 1.166
+ *     against ≈ π/2 for a straight 1/k law).
  *  2. Walk down from k = w + 1 and compare λ_k with the fitted a k^(−p).
  *  3. The knee is the first k where |ln(λ_k / a k^(−p))| > ln(1 + tolerance) for KNEE_RUN consecutive
  *     modes; everything above it is kept. If the spectrum never departs, every mode is kept.
@@ -54,13 +56,14 @@ const KNEE_RUN = 3;
 export function findKnee(descending: Float64Array, tolerance = DEFAULT_KNEE_TOLERANCE): { modesKept: number; fit: KneeFit } {
   const m = descending.length;
   const usable = countAbove(descending, 0);
-  const window = Math.min(usable, Math.max(6, Math.ceil(Math.sqrt(m))));
-  if (window < 3) throw new RangeError('the knee finder needs at least 3 positive eigenvalues');
+  const window = Math.min(usable, Math.max(8, Math.ceil(Math.sqrt(m))));
+  if (window < 4) throw new RangeError('the knee finder needs at least 4 positive eigenvalues');
   let sx = 0;
   let sy = 0;
   let sxx = 0;
   let sxy = 0;
-  for (let k = 1; k <= window; k++) {
+  const points = window - 1;
+  for (let k = 2; k <= window; k++) {
     const x = Math.log(k);
     const y = Math.log(descending[k - 1]);
     sx += x;
@@ -68,8 +71,8 @@ export function findKnee(descending: Float64Array, tolerance = DEFAULT_KNEE_TOLE
     sxx += x * x;
     sxy += x * y;
   }
-  const slope = (window * sxy - sx * sy) / (window * sxx - sx * sx);
-  const intercept = (sy - slope * sx) / window;
+  const slope = (points * sxy - sx * sy) / (points * sxx - sx * sx);
+  const intercept = (sy - slope * sx) / points;
   const fit: KneeFit = { amplitude: Math.exp(intercept), exponent: -slope, fitWindow: window, tolerance };
   const limit = Math.log(1 + tolerance);
   let run = 0;

@@ -1,0 +1,305 @@
+import {
+  regionSpecSchema,
+  sprinklingSpecSchema,
+  subregionSpecSchema,
+  truncationRuleSchema,
+  type RegionSpec,
+  type SprinklingSpecInput,
+  type SubregionSpec,
+  type TruncationRule,
+  type VacuumStage,
+} from '../../shared/vacuum';
+import { entanglementEntropy, subregionElements, type EntropyResult } from './entropy';
+import { retardedGreen } from './green';
+import { getBackend, type BackendPreference } from './linalg';
+import type { LinearAlgebraBackend } from './linalg/backend';
+import { causalMatrix, linkMatrix } from './order';
+import { pauliJordan, pauliJordanSpectrum } from './pauliJordan';
+import { makeRegion, type Region } from './regions';
+import { sjDiagnostics, sjState, type SjDiagnostics, type SjState } from './sjState';
+import { sprinkle, type Sprinkling } from './sprinkle';
+import { applyTruncation, type KneeFit } from './truncation';
+
+export const ENGINE_VERSION = 'tacet-engine 0.1.0';
+
+export type { VacuumStage } from '../../shared/vacuum';
+export type { EntropyResult } from './entropy';
+export type { SjDiagnostics, SjState } from './sjState';
+export type { KneeFit, TruncationResult } from './truncation';
+export { continuumDiamondSpectrum } from './continuum';
+export { sprinkle } from './sprinkle';
+export { makeRegion } from './regions';
+export { getBackend } from './linalg';
+
+/** Bad input to the engine: the message says what is wrong and is meant for the user. */
+export class EngineInputError extends Error {
+  override readonly name = 'EngineInputError';
+}
+
+/** Thrown between stages when `shouldCancel()` returns true. */
+export class CancelledError extends Error {
+  override readonly name = 'CancelledError';
+  readonly stage: VacuumStage;
+  constructor(stage: VacuumStage) {
+    super(`computation cancelled before stage "${stage}"`);
+    this.stage = stage;
+  }
+}
+
+export type PointSource =
+  | { kind: 'sprinkling'; sprinkling: SprinklingSpecInput }
+  | {
+      kind: 'points';
+      /** flat coordinates, `dimension` per element */
+      points: ArrayLike<number>;
+      dimension: 2 | 4;
+      /** ρ; or give the region the points were drawn in, then ρ = N/V */
+      density?: number;
+      region?: RegionSpec;
+    };
+
+export interface VacuumRequest {
+  source: PointSource;
+  mass?: number;
+  truncation?: TruncationRule;
+  subregion?: SubregionSpec;
+  doubleTruncation?: boolean;
+  backend?: BackendPreference | LinearAlgebraBackend;
+  /** also return the SJ state (kept eigenvectors and Δ) for further use */
+  keepState?: boolean;
+}
+
+export interface VacuumHooks {
+  onProgress?(stage: VacuumStage, fraction: number): void;
+  shouldCancel?(): boolean;
+}
+
+export interface VacuumResult {
+  engineVersion: string;
+  backend: string;
+  dimension: 2 | 4;
+  N: number;
+  points: Float64Array;
+  /** ρ, null when neither a density nor a region was known */
+  density: number | null;
+  volume: number | null;
+  region: RegionSpec | null;
+  sprinkling: Sprinkling['provenance'] | null;
+  mass: number;
+  relations: number;
+  links: number | null;
+  /** all positive eigenvalues of iΔ, descending */
+  eigenvalues: Float64Array;
+  truncation: TruncationRule;
+  cutoff: number;
+  modesKept: number;
+  knee: KneeFit | null;
+  diagnostics: SjDiagnostics;
+  entropy: (EntropyResult & { elements: Int32Array }) | null;
+  /** seconds per stage */
+  timings: Partial<Record<VacuumStage, number>>;
+  state?: SjState;
+}
+
+/**
+ * Largest N the dense pipeline accepts. It holds about MATRICES_HELD N × N float64 matrices at once
+ * (K, Δ, ΔᵀΔ, its eigenvectors, the solver's working copy, products with the kept basis): at N = 3000
+ * that is 7 × 8 × 3000² bytes ≈ 0.5 GB, and the pure-JavaScript eigensolver takes tens of minutes.
+ */
+export const DENSE_SIZE_LIMIT = {
+  maxN: 3000,
+  matricesHeld: 7,
+  reason: 'the dense pipeline holds about 7 N×N float64 matrices at once (≈0.5 GB at N = 3000)',
+} as const;
+
+export function denseMemoryBytes(n: number): number {
+  return DENSE_SIZE_LIMIT.matricesHeld * 8 * n * n;
+}
+
+/** Throws EngineInputError when N exceeds the dense limit. */
+export function checkDenseSize(n: number, maxN: number = DENSE_SIZE_LIMIT.maxN): void {
+  if (n > maxN) {
+    throw new EngineInputError(
+      `N = ${n} exceeds the dense limit of ${maxN} elements: ${DENSE_SIZE_LIMIT.reason}; it would need about ${(denseMemoryBytes(n) / 2 ** 30).toFixed(1)} GB`,
+    );
+  }
+  if (n < 2) throw new EngineInputError(`a causal set needs at least 2 elements, got ${n}`);
+}
+
+/**
+ * Validates a request before any work: schemas, consistency (density for massive or 4D fields,
+ * subregion dimension) and the dense size limit — for Poisson sprinklings the expected N plus five
+ * standard deviations. Throws EngineInputError with a message for the user.
+ */
+export function validateVacuumRequest(request: VacuumRequest, maxN: number = DENSE_SIZE_LIMIT.maxN): void {
+  const fail = (message: string): never => {
+    throw new EngineInputError(message);
+  };
+  const zodMessage = (e: { issues: { path: PropertyKey[]; message: string }[] }) =>
+    e.issues.map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message)).join('; ');
+  let dimension: 2 | 4;
+  let hasDensity: boolean;
+  if (request.source.kind === 'sprinkling') {
+    const parsed = sprinklingSpecSchema.safeParse(request.source.sprinkling);
+    if (!parsed.success) return fail(`invalid sprinkling: ${zodMessage(parsed.error)}`);
+    const region = makeRegion(parsed.data.region);
+    dimension = region.dimension;
+    hasDensity = true;
+    const mean = parsed.data.count ?? (parsed.data.density as number) * region.volume;
+    const worst = parsed.data.process === 'fixed' ? mean : Math.ceil(mean + 5 * Math.sqrt(mean));
+    if (worst > maxN) checkDenseSize(worst, maxN);
+    if (parsed.data.process === 'fixed' && mean < 2) fail('a sprinkling needs at least 2 elements');
+  } else {
+    const { points, dimension: d } = request.source;
+    if (d !== 2 && d !== 4) fail(`dimension must be 2 or 4, got ${String(d)}`);
+    dimension = d;
+    if (points.length % d !== 0) fail(`${points.length} coordinates do not make whole ${d}D points`);
+    for (let k = 0; k < points.length; k++) {
+      if (!Number.isFinite(points[k])) fail(`coordinate ${k % d} of element ${Math.floor(k / d)} is not a finite number`);
+    }
+    checkDenseSize(points.length / d, maxN);
+    if (request.source.density !== undefined && !(request.source.density > 0 && Number.isFinite(request.source.density))) {
+      fail('density must be a positive number');
+    }
+    if (request.source.region) {
+      const parsed = regionSpecSchema.safeParse(request.source.region);
+      if (!parsed.success) return fail(`invalid region: ${zodMessage(parsed.error)}`);
+      if (makeRegion(parsed.data).dimension !== d) fail(`region ${parsed.data.kind} is not ${d}-dimensional`);
+    }
+    hasDensity = request.source.density !== undefined || request.source.region !== undefined;
+  }
+  const mass = request.mass ?? 0;
+  if (!(mass >= 0) || !Number.isFinite(mass)) fail('mass must be a finite number ≥ 0');
+  if (!hasDensity && (mass > 0 || dimension === 4)) {
+    fail(`${mass > 0 ? 'a massive field' : 'the 4D Green function'} needs a density: give the density or the region`);
+  }
+  if (request.truncation) {
+    const parsed = truncationRuleSchema.safeParse(request.truncation);
+    if (!parsed.success) fail(`invalid truncation: ${zodMessage(parsed.error)}`);
+  }
+  if (request.subregion) {
+    const parsed = subregionSpecSchema.safeParse(request.subregion);
+    if (!parsed.success) return fail(`invalid subregion: ${zodMessage(parsed.error)}`);
+    if (parsed.data.kind === 'diamond' && ('y' in parsed.data.past ? 4 : 2) !== dimension) {
+      fail(`subregion tips must have ${dimension} coordinates like the points`);
+    }
+  }
+  if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion');
+}
+
+function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend {
+  if (choice === undefined || typeof choice === 'string') return getBackend(choice ?? 'auto');
+  return choice;
+}
+
+/**
+ * The whole dense pipeline of physics notes §1–5: sprinkle (or take the given points), causal order,
+ * retarded Green function, Pauli–Jordan spectrum, (truncated) SJ state with its diagnostics, and the
+ * entanglement entropy of a subregion when one is given. Reports progress per stage and checks
+ * `shouldCancel()` before each stage (throws CancelledError).
+ */
+export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks = {}): Promise<VacuumResult> {
+  validateVacuumRequest(request);
+  const backend = resolveBackend(request.backend);
+  const timings: Partial<Record<VacuumStage, number>> = {};
+  const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
+    if (hooks.shouldCancel?.()) throw new CancelledError(name);
+    hooks.onProgress?.(name, 0);
+    // yield to the event loop so a cancel request or a progress write can get through
+    await new Promise((resolve) => setImmediate(resolve));
+    if (hooks.shouldCancel?.()) throw new CancelledError(name);
+    const start = performance.now();
+    const value = work();
+    timings[name] = (performance.now() - start) / 1000;
+    hooks.onProgress?.(name, 1);
+    return value;
+  };
+
+  const source = request.source;
+  const placed = await stage('sprinkle', () => {
+    if (source.kind === 'sprinkling') {
+      const s = sprinkle(sprinklingSpecSchema.parse(source.sprinkling));
+      checkDenseSize(s.count);
+      return { points: s.points, dimension: s.dimension, density: s.density as number | null, region: s.region as Region | null, provenance: s.provenance as Sprinkling['provenance'] | null };
+    }
+    const points = Float64Array.from(source.points);
+    const region = source.region ? makeRegion(regionSpecSchema.parse(source.region)) : null;
+    if (region) {
+      const d = source.dimension;
+      for (let i = 0; i < points.length / d; i++) {
+        if (!region.contains(points.subarray(i * d, (i + 1) * d))) {
+          throw new EngineInputError(`element ${i} lies outside the ${region.spec.kind} region`);
+        }
+      }
+    }
+    const n = points.length / source.dimension;
+    const density = source.density ?? (region ? n / region.volume : null);
+    return { points, dimension: source.dimension, density, region, provenance: null };
+  });
+  const { points, dimension, density, region } = placed;
+  const n = points.length / dimension;
+  const mass = request.mass ?? 0;
+
+  const order = await stage('order', () => {
+    const causal = causalMatrix(points, dimension, region?.periodX);
+    const links = dimension === 4 ? linkMatrix(causal) : null;
+    return { causal, links };
+  });
+
+  const k = await stage('green', () =>
+    retardedGreen({ points, dimension, causal: order.causal, links: order.links ?? undefined, density: density ?? undefined, mass, backend }),
+  );
+
+  const { delta, spectrum } = await stage('spectrum', () => {
+    const delta = pauliJordan(k);
+    return { delta, spectrum: pauliJordanSpectrum(delta, { backend }) };
+  });
+
+  const truncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' as const } : { rule: 'none' as const });
+  const { truncation, state, diagnostics } = await stage('state', () => {
+    let truncation;
+    try {
+      truncation = applyTruncation(spectrum.positive, n, truncationRule);
+    } catch (error) {
+      throw new EngineInputError((error as Error).message);
+    }
+    const state = sjState(delta, spectrum, truncation, backend);
+    return { truncation, state, diagnostics: sjDiagnostics(state, spectrum.positive, backend) };
+  });
+
+  let entropy: VacuumResult['entropy'] = null;
+  if (request.subregion) {
+    const subregion = request.subregion;
+    entropy = await stage('entropy', () => {
+      const elements = subregionElements(subregion, points, dimension, region?.periodX);
+      if (elements.length < 2) {
+        throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
+      }
+      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, backend }), elements };
+    });
+  }
+
+  return {
+    engineVersion: ENGINE_VERSION,
+    backend: backend.name,
+    dimension,
+    N: n,
+    points,
+    density,
+    volume: region?.volume ?? null,
+    region: region?.spec ?? null,
+    sprinkling: placed.provenance,
+    mass,
+    relations: order.causal.count(),
+    links: order.links ? order.links.count() : null,
+    eigenvalues: spectrum.positive,
+    truncation: truncationRule,
+    cutoff: truncation.cutoff,
+    modesKept: truncation.modesKept,
+    knee: truncation.knee ?? null,
+    diagnostics,
+    entropy,
+    timings,
+    ...(request.keepState ? { state } : {}),
+  };
+}
