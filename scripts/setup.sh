@@ -17,6 +17,9 @@ if ! /usr/bin/python3 -c 'import numpy, scipy' >/dev/null 2>&1; then
   [ -x /usr/bin/python3 ] || missing+=(python3)
   missing+=(python3-numpy python3-scipy)
 fi
+# The native addon (npm run build:native) compiles with node-gyp against OpenBLAS.
+command -v g++ >/dev/null 2>&1 || missing+=(g++)
+command -v make >/dev/null 2>&1 || missing+=(make)
 if command -v dpkg-query >/dev/null 2>&1; then
   have_deb libopenblas-dev || missing+=(libopenblas-dev)
   # runuser (util-linux) lets root start PostgreSQL as the postgres user

@@ -13,6 +13,14 @@ export REDIS_URL="${REDIS_URL:-redis://127.0.0.1:$redis_port}"
 export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
 export TACET_MODE="${TACET_MODE:-development}"
 
+# One `npm start` per checkout: a second one would share .data/ and fight over the ports.
+mkdir -p .data
+if [ -f .data/start.pid ] && kill -0 "$(cat .data/start.pid)" 2>/dev/null; then
+  echo "[start] Tacet is already running from this folder (pid $(cat .data/start.pid)); stop it first." >&2
+  exit 1
+fi
+echo $$ > .data/start.pid
+
 bash scripts/setup.sh
 
 started_pg=0
@@ -25,6 +33,7 @@ cleanup() {
   for pid in "${pids[@]}"; do wait "$pid" 2>/dev/null || true; done
   [ "$started_redis" = 1 ] && bash scripts/services.sh redis-stop .data/redis
   [ "$started_pg" = 1 ] && bash scripts/services.sh pg-stop .data/pg
+  rm -f .data/start.pid
   echo "[start] stopped"
   exit "$code"
 }
@@ -32,7 +41,6 @@ trap cleanup EXIT
 trap 'exit 130' INT
 trap 'exit 143' TERM
 
-mkdir -p .data
 bash scripts/services.sh pg-running .data/pg || started_pg=1
 bash scripts/services.sh pg-start .data/pg "$pg_port" tacet
 bash scripts/services.sh redis-running .data/redis || started_redis=1
