@@ -1,0 +1,355 @@
+import { readFileSync, writeFileSync } from 'node:fs';
+import { pathToFileURL } from 'node:url';
+import { parseArgs, type ParseArgsConfig } from 'node:util';
+import {
+  formatTruncationRule,
+  parseSubregion,
+  parseTruncationRule,
+  regionKinds,
+  regionSpecSchema,
+  type RegionKind,
+  type RegionSpec,
+} from '../../shared/vacuum';
+import { computeVacuum, EngineInputError, type VacuumRequest, type VacuumResult } from '../engine/index';
+import { sprinkle } from '../engine/sprinkle';
+import { ZodError } from 'zod';
+
+/** Bad command-line input: reported as one line on stderr with exit code 2. */
+export class UsageError extends Error {
+  override readonly name = 'UsageError';
+}
+
+const HELP = `tacet — quantum-field vacua and entanglement entropy on causal sets
+
+usage:
+  tacet sprinkle --region diamond2d|cylinder2d|slab2d|diamond4d --n N [--poisson] --seed S
+                 [region size options] [--prng arc4|alea|xor4096] [--out points.csv]
+  tacet vacuum   --points points.csv [--mass M] [--density RHO | --region R [size options]]
+                 [--truncation none|sqrtN|lambda:X|modes:K|knee[:TOL]] [--json]
+  tacet entropy  --points points.csv --subregion diamond:T0,X0:T1,X1 | elements:I,J,...
+                 [--truncation RULE] [--double] [--mass M] [--density RHO | --region R ...] [--json]
+
+region size options (defaults in brackets):
+  diamond2d   --proper-time T [2√2]  or  --tips T0,X0:T1,X1
+  cylinder2d  --proper-time T [2] --circumference L [2]     (x periodic, x ∈ [−L/2, L/2))
+  slab2d      --t-range T0,T1 [0,1] --x-range X0,X1 [0,1]
+  diamond4d   --proper-time T [2]
+
+points files are CSV with a header t,x (2D) or t,x,y,z (4D). A massive field or a 4D Green function
+needs the density: --density, or --region with its size so the volume is known (ρ = N/V).
+--poisson: N ~ Poisson(ρV) with mean --n (or with --density RHO instead of --n).
+--double: double truncation (Sorkin–Yazdi); the whole-region rule defaults to sqrtN.
+--backend auto|native|ml-matrix selects the dense linear algebra.
+exit codes: 0 success, 2 bad input, 1 failure.
+`;
+
+const regionOptions = {
+  region: { type: 'string' },
+  'proper-time': { type: 'string' },
+  tips: { type: 'string' },
+  circumference: { type: 'string' },
+  't-range': { type: 'string' },
+  'x-range': { type: 'string' },
+} as const satisfies ParseArgsConfig['options'];
+
+const computeOptions = {
+  ...regionOptions,
+  points: { type: 'string' },
+  mass: { type: 'string' },
+  density: { type: 'string' },
+  truncation: { type: 'string' },
+  backend: { type: 'string' },
+  json: { type: 'boolean' },
+  help: { type: 'boolean', short: 'h' },
+} as const satisfies ParseArgsConfig['options'];
+
+function number(value: string, what: string): number {
+  const v = value.trim() === '' ? Number.NaN : Number(value);
+  if (!Number.isFinite(v)) throw new UsageError(`${what} must be a number, got "${value}"`);
+  return v;
+}
+
+function pair(value: string, what: string): [number, number] {
+  const parts = value.split(',');
+  if (parts.length !== 2) throw new UsageError(`${what} must be two numbers A,B, got "${value}"`);
+  return [number(parts[0], what), number(parts[1], what)];
+}
+
+/** The region spec from --region and its size options; null when --region is absent. */
+function regionFromOptions(values: Record<string, string | boolean | undefined>): RegionSpec | null {
+  const kind = values.region as string | undefined;
+  if (kind === undefined) {
+    for (const option of ['proper-time', 'tips', 'circumference', 't-range', 'x-range']) {
+      if (values[option] !== undefined) throw new UsageError(`--${option} needs --region`);
+    }
+    return null;
+  }
+  if (!(regionKinds as readonly string[]).includes(kind)) throw new UsageError(`--region must be one of ${regionKinds.join(', ')}, got "${kind}"`);
+  const allowed: Record<RegionKind, string[]> = {
+    diamond2d: ['proper-time', 'tips'],
+    cylinder2d: ['proper-time', 'circumference'],
+    slab2d: ['t-range', 'x-range'],
+    diamond4d: ['proper-time'],
+  };
+  for (const option of ['proper-time', 'tips', 'circumference', 't-range', 'x-range']) {
+    if (values[option] !== undefined && !allowed[kind as RegionKind].includes(option)) {
+      throw new UsageError(`--${option} does not apply to --region ${kind}`);
+    }
+  }
+  const properTime = (fallback: number) => (values['proper-time'] !== undefined ? number(values['proper-time'] as string, '--proper-time') : fallback);
+  let candidate: unknown;
+  switch (kind as RegionKind) {
+    case 'diamond2d': {
+      if (values.tips !== undefined) {
+        if (values['proper-time'] !== undefined) throw new UsageError('give --proper-time or --tips, not both');
+        const tips = (values.tips as string).split(':');
+        if (tips.length !== 2) throw new UsageError(`--tips must be T0,X0:T1,X1, got "${values.tips}"`);
+        const [t0, x0] = pair(tips[0], '--tips');
+        const [t1, x1] = pair(tips[1], '--tips');
+        candidate = { kind, past: { t: t0, x: x0 }, future: { t: t1, x: x1 } };
+      } else candidate = { kind, properTime: properTime(2 * Math.SQRT2) };
+      break;
+    }
+    case 'cylinder2d':
+      candidate = {
+        kind,
+        properTime: properTime(2),
+        circumference: values.circumference !== undefined ? number(values.circumference as string, '--circumference') : 2,
+      };
+      break;
+    case 'slab2d': {
+      const [tMin, tMax] = values['t-range'] !== undefined ? pair(values['t-range'] as string, '--t-range') : [0, 1];
+      const [xMin, xMax] = values['x-range'] !== undefined ? pair(values['x-range'] as string, '--x-range') : [0, 1];
+      candidate = { kind, tMin, tMax, xMin, xMax };
+      break;
+    }
+    case 'diamond4d':
+      candidate = { kind, properTime: properTime(2) };
+      break;
+  }
+  const parsed = regionSpecSchema.safeParse(candidate);
+  if (!parsed.success) throw new UsageError(`invalid ${kind} region: ${parsed.error.issues.map((i) => i.message).join('; ')}`);
+  return parsed.data;
+}
+
+/** Points CSV with header t,x or t,x,y,z; every field a finite number. */
+export function readPointsCsv(path: string): { points: Float64Array; dimension: 2 | 4 } {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (error) {
+    throw new UsageError(`cannot read points file ${path}: ${(error as NodeJS.ErrnoException).code ?? (error as Error).message}`);
+  }
+  const lines = text.split(/\r?\n/).filter((line) => line.trim() !== '');
+  if (lines.length === 0) throw new UsageError(`${path} is empty; expected a header t,x or t,x,y,z`);
+  const header = lines[0].split(',').map((h) => h.trim().toLowerCase());
+  const dimension = header.join(',') === 't,x' ? 2 : header.join(',') === 't,x,y,z' ? 4 : null;
+  if (dimension === null) throw new UsageError(`${path}: header must be t,x (2D) or t,x,y,z (4D), got "${lines[0].trim()}"`);
+  const points = new Float64Array((lines.length - 1) * dimension);
+  for (let row = 1; row < lines.length; row++) {
+    const fields = lines[row].split(',');
+    if (fields.length !== dimension) {
+      throw new UsageError(`${path} line ${row + 1}: expected ${dimension} columns (${header.join(',')}), got ${fields.length}`);
+    }
+    fields.forEach((field, k) => {
+      const v = field.trim() === '' ? Number.NaN : Number(field);
+      if (!Number.isFinite(v)) throw new UsageError(`${path} line ${row + 1}: ${header[k]} is not a finite number ("${field.trim()}")`);
+      points[(row - 1) * dimension + k] = v;
+    });
+  }
+  if (lines.length - 1 < 2) throw new UsageError(`${path} holds ${lines.length - 1} point(s); at least 2 are needed`);
+  return { points, dimension };
+}
+
+function pointsCsv(points: Float64Array, dimension: 2 | 4): string {
+  const header = dimension === 2 ? 't,x' : 't,x,y,z';
+  const rows: string[] = [header];
+  // String(v) is the shortest text that parses back to the same double, so the file round-trips exactly
+  for (let i = 0; i < points.length / dimension; i++) rows.push(Array.from(points.subarray(i * dimension, (i + 1) * dimension), String).join(','));
+  return rows.join('\n') + '\n';
+}
+
+function parse<T extends NonNullable<ParseArgsConfig['options']>>(args: string[], options: T) {
+  try {
+    return parseArgs({ args, options, strict: true, allowPositionals: false }).values as Record<string, string | boolean | undefined>;
+  } catch (error) {
+    throw new UsageError((error as Error).message.split('\n')[0]);
+  }
+}
+
+interface Io {
+  stdout: (text: string) => void;
+  stderr: (text: string) => void;
+  progress: boolean;
+}
+
+function runSprinkle(args: string[], io: Io): void {
+  const values = parse(args, {
+    ...regionOptions,
+    n: { type: 'string' },
+    density: { type: 'string' },
+    poisson: { type: 'boolean' },
+    seed: { type: 'string' },
+    prng: { type: 'string' },
+    out: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (values.help) return io.stdout(HELP);
+  const region = regionFromOptions(values);
+  if (!region) throw new UsageError('sprinkle needs --region');
+  if (values.seed === undefined || values.seed === '') throw new UsageError('sprinkle needs --seed');
+  const poisson = values.poisson === true;
+  if (values.n !== undefined && values.density !== undefined) throw new UsageError('give --n or --density, not both');
+  if (values.density !== undefined && !poisson) throw new UsageError('--density sets a Poisson sprinkling: add --poisson, or give --n');
+  if (values.n === undefined && values.density === undefined) throw new UsageError('sprinkle needs --n (or --poisson --density RHO)');
+  const count = values.n !== undefined ? number(values.n as string, '--n') : undefined;
+  if (count !== undefined && !(Number.isInteger(count) && count >= 1)) throw new UsageError(`--n must be a whole number ≥ 1, got "${values.n}"`);
+  const density = values.density !== undefined ? number(values.density as string, '--density') : undefined;
+  if (density !== undefined && !(density > 0)) throw new UsageError('--density must be positive');
+  const prng = (values.prng as string | undefined) ?? 'arc4';
+  if (!['arc4', 'alea', 'xor4096'].includes(prng)) throw new UsageError(`--prng must be arc4, alea or xor4096, got "${prng}"`);
+  const s = sprinkle({ region, process: poisson ? 'poisson' : 'fixed', count, density, seed: values.seed as string, prng: prng as 'arc4' });
+  const csv = pointsCsv(s.points, s.dimension);
+  const summary = { N: s.count, dimension: s.dimension, density: s.density, volume: s.volume, region, ...s.provenance };
+  if (values.out !== undefined) {
+    writeFileSync(values.out as string, csv);
+    io.stdout(JSON.stringify({ ...summary, out: values.out }) + '\n');
+  } else {
+    io.stdout(csv);
+    io.stderr(JSON.stringify(summary) + '\n');
+  }
+}
+
+function vacuumRequest(values: Record<string, string | boolean | undefined>): VacuumRequest {
+  if (values.points === undefined) throw new UsageError('--points points.csv is required');
+  const { points, dimension } = readPointsCsv(values.points as string);
+  const region = regionFromOptions(values);
+  const density = values.density !== undefined ? number(values.density as string, '--density') : undefined;
+  if (density !== undefined && !(density > 0)) throw new UsageError('--density must be positive');
+  if (density !== undefined && region) throw new UsageError('give --density or --region, not both');
+  const mass = values.mass !== undefined ? number(values.mass as string, '--mass') : 0;
+  if (mass < 0) throw new UsageError('--mass must be ≥ 0');
+  let truncation;
+  if (values.truncation !== undefined) {
+    try {
+      truncation = parseTruncationRule(values.truncation as string);
+    } catch (error) {
+      throw new UsageError((error as Error).message);
+    }
+  }
+  const backend = (values.backend as string | undefined) ?? 'auto';
+  if (!['auto', 'native', 'ml-matrix'].includes(backend)) throw new UsageError(`--backend must be auto, native or ml-matrix, got "${backend}"`);
+  return {
+    source: { kind: 'points', points, dimension, density, region: region ?? undefined },
+    mass,
+    truncation,
+    backend: backend as 'auto',
+  };
+}
+
+function progressHooks(io: Io) {
+  return io.progress ? { onProgress: (stage: string, fraction: number) => fraction === 0 && io.stderr(`tacet: ${stage}…\n`) } : {};
+}
+
+function common(result: VacuumResult) {
+  return {
+    engineVersion: result.engineVersion,
+    backend: result.backend,
+    N: result.N,
+    dimension: result.dimension,
+    density: result.density,
+    volume: result.volume,
+    mass: result.mass,
+    truncation: formatTruncationRule(result.truncation),
+    cutoff: result.cutoff,
+  };
+}
+
+async function runVacuum(args: string[], io: Io): Promise<void> {
+  const values = parse(args, computeOptions);
+  if (values.help) return io.stdout(HELP);
+  const result = await computeVacuum(vacuumRequest(values), progressHooks(io));
+  const out = {
+    ...common(result),
+    modesKept: result.modesKept,
+    knee: result.knee,
+    relations: result.relations,
+    links: result.links,
+    eigenvalues: Array.from(result.eigenvalues),
+    diagnostics: result.diagnostics,
+    timings: result.timings,
+  };
+  if (values.json) return io.stdout(JSON.stringify(out) + '\n');
+  const d = result.diagnostics;
+  io.stdout(
+    [
+      `N = ${out.N} (${out.dimension}D), density ${out.density ?? 'unknown'}, mass ${out.mass}, backend ${out.backend}`,
+      `largest eigenvalues of iΔ: ${out.eigenvalues.slice(0, 5).map((v) => v.toPrecision(6)).join(', ')}`,
+      `truncation ${out.truncation}: λ_c = ${out.cutoff.toPrecision(6)}, ${out.modesKept} of ${out.eigenvalues.length} positive modes kept`,
+      `checks: ‖W−W†‖ ${d.hermiticityError.toExponential(1)}, min eig W ${d.smallestEigenvalue.toExponential(2)} (${d.smallestEigenvalueMethod}), ‖W−W̄−iΔc‖ ${d.commutatorError.toExponential(1)}, ‖WW̄‖ ${d.orthogonalityError.toExponential(1)}, tr W ${d.trace.toPrecision(8)}`,
+    ].join('\n') + '\n',
+  );
+}
+
+async function runEntropy(args: string[], io: Io): Promise<void> {
+  const values = parse(args, { ...computeOptions, subregion: { type: 'string' }, double: { type: 'boolean' } });
+  if (values.help) return io.stdout(HELP);
+  if (values.subregion === undefined) throw new UsageError('entropy needs --subregion diamond:T0,X0:T1,X1 or elements:I,J,...');
+  const request = vacuumRequest(values);
+  try {
+    request.subregion = parseSubregion(values.subregion as string);
+  } catch (error) {
+    throw new UsageError((error as Error).message);
+  }
+  request.doubleTruncation = values.double === true;
+  const result = await computeVacuum(request, progressHooks(io));
+  const e = result.entropy!;
+  const out = {
+    ...common(result),
+    wholeRegionModesKept: result.modesKept,
+    n: e.n,
+    S: e.S,
+    modesKept: e.modesKept,
+    subregionCutoff: e.cutoff,
+    doubleTruncation: e.doubleTruncation,
+    generalizedEigenvalues: Array.from(e.generalizedEigenvalues),
+    timings: result.timings,
+  };
+  if (values.json) return io.stdout(JSON.stringify(out) + '\n');
+  io.stdout(
+    `S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${e.doubleTruncation ? 'double-truncated' : 'whole-region truncation ' + out.truncation}), ${e.modesKept} modes of iΔ_O kept\n`,
+  );
+}
+
+/** Runs the command line; returns the exit code (0 success, 2 bad input, 1 failure). */
+export async function runCli(argv: string[], io: Partial<Io> = {}): Promise<number> {
+  const sink: Io = {
+    stdout: io.stdout ?? ((t) => process.stdout.write(t)),
+    stderr: io.stderr ?? ((t) => process.stderr.write(t)),
+    progress: io.progress ?? process.stderr.isTTY === true,
+  };
+  const [command, ...rest] = argv;
+  try {
+    if (command === undefined || command === '--help' || command === '-h' || command === 'help') {
+      sink.stdout(HELP);
+      return command === undefined ? 2 : 0;
+    }
+    if (command === 'sprinkle') runSprinkle(rest, sink);
+    else if (command === 'vacuum') await runVacuum(rest, sink);
+    else if (command === 'entropy') await runEntropy(rest, sink);
+    else throw new UsageError(`unknown command "${command}"; use sprinkle, vacuum or entropy (tacet --help)`);
+    return 0;
+  } catch (error) {
+    if (error instanceof UsageError || error instanceof EngineInputError || error instanceof ZodError) {
+      const message = error instanceof ZodError ? error.issues.map((i) => i.message).join('; ') : error.message;
+      sink.stderr(`tacet: ${message.replace(/\s*\n\s*/g, ' ')}\n`);
+      return 2;
+    }
+    sink.stderr(`tacet: failed: ${(error as Error).message ?? String(error)}\n`);
+    return 1;
+  }
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  process.exitCode = await runCli(process.argv.slice(2));
+}
