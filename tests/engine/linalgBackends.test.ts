@@ -91,6 +91,24 @@ function numpy(script: string, matrices: Record<string, DenseMatrix>): unknown {
 
 const pythonWithNumpy = spawnSync('/usr/bin/python3', ['-c', 'import numpy, scipy'], { encoding: 'utf8' }).status === 0;
 
+describe('native build script (scripts/build-native.mjs)', () => {
+  const script = path.resolve(import.meta.dirname, '..', '..', 'scripts', 'build-native.mjs');
+  const run = (args: string[]) =>
+    spawnSync(process.execPath, [script, ...args], { encoding: 'utf8', env: { ...process.env, TACET_SKIP_NATIVE_BUILD: '1' } });
+
+  it('as postinstall (--optional) never fails the install and says why nothing was built', () => {
+    const result = run(['--optional']);
+    expect(result.status).toBe(0);
+    expect(result.stdout).toMatch(/native addon not built: TACET_SKIP_NATIVE_BUILD=1; the engine will use its pure-JavaScript \(ml-matrix\) backend/);
+  });
+
+  it('as build:native reports the failure with a non-zero exit', () => {
+    const result = run([]);
+    expect(result.status).toBe(1);
+    expect(result.stderr).toMatch(/failed: TACET_SKIP_NATIVE_BUILD=1/);
+  });
+});
+
 describe('native backend loading', () => {
   it('reports a missing addon with a reason instead of throwing', () => {
     const missing = loadNativeBackend('/nonexistent/tacet_linalg.node');
