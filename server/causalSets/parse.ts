@@ -1,0 +1,476 @@
+import type { RegionSpec } from '../../shared/vacuum';
+import { BitRelation, causalMatrix, linkMatrix } from '../engine/order';
+import { makeRegion } from '../engine/regions';
+
+/**
+ * Parsing and validation of uploaded causal sets (pure: bytes in, typed arrays out, no I/O).
+ *
+ * Both file kinds are comma-separated text in UTF-8 (a byte-order mark is ignored). Rows are counted
+ * from 1 as lines of the file, columns from 1, so a message can be checked in any editor. Blank lines
+ * and lines starting with `#` (generator notes) are skipped but still counted.
+ */
+
+export interface FileProblem {
+  /** line of the file, from 1; null when the problem is the file as a whole */
+  row: number | null;
+  /** column from 1; null when the problem is the whole row */
+  column: number | null;
+  /** says where (row and column) and what is wrong */
+  message: string;
+}
+
+export type FileErrorCode = 'empty_file' | 'invalid_file' | 'too_large';
+
+/** A file that cannot become a causal set; `problems` lists the first few in file order. */
+export class CausalSetFileError extends Error {
+  override readonly name = 'CausalSetFileError';
+  constructor(
+    readonly code: FileErrorCode,
+    readonly problems: FileProblem[],
+    /** problems found beyond those listed (scanning stops after MAX_PROBLEMS) */
+    readonly more = 0,
+  ) {
+    super(problems.length === 0 ? 'the file is not a valid causal set' : problems[0].message + (problems.length + more > 1 ? ` (and ${problems.length + more - 1} more problem${problems.length + more > 2 ? 's' : ''})` : ''));
+  }
+}
+
+/** Enough to fix a file in one go without drowning the reader. */
+export const MAX_PROBLEMS = 20;
+
+class ProblemList {
+  readonly items: FileProblem[] = [];
+  more = 0;
+  add(row: number | null, column: number | null, what: string): void {
+    if (this.items.length >= MAX_PROBLEMS) {
+      this.more += 1;
+      return;
+    }
+    const where = row === null ? '' : column === null ? `row ${row}: ` : `row ${row}, column ${column}: `;
+    this.items.push({ row, column, message: where + what });
+  }
+  get full(): boolean {
+    return this.items.length >= MAX_PROBLEMS;
+  }
+  throwIfAny(code: FileErrorCode = 'invalid_file'): void {
+    if (this.items.length) throw new CausalSetFileError(code, this.items, this.more);
+  }
+}
+
+function fail(code: FileErrorCode, row: number | null, column: number | null, what: string): never {
+  const list = new ProblemList();
+  list.add(row, column, what);
+  throw new CausalSetFileError(code, list.items);
+}
+
+interface Line {
+  /** line number in the file, from 1 */
+  row: number;
+  cells: string[];
+}
+
+/** Decodes the upload and splits it into non-blank, non-comment lines of trimmed cells. */
+function contentLines(bytes: Uint8Array | string): Line[] {
+  let text: string;
+  if (typeof bytes === 'string') {
+    text = bytes;
+  } else {
+    if (bytes.length === 0) fail('empty_file', null, null, 'the file is empty');
+    if (bytes.includes(0)) fail('invalid_file', null, null, 'the file is not text (it contains NUL bytes); upload a CSV file');
+    try {
+      text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+    } catch {
+      fail('invalid_file', null, null, 'the file is not valid UTF-8 text; upload a CSV file');
+    }
+  }
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+  const lines: Line[] = [];
+  const raw = text.split(/\r\n|\n|\r/);
+  for (let k = 0; k < raw.length; k++) {
+    const line = raw[k].trim();
+    if (line === '' || line.startsWith('#')) continue;
+    lines.push({ row: k + 1, cells: line.split(',').map(unquote) });
+  }
+  if (lines.length === 0) fail('empty_file', null, null, 'the file is empty (no rows besides blank lines and # comments)');
+  return lines;
+}
+
+function unquote(cell: string): string {
+  const s = cell.trim();
+  return s.length >= 2 && s.startsWith('"') && s.endsWith('"') ? s.slice(1, -1).trim() : s;
+}
+
+const decimalPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+const nonFinitePattern = /^[+-]?(nan|inf|infinity)$/i;
+
+/** A finite decimal number, or the reason the cell is not one. */
+function readNumber(cell: string): number | string {
+  if (cell === '') return 'the cell is empty; expected a number';
+  if (nonFinitePattern.test(cell)) return `"${cell}" is not a finite number (NaN and Inf are not coordinates)`;
+  if (!decimalPattern.test(cell)) return `"${cell}" is not a number`;
+  const value = Number(cell);
+  if (!Number.isFinite(value)) return `"${cell}" is not a finite number (it overflows double precision)`;
+  return value;
+}
+
+/** Throws too_large with the engine's reason when n exceeds the dense limit. */
+export function checkElementCount(n: number, maxElements: number, reason: string): void {
+  if (n > maxElements) {
+    fail('too_large', null, null, `the causal set has ${n} elements, more than the engine can hold (${maxElements}): ${reason}`);
+  }
+  if (n < 2) fail('invalid_file', null, null, `a causal set needs at least 2 elements, the file has ${n}`);
+}
+
+export interface SizeLimit {
+  maxElements: number;
+  /** why the limit is what it is, for the message */
+  reason: string;
+}
+
+export interface ParsedCoordinates {
+  dimension: 2 | 4;
+  columns: string[];
+  n: number;
+  /** flat, `dimension` numbers per element, in file order */
+  points: Float64Array;
+}
+
+const headers: Record<2 | 4, string[]> = { 2: ['t', 'x'], 4: ['t', 'x', 'y', 'z'] };
+
+/**
+ * A coordinates CSV: header `t,x` (2D) or `t,x,y,z` (4D Minkowski), then one element per row. Every
+ * cell must be a finite decimal number, every row as wide as the header, no point may repeat, and
+ * when a region is given every point must lie inside it (exact membership, shared/vacuum regions).
+ */
+export function parseCoordinatesCsv(
+  bytes: Uint8Array | string,
+  options: { region?: RegionSpec; dimension?: 2 | 4; limit: SizeLimit },
+): ParsedCoordinates {
+  const lines = contentLines(bytes);
+  const [head, ...rows] = lines;
+  const names = head.cells.map((c) => c.toLowerCase());
+  const dimension = names.length === 2 && names.join(',') === 't,x' ? 2 : names.length === 4 && names.join(',') === 't,x,y,z' ? 4 : null;
+  if (dimension === null) {
+    const looksNumeric = head.cells.every((c) => typeof readNumber(c) === 'number');
+    fail(
+      'invalid_file',
+      head.row,
+      null,
+      looksNumeric
+        ? `the header is missing: the first row must name the columns, t,x for 2D or t,x,y,z for 4D (it holds numbers)`
+        : `wrong header "${head.cells.join(',')}": the columns must be t,x for 2D or t,x,y,z for 4D, in that order`,
+    );
+  }
+  if (options.dimension !== undefined && options.dimension !== dimension) {
+    fail('invalid_file', head.row, null, `the header t,${headers[dimension].slice(1).join(',')} is ${dimension}D but the form says ${options.dimension}D`);
+  }
+  if (rows.length === 0) fail('empty_file', null, null, 'the file has a header but no elements');
+  checkElementCount(rows.length, options.limit.maxElements, options.limit.reason);
+
+  const region = options.region ? makeRegion(options.region) : null;
+  if (region && region.dimension !== dimension) {
+    fail('invalid_file', head.row, null, `the header is ${dimension}D but the region ${options.region!.kind} is ${region.dimension}D`);
+  }
+  const columns = headers[dimension];
+  const points = new Float64Array(rows.length * dimension);
+  const problems = new ProblemList();
+  const seen = new Map<string, number>();
+  const event = new Float64Array(dimension);
+  for (let e = 0; e < rows.length && !problems.full; e++) {
+    const { row, cells } = rows[e];
+    if (cells.length !== dimension) {
+      problems.add(row, null, `${cells.length} column${cells.length === 1 ? '' : 's'}, but the header ${columns.join(',')} has ${dimension}`);
+      continue;
+    }
+    let rowOk = true;
+    for (let c = 0; c < dimension; c++) {
+      const value = readNumber(cells[c]);
+      if (typeof value === 'string') {
+        problems.add(row, c + 1, `(${columns[c]}) ${value}`);
+        rowOk = false;
+      } else {
+        event[c] = value;
+      }
+    }
+    if (!rowOk) continue;
+    points.set(event, e * dimension);
+    const key = Array.from(event).join(',');
+    const earlier = seen.get(key);
+    if (earlier !== undefined) {
+      problems.add(row, null, `duplicate point: (${formatEvent(columns, event)}) already appears in row ${earlier}`);
+      continue;
+    }
+    seen.set(key, row);
+    if (region && !region.contains(event)) {
+      problems.add(row, null, `the point (${formatEvent(columns, event)}) lies outside the stated region (${options.region!.kind})`);
+    }
+  }
+  problems.throwIfAny();
+  return { dimension, columns, n: rows.length, points };
+}
+
+function formatEvent(columns: string[], event: ArrayLike<number>): string {
+  return columns.map((name, c) => `${name} = ${event[c]}`).join(', ');
+}
+
+export interface ParsedRelations {
+  n: number;
+  /** rows `i,j` read (duplicates included) */
+  pairsListed: number;
+  /** the transitive closure: bit j of row i set iff i ≺ j */
+  causal: BitRelation;
+}
+
+/**
+ * A relation list: optional header `i,j`, then one pair per row, `i,j` meaning i ≺ j, with labels
+ * 0..count−1. Checks each cell, irreflexivity and acyclicity, then returns the transitive closure.
+ */
+export function parseRelationList(bytes: Uint8Array | string, options: { count: number; limit: SizeLimit }): ParsedRelations {
+  const { count } = options;
+  checkElementCount(count, options.limit.maxElements, options.limit.reason);
+  const lines = contentLines(bytes);
+  let start = 0;
+  const first = lines[0];
+  if (first.cells.map((c) => c.toLowerCase()).join(',') === 'i,j') {
+    start = 1;
+  } else if (first.cells.some((c) => !/^[+-]?\d/.test(c) && !nonFinitePattern.test(c))) {
+    fail('invalid_file', first.row, null, `wrong header "${first.cells.join(',')}": a relation list has the header i,j or none`);
+  }
+  const pairs = lines.length - start;
+  const from = new Int32Array(pairs);
+  const to = new Int32Array(pairs);
+  const rowOf = new Int32Array(pairs);
+  const problems = new ProblemList();
+  for (let p = 0; p < pairs && !problems.full; p++) {
+    const { row, cells } = lines[start + p];
+    rowOf[p] = row;
+    if (cells.length !== 2) {
+      problems.add(row, null, `${cells.length} column${cells.length === 1 ? '' : 's'}, but a relation row has 2 (i,j: i precedes j)`);
+      continue;
+    }
+    const ends: number[] = [];
+    for (let c = 0; c < 2; c++) {
+      const cell = cells[c];
+      const name = c === 0 ? 'i' : 'j';
+      let what: string | null = null;
+      if (cell === '') what = 'the cell is empty; expected an element label';
+      else if (nonFinitePattern.test(cell)) what = `"${cell}" is not a finite number; expected an element label`;
+      else if (/^\d+$/.test(cell)) {
+        const value = Number(cell);
+        if (value >= count) what = `index out of range: element ${cell} does not exist (labels run from 0 to ${count - 1})`;
+        else ends.push(value);
+      } else if (/^-\d+$/.test(cell)) what = `index out of range: element ${cell} does not exist (labels run from 0 to ${count - 1})`;
+      else if (decimalPattern.test(cell)) what = `"${cell}" is not a whole number; element labels are 0, 1, 2, …`;
+      else what = `"${cell}" is not a number`;
+      if (what) problems.add(row, c + 1, `(${name}) ${what}`);
+    }
+    if (ends.length !== 2) continue;
+    if (ends[0] === ends[1]) {
+      problems.add(row, null, `element ${ends[0]} cannot precede itself (a causal order is irreflexive)`);
+      continue;
+    }
+    from[p] = ends[0];
+    to[p] = ends[1];
+  }
+  problems.throwIfAny();
+  return { n: count, pairsListed: pairs, causal: transitiveClosure(count, from, to, rowOf) };
+}
+
+/**
+ * Transitive closure of the pairs from[p] ≺ to[p] on `count` elements, bit-packed. A topological order
+ * comes first (Kahn 1962); if some elements never become free the pairs contain a cycle, reported with
+ * the rows it is made of. Then, in reverse topological order, each element's future is the union of
+ * its successors and their futures — one 32-bit word at a time.
+ */
+export function transitiveClosure(count: number, from: Int32Array, to: Int32Array, rowOf?: Int32Array): BitRelation {
+  const pairs = from.length;
+  const outStart = new Int32Array(count + 1);
+  for (let p = 0; p < pairs; p++) outStart[from[p] + 1] += 1;
+  for (let i = 0; i < count; i++) outStart[i + 1] += outStart[i];
+  const outPair = new Int32Array(pairs);
+  const fill = outStart.slice(0, count);
+  for (let p = 0; p < pairs; p++) outPair[fill[from[p]]++] = p;
+
+  const indegree = new Int32Array(count);
+  for (let p = 0; p < pairs; p++) indegree[to[p]] += 1;
+  const topo = new Int32Array(count);
+  let head = 0;
+  let tail = 0;
+  for (let i = 0; i < count; i++) if (indegree[i] === 0) topo[tail++] = i;
+  while (head < tail) {
+    const u = topo[head++];
+    for (let k = outStart[u]; k < outStart[u + 1]; k++) {
+      const v = to[outPair[k]];
+      if (--indegree[v] === 0) topo[tail++] = v;
+    }
+  }
+  if (tail < count) throw cycleError(count, from, to, rowOf, indegree);
+
+  const closed = new BitRelation(count);
+  const w = closed.wordsPerRow;
+  const words = closed.words;
+  for (let q = count - 1; q >= 0; q--) {
+    const u = topo[q];
+    const a = u * w;
+    for (let k = outStart[u]; k < outStart[u + 1]; k++) {
+      const v = to[outPair[k]];
+      const b = v * w;
+      for (let x = 0; x < w; x++) words[a + x] |= words[b + x];
+      words[a + (v >>> 5)] |= 1 << (v & 31);
+    }
+  }
+  return closed;
+}
+
+/**
+ * Every element left with a positive in-degree after Kahn's pass has a predecessor that is also left,
+ * so walking backwards from one of them must come round to an element already visited: that is a cycle.
+ */
+function cycleError(count: number, from: Int32Array, to: Int32Array, rowOf: Int32Array | undefined, indegree: Int32Array): CausalSetFileError {
+  const remainingPredecessorPair = new Int32Array(count).fill(-1);
+  for (let p = 0; p < from.length; p++) {
+    if (indegree[from[p]] > 0 && indegree[to[p]] > 0) remainingPredecessorPair[to[p]] = p;
+  }
+  let start = 0;
+  while (indegree[start] === 0) start++;
+  const visitedAt = new Map<number, number>();
+  const walk: number[] = [];
+  let node = start;
+  while (!visitedAt.has(node)) {
+    visitedAt.set(node, walk.length);
+    const p = remainingPredecessorPair[node];
+    walk.push(p);
+    node = from[p];
+  }
+  // walk holds pairs leading backwards; the cycle is the part from the repeated element on
+  const cyclePairs = walk.slice(visitedAt.get(node)!).reverse();
+  const elements = cyclePairs.map((p) => from[p]);
+  elements.push(elements[0]);
+  const rows = cyclePairs.map((p) => (rowOf ? rowOf[p] : p + 1)).sort((a, b) => a - b);
+  const rowText = rows.length === 1 ? `row ${rows[0]}` : `rows ${rows.slice(0, -1).join(', ')} and ${rows[rows.length - 1]}`;
+  const message = `${rowText} form a cycle ${elements.join(' ≺ ')}; a causal order has no cycles`;
+  return new CausalSetFileError('invalid_file', [{ row: rows[0], column: null, message }]);
+}
+
+export interface OrderSummary {
+  relations: number;
+  links: number;
+  orderingFraction: number;
+  height: number;
+  minimal: number;
+  maximal: number;
+  /** elements per layer, layer k = elements whose longest chain from below has k elements */
+  layerSizes: number[];
+}
+
+/**
+ * Order statistics of a closed relation: relations R, links, ordering fraction R / (N choose 2)
+ * (Myrheim 1978; Meyer 1988), the height (elements in a longest chain) and the layers by longest chain
+ * from below. Elements are visited in a linear extension (by size of the past), so each element's
+ * longest chain is known before anything in its future needs it.
+ */
+export function orderSummary(causal: BitRelation): OrderSummary {
+  const n = causal.size;
+  const past = causal.transpose();
+  const relations = causal.count();
+  const order = linearExtension(causal, past);
+  const chain = new Int32Array(n);
+  let height = 0;
+  for (const j of order) {
+    let best = 0;
+    rowForEach(past, j, (i) => {
+      if (chain[i] > best) best = chain[i];
+    });
+    chain[j] = best + 1;
+    if (chain[j] > height) height = chain[j];
+  }
+  const layerSizes = new Array<number>(height).fill(0);
+  for (let i = 0; i < n; i++) layerSizes[chain[i] - 1] += 1;
+  let minimal = 0;
+  let maximal = 0;
+  for (let i = 0; i < n; i++) {
+    if (rowIsEmpty(past, i)) minimal += 1;
+    if (rowIsEmpty(causal, i)) maximal += 1;
+  }
+  return {
+    relations,
+    links: linkMatrix(causal).count(),
+    orderingFraction: n > 1 ? relations / ((n * (n - 1)) / 2) : 0,
+    height,
+    minimal,
+    maximal,
+    layerSizes,
+  };
+}
+
+/**
+ * A labelling that respects ≺, read off a closed relation: i ≺ j makes the past of j strictly contain
+ * the past of i (it holds i as well), so sorting by the size of the past is a linear extension.
+ */
+export function linearExtension(causal: BitRelation, past: BitRelation = causal.transpose()): Int32Array {
+  const n = causal.size;
+  const size = new Int32Array(n);
+  for (let j = 0; j < n; j++) {
+    let s = 0;
+    rowForEach(past, j, () => {
+      s += 1;
+    });
+    size[j] = s;
+  }
+  return Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => size[a] - size[b] || a - b);
+}
+
+function rowForEach(rel: BitRelation, i: number, visit: (j: number) => void): void {
+  const w = rel.wordsPerRow;
+  for (let k = 0; k < w; k++) {
+    let bits = rel.words[i * w + k];
+    while (bits !== 0) {
+      const low = bits & -bits;
+      visit((k << 5) + (31 - Math.clz32(low)));
+      bits ^= low;
+    }
+  }
+}
+
+function rowIsEmpty(rel: BitRelation, i: number): boolean {
+  const w = rel.wordsPerRow;
+  for (let k = 0; k < w; k++) if (rel.words[i * w + k] !== 0) return false;
+  return true;
+}
+
+/** The causal order of parsed coordinates (periodic x on the cylinder), for the summary on import. */
+export function coordinatesOrder(points: Float64Array, dimension: 2 | 4, region?: RegionSpec): BitRelation {
+  const periodX = region ? makeRegion(region).periodX : undefined;
+  return causalMatrix(points, dimension, periodX);
+}
+
+/** Closed relation → bytes: the BitRelation words (rows of ⌈N/32⌉ words), each uint32 little-endian. */
+export function packRelation(causal: BitRelation): Buffer {
+  const out = Buffer.alloc(causal.words.length * 4);
+  for (let k = 0; k < causal.words.length; k++) out.writeUInt32LE(causal.words[k], k * 4);
+  return out;
+}
+
+export function unpackRelation(bytes: Uint8Array, n: number): BitRelation {
+  const rel = new BitRelation(n);
+  if (bytes.length !== rel.words.length * 4) {
+    throw new RangeError(`a packed relation on ${n} elements has ${rel.words.length * 4} bytes, got ${bytes.length}`);
+  }
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  for (let k = 0; k < rel.words.length; k++) rel.words[k] = view.getUint32(k * 4, true);
+  return rel;
+}
+
+/** Coordinates → bytes: float64 little-endian, element after element. */
+export function packPoints(points: Float64Array): Buffer {
+  const out = Buffer.alloc(points.length * 8);
+  for (let k = 0; k < points.length; k++) out.writeDoubleLE(points[k], k * 8);
+  return out;
+}
+
+export function unpackPoints(bytes: Uint8Array): Float64Array {
+  if (bytes.length % 8 !== 0) throw new RangeError(`packed points must be a multiple of 8 bytes, got ${bytes.length}`);
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const out = new Float64Array(bytes.length / 8);
+  for (let k = 0; k < out.length; k++) out[k] = view.getFloat64(k * 8, true);
+  return out;
+}
