@@ -157,3 +157,26 @@ describe('password reset by e-mail link', () => {
     expect(res.body.error.issues[0].path).toBe('password');
   });
 });
+
+describe('rate limits', () => {
+  it('stops password guessing for one e-mail after 10 failures (429), not other accounts', async () => {
+    const user = await signUp(ctx.app);
+    const other = await signUp(ctx.app);
+    for (let attempt = 1; attempt <= 10; attempt++) {
+      const res = await request(ctx.app).post('/api/auth/login').send({ email: user.email, password: `guess-number-${attempt}` });
+      expect(res.status).toBe(401);
+    }
+    const blocked = await request(ctx.app).post('/api/auth/login').send({ email: user.email, password: testPassword });
+    expect(blocked.status).toBe(429);
+    expect(apiErrorSchema.parse(blocked.body).error.code).toBe('rate_limited');
+    expect((await request(ctx.app).post('/api/auth/login').send({ email: other.email, password: testPassword })).status).toBe(200);
+  });
+
+  it('caps reset e-mails per address', async () => {
+    const user = await signUp(ctx.app);
+    const statuses: number[] = [];
+    for (let i = 0; i < 6; i++) statuses.push((await request(ctx.app).post('/api/auth/password-reset').send({ email: user.email })).status);
+    expect(statuses).toEqual([202, 202, 202, 202, 202, 429]);
+    expect(await ctx.mailTo(user.email)).toHaveLength(5);
+  });
+});

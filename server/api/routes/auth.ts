@@ -10,6 +10,7 @@ import {
 import type { Config } from '../../config';
 import { requireAuth } from '../context';
 import { authenticate } from '../middleware/auth';
+import { loginRateLimit, passwordResetRateLimit } from '../middleware/rate-limit';
 import type { AuthService } from '../services/auth-service';
 
 function cookieOptions(config: Config) {
@@ -33,7 +34,7 @@ export function authRoutes(deps: { config: Config; auth: AuthService }): Router 
     res.status(201).json(session);
   });
 
-  router.post('/auth/login', async (req, res) => {
+  router.post('/auth/login', loginRateLimit(), async (req, res) => {
     const session = await auth.login(loginRequestSchema.parse(req.body));
     setSessionCookie(res, session.token);
     res.json(session);
@@ -45,7 +46,7 @@ export function authRoutes(deps: { config: Config; auth: AuthService }): Router 
     res.status(204).end();
   });
 
-  router.post('/auth/password-reset', async (req, res) => {
+  router.post('/auth/password-reset', passwordResetRateLimit(), async (req, res) => {
     await auth.requestPasswordReset(passwordResetRequestSchema.parse(req.body).email);
     res.status(202).json({ ok: true });
   });
