@@ -85,5 +85,5 @@ set +e
 wait -n "${pids[@]}"
 code=$?
 set -e
-echo "[start] a process exited (code $code); stopping the others"
+echo "[start] the API or the worker ended (exit code $code); stopping the rest"
 exit "$code"
