@@ -5,14 +5,18 @@ import express, { type Express } from 'express';
 import type { AppDeps } from './api/context';
 import { apiNotFound, errorHandler } from './api/middleware/errors';
 import { authRoutes } from './api/routes/auth';
+import { cutRuleRoutes } from './api/routes/cutRules';
 import { healthRoutes } from './api/routes/health';
 import { invitationRoutes } from './api/routes/invitations';
 import { outboxRoutes } from './api/routes/outbox';
+import { runRoutes } from './api/routes/runs';
 import { teamRoutes } from './api/routes/team';
 import { createAuthService } from './api/services/auth-service';
+import { createCutRuleService } from './api/services/cut-rule-service';
 import { createHealthService } from './api/services/health-service';
 import { createInvitationService } from './api/services/invitation-service';
 import { createOutboxService } from './api/services/outbox-service';
+import { createRunService } from './api/services/run-service';
 import { createTeamService } from './api/services/team-service';
 
 export type { AppDeps } from './api/context';
@@ -24,6 +28,8 @@ export function createApp(deps: AppDeps): Express {
   const auth = createAuthService({ config, dataSource, mailer, invitations });
   const teams = createTeamService({ dataSource });
   const outbox = createOutboxService({ dataSource });
+  const runs = createRunService({ dataSource, computeQueue });
+  const cutRules = createCutRuleService({ dataSource });
   const health = createHealthService({ dataSource, redis, computeQueue, version: config.version });
 
   const app = express();
@@ -41,6 +47,8 @@ export function createApp(deps: AppDeps): Express {
   api.use(authRoutes({ config, auth }));
   api.use(teamRoutes({ auth, teams, invitations }));
   api.use(invitationRoutes({ auth, invitations }));
+  api.use(runRoutes({ auth, teams, runs }));
+  api.use(cutRuleRoutes({ auth, teams, cutRules }));
   if (config.mode === 'development') api.use(outboxRoutes({ auth, teams, outbox }));
   api.use(apiNotFound);
   api.use(errorHandler);

@@ -1,9 +1,10 @@
 import { DataSource } from 'typeorm';
 import { platformEntities } from './entities';
+import { runEntities } from './run-entities';
 import { migrations } from './migrations/index';
 
 /** Every EntitySchema the API and the worker use; later features append theirs here. */
-const allEntities = [...platformEntities];
+const allEntities = [...platformEntities, ...runEntities];
 
 export function createDataSource(databaseUrl: string): DataSource {
   return new DataSource({

@@ -1,7 +1,8 @@
 import { Platform1764633600000 } from './1764633600000-platform';
+import { Runs1764720000000 } from './1764720000000-runs';
 
 /**
  * Every migration, oldest first. Add new ones at the end; never edit one that has shipped.
  * The class name ends in the timestamp TypeORM orders by.
  */
-export const migrations = [Platform1764633600000];
+export const migrations = [Platform1764633600000, Runs1764720000000];

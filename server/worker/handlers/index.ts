@@ -2,6 +2,7 @@ import type { Job } from 'bullmq';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../../config';
 import type { Mailer } from '../../mail/mailer';
+import { vacuumRunHandler, vacuumRunJobName } from './vacuumRun';
 
 /** What a handler may use besides the job itself. */
 export interface WorkerContext {
@@ -21,4 +22,6 @@ export type JobHandler = (job: Job, context: WorkerContext) => Promise<unknown>;
  * folder; the numerics stay in server/engine, the handler only loads input, calls the engine and
  * stores results.
  */
-export const jobHandlers: Record<string, JobHandler> = {};
+export const jobHandlers: Record<string, JobHandler> = {
+  [vacuumRunJobName]: vacuumRunHandler,
+};

@@ -1,0 +1,313 @@
+import type { Queue } from 'bullmq';
+import type { DataSource } from 'typeorm';
+import {
+  createRunRequestSchema,
+  reanalyseRunRequestSchema,
+  type ListRunsQuery,
+  type RunDetail,
+  type RunPoints,
+  type RunResult,
+  type RunSummary,
+} from '@shared/runs';
+import { formatTruncationRule, type SprinklingSpec, type SubregionSpec, type TruncationRule } from '@shared/vacuum';
+import { decodeFloat64, decodeInt32 } from '../../db/arrays';
+import * as runs from '../../db/repositories/runs';
+import type { RunWithAuthor } from '../../db/repositories/runs';
+import type { UserRow } from '../../db/entities';
+import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import type { TeamContext } from '../context';
+import { conflict, HttpError, notFound } from '../errors';
+
+export const vacuumRunJobName = 'vacuum-run';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/**
+ * The request stored with a run. A fresh run keeps the validated POST body; a re-analysis keeps its
+ * own settings, the parent's sprinkling (for provenance and the region) and `reusedPoints`, and
+ * carries the parent's points in its own row.
+ */
+export interface StoredRunRequest {
+  title?: string;
+  mass: number;
+  truncation: TruncationRule;
+  subregion?: SubregionSpec;
+  doubleTruncation: boolean;
+  sprinkling?: SprinklingSpec;
+  reusedPoints?: { runId: string; N: number; density: number | null };
+}
+
+/** The engine request for a stored run; `points` are the run's stored points when it reuses some. */
+export function toEngineRequest(request: StoredRunRequest, dimension: 2 | 4, points: Float64Array | null): Omit<VacuumRequest, 'backend'> {
+  const settings = {
+    mass: request.mass,
+    truncation: request.truncation,
+    subregion: request.subregion,
+    doubleTruncation: request.doubleTruncation,
+  };
+  if (request.reusedPoints) {
+    if (!points) throw new EngineInputError('this re-analysis has lost the points it was to reuse');
+    return {
+      ...settings,
+      source: {
+        kind: 'points',
+        points,
+        dimension,
+        density: request.reusedPoints.density ?? undefined,
+        region: request.sprinkling?.region,
+      },
+    };
+  }
+  if (!request.sprinkling) throw new EngineInputError('the run has neither a sprinkling nor stored points');
+  return { ...settings, source: { kind: 'sprinkling', sprinkling: request.sprinkling } };
+}
+
+/** EngineInputError → 422; the dense limit gets its own code so the form can say so beside N. */
+function validateForEngine(request: Omit<VacuumRequest, 'backend'>): void {
+  try {
+    validateVacuumRequest(request);
+  } catch (error) {
+    if (error instanceof EngineInputError) {
+      const tooLarge = /exceeds the dense limit/.test(error.message);
+      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', error.message);
+    }
+    throw error;
+  }
+}
+
+const id8 = (id: string) => id.slice(0, 8);
+
+export function toRunSummary(row: RunWithAuthor): RunSummary {
+  return {
+    id: row.id,
+    title: row.title,
+    status: row.status,
+    stage: row.stage,
+    percent: row.percent,
+    author: { id: row.authorId, name: row.authorName },
+    createdAt: row.createdAt.toISOString(),
+    startedAt: row.startedAt ? row.startedAt.toISOString() : null,
+    finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+    dimension: row.dimension,
+    regionKind: row.regionKind,
+    N: row.n ?? row.requestedN,
+    truncation: row.truncationText,
+    S: row.entropyS,
+    parentRunId: row.parentRunId,
+  };
+}
+
+export type RunService = ReturnType<typeof createRunService>;
+
+export function createRunService(deps: { dataSource: DataSource; computeQueue: Queue }) {
+  const { dataSource, computeQueue } = deps;
+  const m = dataSource.manager;
+
+  async function findOrThrow(team: TeamContext, id: string): Promise<RunWithAuthor> {
+    const row = uuidPattern.test(id) ? await runs.findRunInTeam(m, team.id, id.toLowerCase()) : null;
+    if (!row) throw notFound('Run not found.');
+    return row;
+  }
+
+  /** Stores the row, then enqueues; if the queue refuses, the row is marked failed with the reason. */
+  async function storeAndEnqueue(values: runs.NewRun): Promise<string> {
+    const id = await runs.insertRun(m, values);
+    try {
+      await computeQueue.add(vacuumRunJobName, { runId: id }, { jobId: id, attempts: 1, removeOnComplete: 1000, removeOnFail: 1000 });
+    } catch (error) {
+      const reason = `The run could not be queued: ${(error as Error).message}`;
+      await runs.failRun(m, id, reason);
+      throw new HttpError(503, 'queue_unavailable', `${reason}. It is stored as failed; try again when the queue is back.`);
+    }
+    return id;
+  }
+
+  async function detail(row: RunWithAuthor): Promise<RunDetail> {
+    let result: RunResult | null = null;
+    if (row.status === 'done' && row.summary) {
+      const arrays = await runs.loadRunArrays(m, row.teamId, row.id, ['eigenvalues', 'generalizedEigenvalues']);
+      const eigenvalues = Array.from(decodeFloat64(arrays!.eigenvalues!));
+      const s = row.summary;
+      result = {
+        N: row.n!,
+        density: s.density,
+        volume: s.volume,
+        relations: s.relations,
+        links: s.links,
+        eigenvalues,
+        continuum: continuumFor(row, eigenvalues.length),
+        cutoff: s.cutoff,
+        modesKept: s.modesKept,
+        knee: s.knee ?? null,
+        diagnostics: s.diagnostics as RunResult['diagnostics'],
+        entropy: s.entropy
+          ? {
+              ...s.entropy,
+              generalizedEigenvalues: arrays!.generalizedEigenvalues ? Array.from(decodeFloat64(arrays!.generalizedEigenvalues)) : [],
+            }
+          : null,
+        backend: row.backend ?? '',
+        engineVersion: row.engineVersion ?? '',
+        timings: s.timings,
+      };
+    }
+    return {
+      ...toRunSummary(row),
+      request: row.request,
+      error: row.error,
+      cancelRequested: row.cancelRequested,
+      result,
+    };
+  }
+
+  function continuumFor(row: RunWithAuthor, count: number): number[] | null {
+    return row.regionKind === 'diamond2d' && row.n ? Array.from(continuumDiamondSpectrum(row.n, count)) : null;
+  }
+
+  async function removeQueuedJob(id: string): Promise<void> {
+    // The row is already cancelled, so a worker that takes the job anyway skips it; removal only tidies.
+    try {
+      await (await computeQueue.getJob(id))?.remove();
+    } catch {
+      /* locked by a worker that is about to see the cancelled row */
+    }
+  }
+
+  async function doneRunWithArrays(team: TeamContext, id: string) {
+    const row = await findOrThrow(team, id);
+    if (row.status !== 'done') {
+      throw conflict('run_not_done', `The run is ${row.status}; its spectrum and points are available once it is done.`);
+    }
+    return row;
+  }
+
+  return {
+    async create(team: TeamContext, author: UserRow, body: unknown): Promise<{ id: string }> {
+      const request = createRunRequestSchema.parse(body);
+      if (request.causalSetId !== undefined || !request.sprinkling) {
+        throw new HttpError(422, 'invalid_request', `No imported causal set ${request.causalSetId} exists in this team; give a sprinkling.`);
+      }
+      const sprinkling = request.sprinkling;
+      const stored: StoredRunRequest = {
+        ...(request.title ? { title: request.title } : {}),
+        mass: request.mass,
+        truncation: request.truncation,
+        ...(request.subregion ? { subregion: request.subregion } : {}),
+        doubleTruncation: request.doubleTruncation,
+        sprinkling,
+      };
+      validateForEngine(toEngineRequest(stored, 2, null));
+      const region = makeRegion(sprinkling.region);
+      const expectedN = sprinkling.count ?? Math.round((sprinkling.density as number) * region.volume);
+      return {
+        id: await storeAndEnqueue({
+          teamId: team.id,
+          authorId: author.id,
+          title: request.title || null,
+          request: stored as unknown as Record<string, unknown>,
+          dimension: region.dimension,
+          regionKind: sprinkling.region.kind,
+          requestedN: expectedN,
+          truncationText: formatTruncationRule(request.truncation),
+          parentRunId: null,
+        }),
+      };
+    },
+
+    async list(team: TeamContext, query: ListRunsQuery): Promise<{ items: RunSummary[]; total: number; page: number; pageSize: number }> {
+      const { rows, total } = await runs.listRunsOfTeam(m, team.id, query);
+      return { items: rows.map(toRunSummary), total, page: query.page, pageSize: query.pageSize };
+    },
+
+    async get(team: TeamContext, id: string): Promise<RunDetail> {
+      return detail(await findOrThrow(team, id));
+    },
+
+    async cancel(team: TeamContext, id: string): Promise<RunDetail> {
+      const row = await findOrThrow(team, id);
+      if (await runs.cancelQueuedRun(m, team.id, row.id)) {
+        await removeQueuedJob(row.id);
+      } else if (!(await runs.requestCancelOfRunningRun(m, team.id, row.id))) {
+        const now = await findOrThrow(team, id);
+        throw conflict('run_finished', `The run is already ${now.status}; only queued or running runs can be cancelled.`);
+      }
+      return detail(await findOrThrow(team, id));
+    },
+
+    async remove(team: TeamContext, id: string): Promise<void> {
+      const row = await findOrThrow(team, id);
+      // A queued run is cancelled first so no worker starts it; a running one notices the missing row.
+      if (await runs.cancelQueuedRun(m, team.id, row.id)) await removeQueuedJob(row.id);
+      else await runs.requestCancelOfRunningRun(m, team.id, row.id);
+      if (!(await runs.deleteRun(m, team.id, row.id))) throw notFound('Run not found.');
+    },
+
+    async reanalyse(team: TeamContext, author: UserRow, id: string, body: unknown): Promise<{ id: string }> {
+      const changes = reanalyseRunRequestSchema.parse(body);
+      const parent = await doneRunWithArrays(team, id);
+      const arrays = await runs.loadRunArrays(m, team.id, parent.id, ['points']);
+      if (!arrays?.points) throw conflict('points_missing', 'The run has no stored points to re-analyse.');
+      const base = parent.request as unknown as StoredRunRequest;
+      const subregion = changes.subregion === null ? undefined : (changes.subregion ?? base.subregion);
+      const title = changes.title || (parent.title ? `${parent.title} (re-analysis)` : `Re-analysis of ${id8(parent.id)}`);
+      const stored: StoredRunRequest = {
+        title,
+        mass: changes.mass ?? base.mass,
+        truncation: changes.truncation ?? base.truncation,
+        ...(subregion ? { subregion } : {}),
+        // a parent's double truncation lapses with its subregion unless asked for again
+        doubleTruncation: changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false),
+        ...(base.sprinkling ? { sprinkling: base.sprinkling } : {}),
+        reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
+      };
+      validateForEngine(toEngineRequest(stored, parent.dimension, decodeFloat64(arrays.points)));
+      return {
+        id: await storeAndEnqueue({
+          teamId: team.id,
+          authorId: author.id,
+          title,
+          request: stored as unknown as Record<string, unknown>,
+          dimension: parent.dimension,
+          regionKind: parent.regionKind,
+          requestedN: parent.n,
+          truncationText: formatTruncationRule(stored.truncation),
+          parentRunId: parent.id,
+          points: arrays.points,
+        }),
+      };
+    },
+
+    async points(team: TeamContext, id: string): Promise<RunPoints & { id: string }> {
+      const row = await findOrThrow(team, id);
+      const arrays = await runs.loadRunArrays(m, team.id, row.id, ['points', 'subregionElements']);
+      if (!arrays?.points) {
+        throw conflict('points_not_ready', `The run is ${row.status}; its points are stored once it has sprinkled them.`);
+      }
+      const flat = decodeFloat64(arrays.points);
+      const d = row.dimension;
+      const points: number[][] = [];
+      for (let i = 0; i < flat.length / d; i++) points.push(Array.from(flat.subarray(i * d, (i + 1) * d)));
+      return {
+        id: row.id,
+        dimension: d,
+        columns: d === 2 ? ['t', 'x'] : ['t', 'x', 'y', 'z'],
+        points,
+        subregionElements: arrays.subregionElements ? Array.from(decodeInt32(arrays.subregionElements)) : null,
+      };
+    },
+
+    async spectrum(team: TeamContext, id: string) {
+      const row = await doneRunWithArrays(team, id);
+      const arrays = await runs.loadRunArrays(m, team.id, row.id, ['eigenvalues']);
+      const eigenvalues = Array.from(decodeFloat64(arrays!.eigenvalues!));
+      return {
+        id: row.id,
+        eigenvalues,
+        continuum: continuumFor(row, eigenvalues.length),
+        cutoff: row.summary!.cutoff,
+        modesKept: row.summary!.modesKept,
+        N: row.n!,
+      };
+    },
+  };
+}
