@@ -1,5 +1,10 @@
 import { createBrowserRouter, Navigate } from 'react-router';
 import { AccountPage } from '../features/account/routes/AccountPage';
+import { CutRulesPage } from '../features/cutRules/routes/CutRulesPage';
+import { ComparePage } from '../features/runs/routes/ComparePage';
+import { NewRunPage } from '../features/runs/routes/NewRunPage';
+import { RunPage } from '../features/runs/routes/RunPage';
+import { RunsPage } from '../features/runs/routes/RunsPage';
 import { ResetConfirmPage } from '../features/auth/routes/ResetConfirmPage';
 import { ResetRequestPage } from '../features/auth/routes/ResetRequestPage';
 import { SignInPage } from '../features/auth/routes/SignInPage';
@@ -24,8 +29,12 @@ export const router = createBrowserRouter([
       {
         element: <AppShell />,
         children: [
-          // The start page is the team until runs exist (issue 4 makes it /runs).
-          { index: true, element: <Navigate to="/team" replace /> },
+          { index: true, element: <Navigate to="/runs" replace /> },
+          { path: '/runs', element: <RunsPage /> },
+          { path: '/runs/new', element: <NewRunPage /> },
+          { path: '/runs/compare', element: <ComparePage /> },
+          { path: '/runs/:runId', element: <RunPage /> },
+          { path: '/cut-rules', element: <CutRulesPage /> },
           { path: '/team', element: <TeamPage /> },
           { path: '/outbox', element: <OutboxPage /> },
           { path: '/account', element: <AccountPage /> },

@@ -17,6 +17,7 @@ export const queryKeys = {
     list: (teamId: string, filters: Record<string, unknown> = {}) =>
       [...queryKeys.runs.all(teamId), 'list', filters] as const,
     detail: (teamId: string, runId: string) => [...queryKeys.runs.all(teamId), 'detail', runId] as const,
+    points: (teamId: string, runId: string) => [...queryKeys.runs.all(teamId), 'points', runId] as const,
   },
   studies: {
     all: (teamId: string) => [...queryKeys.teamScope(teamId), 'studies'] as const,

@@ -1,0 +1,73 @@
+import Plotly from 'plotly.js-dist-min';
+import { useRef, useState } from 'react';
+import { baseLayout, Plot } from '../../../lib/plotly';
+import { Button } from '../../../ui/Button';
+
+interface PlotFigureProps {
+  /** accessible name of the figure and the start of the downloaded file's name */
+  title: string;
+  fileName: string;
+  data: Record<string, unknown>[];
+  layout: Record<string, unknown>;
+  height?: number;
+  caption?: React.ReactNode;
+}
+
+/**
+ * One Tacet figure: the plot in the shared palette, a caption, and PNG/SVG downloads of exactly what
+ * is shown (Plotly.downloadImage of the live graph, so zoom and hidden traces carry over).
+ */
+export function PlotFigure({ title, fileName, data, layout, height = 420, caption }: PlotFigureProps) {
+  const graph = useRef<HTMLElement | null>(null);
+  const [error, setError] = useState<string | null>(null);
+
+  async function download(format: 'png' | 'svg') {
+    if (!graph.current) return;
+    setError(null);
+    try {
+      await Plotly.downloadImage(graph.current as Plotly.PlotlyHTMLElement, {
+        format,
+        filename: fileName,
+        width: graph.current.clientWidth || 900,
+        height,
+        ...(format === 'png' ? { scale: 2 } : {}),
+      } as Plotly.DownloadImgopts);
+    } catch (cause) {
+      setError(`The ${format.toUpperCase()} could not be made: ${cause instanceof Error ? cause.message : String(cause)}`);
+    }
+  }
+
+  return (
+    <figure aria-label={title} className="flex flex-col gap-2" data-testid={`figure-${fileName}`}>
+      <Plot
+        data={data as Plotly.Data[]}
+        layout={baseLayout({ height, autosize: true, ...layout }) as Partial<Plotly.Layout>}
+        config={{ displaylogo: false, responsive: true, modeBarButtonsToRemove: ['toImage', 'lasso2d', 'select2d'] }}
+        useResizeHandler
+        style={{ width: '100%', height }}
+        onInitialized={(_figure, div) => {
+          graph.current = div;
+        }}
+        onUpdate={(_figure, div) => {
+          graph.current = div;
+        }}
+      />
+      <figcaption className="flex flex-wrap items-baseline justify-between gap-4 border-t border-rule pt-2 text-xs text-ink-soft">
+        <span>{caption}</span>
+        <span className="flex gap-3 whitespace-nowrap">
+          <Button variant="quiet" className="text-xs" onClick={() => download('png')}>
+            PNG
+          </Button>
+          <Button variant="quiet" className="text-xs" onClick={() => download('svg')}>
+            SVG
+          </Button>
+        </span>
+      </figcaption>
+      {error && (
+        <p role="alert" className="text-xs text-danger">
+          {error}
+        </p>
+      )}
+    </figure>
+  );
+}

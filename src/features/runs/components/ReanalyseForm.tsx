@@ -1,0 +1,119 @@
+import { useState, type FormEvent } from 'react';
+import { useNavigate } from 'react-router';
+import type { RunDetail } from '@shared/runs';
+import type { TruncationRule } from '@shared/vacuum';
+import { isApiError } from '../../../lib/apiClient';
+import { useFormErrors } from '../../../lib/forms';
+import { Button } from '../../../ui/Button';
+import { FormError, TextField } from '../../../ui/Field';
+import { useCutRules } from '../../cutRules/api/cutRules';
+import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
+import { defaultTruncation, truncationToForm } from '../../cutRules/lib/truncationForm';
+import { useReanalyseRun } from '../api/runs';
+import { defaultRunForm, reanalyseRequestFromForm, serverFieldErrors, type ReanalyseFormValues, type TipValues } from '../lib/runForm';
+import { SubregionFields } from './SubregionFields';
+
+interface StoredSettings {
+  mass?: number;
+  truncation?: TruncationRule;
+  doubleTruncation?: boolean;
+  subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
+}
+
+function tipValues(tip: Record<string, number> | undefined, fallback: TipValues): TipValues {
+  if (!tip) return fallback;
+  return { t: String(tip.t ?? ''), x: String(tip.x ?? ''), y: String(tip.y ?? '0'), z: String(tip.z ?? '0') };
+}
+
+/** Starts from the run's own settings, so only what is changed differs in the new run. */
+export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
+  const stored = (request ?? {}) as StoredSettings;
+  const defaults = defaultRunForm('');
+  const diamond = stored.subregion?.kind === 'diamond' ? stored.subregion : null;
+  return {
+    title: '',
+    mass: String(stored.mass ?? 0),
+    truncation: stored.truncation ? truncationToForm(stored.truncation) : { ...defaultTruncation },
+    withSubregion: diamond !== null,
+    past: tipValues(diamond?.past, defaults.past),
+    future: tipValues(diamond?.future, defaults.future),
+    doubleTruncation: stored.doubleTruncation ?? false,
+  };
+}
+
+export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2 | 4 }) {
+  const [values, setValues] = useState(() => initialReanalyseValues(run.request));
+  const [presetId, setPresetId] = useState<string | null>(null);
+  const errors = useFormErrors();
+  const reanalyse = useReanalyseRun(run.id);
+  const cutRules = useCutRules();
+  const navigate = useNavigate();
+  const set = <K extends keyof ReanalyseFormValues>(key: K, value: ReanalyseFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));
+
+  function submit(event: FormEvent) {
+    event.preventDefault();
+    errors.clear();
+    const checked = reanalyseRequestFromForm(values, dimension);
+    if (!checked.ok) return errors.setFieldErrors(checked.errors);
+    reanalyse.mutate(checked.request, {
+      onSuccess: ({ id }) => navigate(`/runs/${id}`),
+      onError: (error) => {
+        if (isApiError(error)) {
+          errors.setFieldErrors(serverFieldErrors(error));
+          errors.setFormError(error.message);
+        } else errors.fromServer(error);
+      },
+    });
+  }
+
+  return (
+    <form onSubmit={submit} noValidate aria-label="Re-analyse" className="flex max-w-3xl flex-col gap-6">
+      <p className="text-sm text-ink-soft">
+        The same points with another truncation, subregion or mass, computed as a new run that links back to this one.
+      </p>
+      <TruncationRuleFields
+        value={values.truncation}
+        onChange={(t) => set('truncation', t)}
+        errors={errors.fieldErrors}
+        presets={cutRules.data ?? []}
+        presetId={presetId}
+        onPresetChange={setPresetId}
+      />
+      <div className="grid grid-cols-1 gap-6 sm:grid-cols-2">
+        <TextField
+          label="Mass m"
+          name="reanalyseMass"
+          inputMode="decimal"
+          className="font-mono"
+          value={values.mass}
+          onChange={(e) => set('mass', e.target.value)}
+          error={errors.fieldErrors.mass}
+        />
+        <TextField
+          label="Title of the new run"
+          name="reanalyseTitle"
+          value={values.title}
+          onChange={(e) => set('title', e.target.value)}
+          error={errors.fieldErrors.title}
+        />
+      </div>
+      <SubregionFields
+        dimension={dimension}
+        enabled={values.withSubregion}
+        onEnabledChange={(v) => set('withSubregion', v)}
+        past={values.past}
+        future={values.future}
+        onTipChange={(which, tip) => set(which, tip)}
+        doubleTruncation={values.doubleTruncation}
+        onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+        errors={errors.fieldErrors}
+      />
+      <FormError message={errors.formError} />
+      <div>
+        <Button type="submit" busy={reanalyse.isPending}>
+          Re-analyse as a new run
+        </Button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,55 @@
+import type { RunDetail, RunResult } from '@shared/runs';
+import { plotPalette } from '../../../lib/plotly';
+import { ErrorState, Loading } from '../../../ui/States';
+import { useRunPoints } from '../api/runs';
+import { pointsTraces, spectrumTraces, tickFont } from '../lib/plotData';
+import { PlotFigure } from './PlotFigure';
+
+const axisTitle = (text: string) => ({ text, font: { size: 12 } });
+
+export function SpectrumPlot({ run, result }: { run: RunDetail; result: RunResult }) {
+  return (
+    <PlotFigure
+      title="Spectrum"
+      fileName={`tacet-run-${run.id.slice(0, 8)}-spectrum`}
+      data={spectrumTraces(result, plotPalette)}
+      layout={{
+        xaxis: { type: 'log', title: axisTitle('rank k'), tickfont: tickFont, gridcolor: plotPalette.grid, linecolor: plotPalette.grid },
+        yaxis: { type: 'log', title: axisTitle('λ_k  (positive eigenvalues of iΔ)'), tickfont: tickFont, gridcolor: plotPalette.grid, exponentformat: 'power' },
+        legend: { x: 1, xanchor: 'right', y: 1, bgcolor: 'rgba(247,244,238,0.85)' },
+      }}
+      caption={
+        <>
+          {result.eigenvalues.length} positive eigenvalues by rank, log–log; the cut keeps {result.modesKept}.
+          {result.continuum ? ' Continuum curve: N/(4x_k) for the 2D diamond.' : ' No continuum curve for this region.'}
+        </>
+      }
+    />
+  );
+}
+
+export function PointsPlot({ run }: { run: RunDetail }) {
+  const points = useRunPoints(run.id, run.status === 'done');
+  if (points.isPending) return <Loading label="Loading the points" />;
+  if (points.isError) return <ErrorState error={points.error} onRetry={() => points.refetch()} />;
+  const projected = points.data.dimension === 4;
+  return (
+    <PlotFigure
+      title="Points"
+      fileName={`tacet-run-${run.id.slice(0, 8)}-points`}
+      height={460}
+      data={pointsTraces(points.data, run.request, plotPalette)}
+      layout={{
+        xaxis: { title: axisTitle('x'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false },
+        yaxis: { title: axisTitle('t'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, scaleanchor: 'x', scaleratio: 1 },
+        legend: { orientation: 'h', y: -0.14 },
+      }}
+      caption={
+        <>
+          The sprinkled elements in ({projected ? 't, x — a projection of the 4D points' : 't, x'}), t upwards, light rays at
+          45°{points.data.subregionElements ? '; the subregion’s elements ringed in the accent colour.' : '.'}
+        </>
+      }
+    />
+  );
+}

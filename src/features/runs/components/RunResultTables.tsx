@@ -1,0 +1,168 @@
+import type { RunDetail, RunResult } from '@shared/runs';
+import { describeTruncation } from '../../cutRules/lib/truncationForm';
+import { regionLabels } from '../lib/runForm';
+import { Figure } from './Figure';
+import { stageLabels } from './RunProgress';
+
+function Row({ label, children, note }: { label: string; children: React.ReactNode; note?: string }) {
+  return (
+    <tr className="border-b border-rule align-baseline">
+      <th scope="row" className="py-1.5 pr-6 text-left font-normal text-ink-soft">
+        {label}
+        {note && <span className="block text-xs text-ink-faint">{note}</span>}
+      </th>
+      <td className="py-1.5 text-right">{children}</td>
+    </tr>
+  );
+}
+
+/** The subregion's entropy: S, its size and the modes its restricted state kept. */
+export function EntropyTable({ entropy, doubleTruncation }: { entropy: NonNullable<RunResult['entropy']>; doubleTruncation: boolean }) {
+  const positive = entropy.generalizedEigenvalues.filter((mu) => mu > 1).length;
+  return (
+    <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
+      <tbody>
+        <Row label="Entanglement entropy S" note="Sorkin's spacetime entropy of the subregion">
+          <span data-testid="entropy-S">
+            <Figure value={entropy.S} digits={6} />
+          </span>
+        </Row>
+        <Row label="Elements in the subregion n">
+          <Figure value={entropy.n} />
+        </Row>
+        <Row label="Modes kept in the subregion" note={doubleTruncation ? 'after the second cut at √n/(4π)' : undefined}>
+          <Figure value={entropy.modesKept} />
+        </Row>
+        <Row label="Generalised eigenvalues μ > 1" note="of W_sub v = μ iΔ_sub v; each contributes to S">
+          <Figure value={positive} />
+        </Row>
+      </tbody>
+    </table>
+  );
+}
+
+const diagnosticLabels: Record<string, { label: string; note: string }> = {
+  hermiticity: { label: 'Hermiticity error', note: '‖W − W†‖ / ‖W‖' },
+  minEigenvalueW: { label: 'Smallest eigenvalue of W', note: '≥ 0 up to rounding for a state' },
+  commutatorResidual: { label: 'Commutator residual', note: '‖W − W̄ − iΔ‖ / ‖Δ‖ on the kept modes' },
+  positiveNegativeOverlap: { label: 'Orthogonality error', note: '‖W W̄‖ / ‖W‖²' },
+  trace: { label: 'Trace of W', note: 'equals the sum of the kept eigenvalues' },
+};
+
+/** The SJ state's checks, then the counts of the causal set. */
+export function DiagnosticsTable({ result }: { result: RunResult }) {
+  const known = Object.keys(diagnosticLabels).filter((k) => typeof result.diagnostics[k] === 'number');
+  const extra = Object.entries(result.diagnostics).filter(([k, v]) => !(k in diagnosticLabels) && typeof v === 'number') as [string, number][];
+  return (
+    <table className="w-full max-w-md border-collapse text-sm" aria-label="Diagnostics">
+      <tbody>
+        <Row label="Elements N">
+          <Figure value={result.N} />
+        </Row>
+        <Row label="Relations">
+          <Figure value={result.relations} whole={9} />
+        </Row>
+        {result.links !== null && (
+          <Row label="Links">
+            <Figure value={result.links} whole={9} />
+          </Row>
+        )}
+        {result.density !== null && (
+          <Row label="Density ρ">
+            <Figure value={result.density} />
+          </Row>
+        )}
+        <Row label="Cut λc">
+          <Figure value={result.cutoff} />
+        </Row>
+        <Row label="Modes kept" note={`of ${result.eigenvalues.length} positive eigenvalues`}>
+          <Figure value={result.modesKept} />
+        </Row>
+        {known.map((key) => (
+          <Row key={key} label={diagnosticLabels[key].label} note={diagnosticLabels[key].note}>
+            <Figure value={result.diagnostics[key] as number} digits={3} />
+          </Row>
+        ))}
+        {extra.map(([key, value]) => (
+          <Row key={key} label={key}>
+            <Figure value={value} digits={3} />
+          </Row>
+        ))}
+      </tbody>
+    </table>
+  );
+}
+
+interface StoredRequest {
+  title?: string;
+  mass?: number;
+  truncation?: Parameters<typeof describeTruncation>[0];
+  doubleTruncation?: boolean;
+  subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number>; indices?: number[] } | null;
+  sprinkling?: {
+    region: Record<string, unknown> & { kind: string };
+    process: string;
+    count?: number;
+    density?: number;
+    seed: string;
+    prng: string;
+  };
+}
+
+function tipText(tip: Record<string, number> | undefined): string {
+  if (!tip) return '—';
+  return `(${['t', 'x', 'y', 'z'].filter((c) => c in tip).map((c) => tip[c]).join(', ')})`;
+}
+
+function regionText(region: Record<string, unknown> & { kind: string }): string {
+  const label = regionLabels[region.kind] ?? region.kind;
+  if (region.kind === 'slab2d') return `${label}, t ∈ [${region.tMin}, ${region.tMax}], x ∈ [${region.xMin}, ${region.xMax}]`;
+  if (region.kind === 'cylinder2d') return `${label}, T = ${region.properTime}, circumference ${region.circumference}`;
+  if (typeof region.properTime === 'number') return `${label}, T = ${region.properTime}`;
+  return label;
+}
+
+/** The settings the run was made from, so it can be read and reproduced. */
+export function SettingsTable({ run }: { run: RunDetail }) {
+  const request = (run.request ?? {}) as StoredRequest;
+  const s = request.sprinkling;
+  const rows: [string, string][] = [];
+  if (s) {
+    rows.push(['Region', regionText(s.region)]);
+    rows.push(['Sprinkling', `${s.process === 'fixed' ? 'fixed N' : 'Poisson'}, ${s.count !== undefined ? `N = ${s.count}` : `ρ = ${s.density}`}`]);
+    rows.push(['Seed', `${s.seed} (${s.prng})`]);
+  }
+  if (run.parentRunId) rows.push(['Points', `reused from run ${run.parentRunId.slice(0, 8)}`]);
+  rows.push(['Mass', String(request.mass ?? 0)]);
+  if (request.truncation) rows.push(['Truncation', describeTruncation(request.truncation)]);
+  if (request.subregion) {
+    rows.push([
+      'Subregion',
+      request.subregion.kind === 'diamond'
+        ? `diamond from ${tipText(request.subregion.past)} to ${tipText(request.subregion.future)}`
+        : `${request.subregion.indices?.length ?? 0} listed elements`,
+    ]);
+    rows.push(['Double truncation', request.doubleTruncation ? 'yes' : 'no']);
+  }
+  if (run.result) {
+    rows.push(['Engine', `${run.result.engineVersion}, ${run.result.backend} backend`]);
+    const timings = Object.entries(run.result.timings)
+      .map(([stage, seconds]) => `${stageLabels[stage as keyof typeof stageLabels] ?? stage} ${seconds.toFixed(2)} s`)
+      .join(' · ');
+    if (timings) rows.push(['Timings', timings]);
+  }
+  return (
+    <table className="w-full border-collapse text-sm" aria-label="Settings">
+      <tbody>
+        {rows.map(([label, value]) => (
+          <tr key={label} className="border-b border-rule align-baseline">
+            <th scope="row" className="w-44 py-1.5 pr-6 text-left font-normal text-ink-soft">
+              {label}
+            </th>
+            <td className="figures py-1.5 text-ink">{value}</td>
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+}

@@ -1,0 +1,69 @@
+import { TextField } from '../../../ui/Field';
+import type { TipValues } from '../lib/runForm';
+import { Checkbox } from './Checkbox';
+
+interface SubregionFieldsProps {
+  dimension: 2 | 4;
+  enabled: boolean;
+  onEnabledChange(enabled: boolean): void;
+  past: TipValues;
+  future: TipValues;
+  onTipChange(which: 'past' | 'future', values: TipValues): void;
+  doubleTruncation: boolean;
+  onDoubleTruncationChange(value: boolean): void;
+  errors: Record<string, string | undefined>;
+}
+
+/** The optional subregion diamond, given by its past and future tips, and the double-truncation switch. */
+export function SubregionFields(props: SubregionFieldsProps) {
+  const { dimension, enabled, past, future, errors } = props;
+  const coordinates = dimension === 4 ? (['t', 'x', 'y', 'z'] as const) : (['t', 'x'] as const);
+
+  return (
+    <div className="flex flex-col gap-5">
+      <Checkbox
+        name="withSubregion"
+        label="Compute the entanglement entropy of a subregion"
+        hint="A causal diamond between two events inside the region; its elements are found from the causal order."
+        checked={enabled}
+        onChange={props.onEnabledChange}
+      />
+      {enabled && (
+        <>
+          {(['past', 'future'] as const).map((which) => {
+            const tip = which === 'past' ? past : future;
+            return (
+              <fieldset key={which} className="grid grid-cols-2 gap-6 sm:grid-cols-4">
+                <legend className="mb-2 text-xs tracking-wide text-ink-soft">{which === 'past' ? 'Past tip' : 'Future tip'}</legend>
+                {coordinates.map((c) => (
+                  <TextField
+                    key={c}
+                    label={`${which} ${c}`}
+                    name={`${which}-${c}`}
+                    inputMode="decimal"
+                    className="font-mono"
+                    value={tip[c]}
+                    onChange={(e) => props.onTipChange(which, { ...tip, [c]: e.target.value })}
+                    error={errors[`subregion.${which}.${c}`]}
+                  />
+                ))}
+              </fieldset>
+            );
+          })}
+          {errors.subregion && (
+            <p role="alert" className="text-xs text-danger">
+              {errors.subregion}
+            </p>
+          )}
+          <Checkbox
+            name="doubleTruncation"
+            label="Double truncation"
+            hint="Truncate the restricted state again at √n/(4π) before the entropy (Sorkin–Yazdi)."
+            checked={props.doubleTruncation}
+            onChange={props.onDoubleTruncationChange}
+          />
+        </>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,238 @@
+import type { RunPoints, RunResult } from '@shared/runs';
+
+/**
+ * Plot data of a run, kept apart from the components so it can be tested: the spectrum (positive
+ * eigenvalues of iΔ by rank, log-log), the compare overlay and the (t, x) scatter of the points.
+ */
+
+export interface PlotColors {
+  data: string;
+  dataSoft: string;
+  reference: string;
+  cut: string;
+}
+
+type Trace = Record<string, unknown> & { name: string; x: number[]; y: number[] };
+
+function ranks(count: number): number[] {
+  return Array.from({ length: count }, (_, k) => k + 1);
+}
+
+/** Log axes cannot show zero or negative values; those ranks are dropped from the trace. */
+function positivePairs(xs: number[], ys: number[]): { x: number[]; y: number[] } {
+  const x: number[] = [];
+  const y: number[] = [];
+  for (let k = 0; k < ys.length; k++) {
+    if (ys[k] > 0 && Number.isFinite(ys[k])) {
+      x.push(xs[k]);
+      y.push(ys[k]);
+    }
+  }
+  return { x, y };
+}
+
+const mono = '"JetBrains Mono", ui-monospace, monospace';
+
+/**
+ * The spectrum of one run: kept modes in ink, discarded ones in the soft ink, the continuum N/(4x_k)
+ * of a 2D diamond in the reference colour and the cut λc as a dashed accent line across all ranks.
+ */
+export function spectrumTraces(result: Pick<RunResult, 'eigenvalues' | 'continuum' | 'cutoff' | 'modesKept'>, colors: PlotColors): Trace[] {
+  const all = ranks(result.eigenvalues.length);
+  const kept = positivePairs(all.slice(0, result.modesKept), result.eigenvalues.slice(0, result.modesKept));
+  const dropped = positivePairs(all.slice(result.modesKept), result.eigenvalues.slice(result.modesKept));
+  const traces: Trace[] = [
+    {
+      name: `kept modes (${result.modesKept})`,
+      type: 'scatter',
+      mode: 'markers',
+      ...kept,
+      marker: { color: colors.data, size: 4 },
+      hovertemplate: 'rank %{x}<br>λ = %{y:.6g}<extra></extra>',
+    },
+  ];
+  if (dropped.x.length > 0) {
+    traces.push({
+      name: `discarded (${result.eigenvalues.length - result.modesKept})`,
+      type: 'scatter',
+      mode: 'markers',
+      ...dropped,
+      marker: { color: colors.dataSoft, size: 3, opacity: 0.45 },
+      hovertemplate: 'rank %{x}<br>λ = %{y:.6g}<extra></extra>',
+    });
+  }
+  if (result.continuum && result.continuum.length > 0) {
+    traces.push({
+      name: 'continuum N/(4x_k)',
+      type: 'scatter',
+      mode: 'lines',
+      ...positivePairs(ranks(result.continuum.length), result.continuum),
+      line: { color: colors.reference, width: 2 },
+      hovertemplate: 'rank %{x}<br>continuum %{y:.6g}<extra></extra>',
+    });
+  }
+  if (result.cutoff > 0 && all.length > 0) {
+    traces.push({
+      name: `cut λc = ${formatPlotNumber(result.cutoff)}`,
+      type: 'scatter',
+      mode: 'lines',
+      x: [1, all.length],
+      y: [result.cutoff, result.cutoff],
+      line: { color: colors.cut, width: 1.5, dash: 'dash' },
+      hoverinfo: 'skip',
+    });
+  }
+  return traces;
+}
+
+export function formatPlotNumber(value: number): string {
+  return Number(value.toPrecision(4)).toString();
+}
+
+export interface CompareRun {
+  id: string;
+  label: string;
+  N: number;
+  eigenvalues: number[];
+  continuum: number[] | null;
+  cutoff: number;
+}
+
+/** Marks and colours for up to six overlaid runs: ink and accent tones, told apart by symbol too. */
+export function compareStyles(colors: PlotColors & { accentDeep: string; inkFaint: string }) {
+  return [
+    { color: colors.data, symbol: 'circle' },
+    { color: colors.cut, symbol: 'square' },
+    { color: colors.dataSoft, symbol: 'triangle-up' },
+    { color: colors.accentDeep, symbol: 'diamond' },
+    { color: colors.inkFaint, symbol: 'cross' },
+    { color: colors.cut, symbol: 'x' },
+  ];
+}
+
+/**
+ * Overlay of several spectra. With `normalised`, eigenvalues are divided by N so runs of different
+ * size share an axis; the 2D-diamond continuum then becomes 1/(4x_k) for every N and is drawn once.
+ */
+export function compareTraces(runs: CompareRun[], normalised: boolean, colors: Parameters<typeof compareStyles>[0]): Trace[] {
+  const styles = compareStyles(colors);
+  const traces: Trace[] = [];
+  runs.forEach((run, index) => {
+    const style = styles[index % styles.length];
+    const scale = normalised ? 1 / run.N : 1;
+    traces.push({
+      name: `${run.label} (N = ${run.N})`,
+      type: 'scatter',
+      mode: 'markers',
+      ...positivePairs(ranks(run.eigenvalues.length), run.eigenvalues.map((v) => v * scale)),
+      marker: { color: style.color, symbol: style.symbol, size: 5, opacity: 0.85 },
+      hovertemplate: `${run.label}<br>rank %{x}<br>${normalised ? 'λ/N' : 'λ'} = %{y:.6g}<extra></extra>`,
+    });
+  });
+  const withContinuum = runs.filter((r) => r.continuum && r.continuum.length > 0);
+  const continuumRuns = normalised
+    ? withContinuum.sort((a, b) => b.continuum!.length - a.continuum!.length).slice(0, 1)
+    : withContinuum;
+  continuumRuns.forEach((run, index) => {
+    const scale = normalised ? 1 / run.N : 1;
+    traces.push({
+      name: normalised ? 'continuum 1/(4x_k)' : `continuum, N = ${run.N}`,
+      type: 'scatter',
+      mode: 'lines',
+      ...positivePairs(ranks(run.continuum!.length), run.continuum!.map((v) => v * scale)),
+      line: { color: colors.reference, width: 1.5, dash: normalised || index === 0 ? 'solid' : 'dot' },
+      hoverinfo: 'skip',
+    });
+  });
+  return traces;
+}
+
+/** Plotly's monospace tick font, for the layouts built in the components. */
+export const tickFont = { family: mono, size: 11 };
+
+/** The region's boundary in (x, t), drawn behind the points; null where no outline applies. */
+export function regionOutline(request: unknown): { x: number[]; y: number[] } | null {
+  const region = (request as { sprinkling?: { region?: Record<string, unknown> } } | null)?.sprinkling?.region;
+  if (!region) return null;
+  if (region.kind === 'diamond2d') {
+    if (typeof region.properTime === 'number') {
+      const h = region.properTime / 2;
+      return { x: [0, h, 0, -h, 0], y: [-h, 0, h, 0, -h] };
+    }
+    const past = region.past as { t: number; x: number } | undefined;
+    const future = region.future as { t: number; x: number } | undefined;
+    if (past && future) return diamondBetween(past, future);
+  }
+  if (region.kind === 'cylinder2d' && typeof region.properTime === 'number' && typeof region.circumference === 'number') {
+    const h = region.properTime / 2;
+    const c = region.circumference / 2;
+    // When the diamond wraps round the cylinder only the strip |x| ≤ C/2 is drawn.
+    return h <= c ? { x: [0, h, 0, -h, 0], y: [-h, 0, h, 0, -h] } : { x: [-c, c, c, -c, -c], y: [-h, -h, h, h, -h] };
+  }
+  if (region.kind === 'slab2d') {
+    const { tMin, tMax, xMin, xMax } = region as Record<string, number>;
+    return { x: [xMin, xMax, xMax, xMin, xMin], y: [tMin, tMin, tMax, tMax, tMin] };
+  }
+  return null;
+}
+
+/** The causal diamond between two timelike-separated events, as a closed outline in (x, t). */
+export function diamondBetween(past: { t: number; x: number }, future: { t: number; x: number }): { x: number[]; y: number[] } {
+  // Light-cone coordinates u = t + x, v = t − x; the side corners mix the tips' u and v.
+  const u0 = past.t + past.x;
+  const v0 = past.t - past.x;
+  const u1 = future.t + future.x;
+  const v1 = future.t - future.x;
+  const right = { t: (u1 + v0) / 2, x: (u1 - v0) / 2 };
+  const left = { t: (u0 + v1) / 2, x: (u0 - v1) / 2 };
+  return { x: [past.x, right.x, future.x, left.x, past.x], y: [past.t, right.t, future.t, left.t, past.t] };
+}
+
+/** The scatter of the points in (x, t) — t upwards, as in a spacetime diagram — with the subregion marked. */
+export function pointsTraces(points: RunPoints, request: unknown, colors: PlotColors): Trace[] {
+  const tColumn = points.columns.indexOf('t');
+  const xColumn = points.columns.indexOf('x');
+  const inside = new Set(points.subregionElements ?? []);
+  const outer = { x: [] as number[], y: [] as number[] };
+  const inner = { x: [] as number[], y: [] as number[] };
+  points.points.forEach((row, index) => {
+    const target = inside.has(index) ? inner : outer;
+    target.x.push(row[xColumn]);
+    target.y.push(row[tColumn]);
+  });
+  const traces: Trace[] = [];
+  const outline = regionOutline(request);
+  if (outline) {
+    traces.push({ name: 'region', type: 'scatter', mode: 'lines', ...outline, line: { color: colors.reference, width: 1 }, hoverinfo: 'skip' });
+  }
+  traces.push({
+    name: points.subregionElements ? `elements (${outer.x.length})` : `elements (${points.points.length})`,
+    type: 'scatter',
+    mode: 'markers',
+    ...outer,
+    marker: { color: colors.data, size: 3.5 },
+    hovertemplate: 't = %{y:.4f}<br>x = %{x:.4f}<extra></extra>',
+  });
+  if (points.subregionElements) {
+    traces.push({
+      name: `subregion (${inner.x.length})`,
+      type: 'scatter',
+      mode: 'markers',
+      ...inner,
+      marker: { color: colors.cut, size: 5, symbol: 'circle-open', line: { width: 1.5, color: colors.cut } },
+      hovertemplate: 'in subregion<br>t = %{y:.4f}<br>x = %{x:.4f}<extra></extra>',
+    });
+    const subregion = (request as { subregion?: { kind: string; past: { t: number; x: number }; future: { t: number; x: number } } } | null)?.subregion;
+    if (subregion?.kind === 'diamond' && points.dimension === 2) {
+      traces.push({
+        name: 'subregion boundary',
+        type: 'scatter',
+        mode: 'lines',
+        ...diamondBetween(subregion.past, subregion.future),
+        line: { color: colors.cut, width: 1, dash: 'dash' },
+        hoverinfo: 'skip',
+      });
+    }
+  }
+  return traces;
+}

@@ -1,0 +1,290 @@
+import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
+import type { PrngName, RegionKind } from '@shared/vacuum';
+import type { z } from 'zod';
+import type { FieldErrors } from '../../../lib/forms';
+import { defaultTruncation, parseNumber, truncationFromForm, type TruncationFormValues } from '../../cutRules/lib/truncationForm';
+
+/**
+ * Largest N the server's dense engine accepts (server/engine DENSE_SIZE_LIMIT.maxN; a unit test keeps the
+ * two equal). The form states it and checks it early; the server's 422 stays the authority.
+ */
+export const denseLimitN = 3000;
+
+export interface TipValues {
+  t: string;
+  x: string;
+  y: string;
+  z: string;
+}
+
+/** Everything the new-run form holds, as typed (numbers stay text until submitting). */
+export interface RunFormValues {
+  title: string;
+  regionKind: RegionKind;
+  properTime: string;
+  circumference: string;
+  tMin: string;
+  tMax: string;
+  xMin: string;
+  xMax: string;
+  sizeBy: 'count' | 'density';
+  count: string;
+  density: string;
+  process: 'fixed' | 'poisson';
+  seed: string;
+  prng: PrngName;
+  mass: string;
+  truncation: TruncationFormValues;
+  withSubregion: boolean;
+  past: TipValues;
+  future: TipValues;
+  doubleTruncation: boolean;
+}
+
+/** A fresh seed: eight hex digits from the browser's random source. */
+export function newSeed(): string {
+  const bytes = new Uint8Array(4);
+  globalThis.crypto.getRandomValues(bytes);
+  return Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
+}
+
+export function defaultRunForm(seed: string = newSeed()): RunFormValues {
+  return {
+    title: '',
+    regionKind: 'diamond2d',
+    properTime: '2',
+    circumference: '4',
+    tMin: '0',
+    tMax: '1',
+    xMin: '0',
+    xMax: '4',
+    sizeBy: 'count',
+    count: '500',
+    density: '',
+    process: 'fixed',
+    seed,
+    prng: 'arc4',
+    mass: '0',
+    truncation: { ...defaultTruncation },
+    withSubregion: false,
+    // A diamond of half the proper time, centred in the default region.
+    past: { t: '-0.5', x: '0', y: '0', z: '0' },
+    future: { t: '0.5', x: '0', y: '0', z: '0' },
+    doubleTruncation: false,
+  };
+}
+
+export function regionDimension(kind: RegionKind): 2 | 4 {
+  return kind === 'diamond4d' ? 4 : 2;
+}
+
+export const regionLabels: Record<string, string> = {
+  diamond2d: '2D causal diamond',
+  cylinder2d: 'Diamond on a cylinder',
+  slab2d: '2D slab',
+  diamond4d: '4D causal diamond',
+  imported: 'Imported causal set',
+};
+
+/** Numbers typed into the form, with the path each goes to; text that is no number is reported here. */
+class NumberReader {
+  readonly errors: FieldErrors = {};
+  read(text: string, path: string): number | undefined {
+    const value = parseNumber(text);
+    if (value !== undefined && !Number.isFinite(value) && !(path in this.errors)) this.errors[path] = 'Enter a number.';
+    return value;
+  }
+}
+
+function tip(reader: NumberReader, values: TipValues, path: string, dimension: 2 | 4) {
+  const event: Record<string, number | undefined> = {
+    t: reader.read(values.t, `${path}.t`),
+    x: reader.read(values.x, `${path}.x`),
+  };
+  if (dimension === 4) {
+    event.y = reader.read(values.y, `${path}.y`);
+    event.z = reader.read(values.z, `${path}.z`);
+  }
+  return event;
+}
+
+function regionFromForm(reader: NumberReader, v: RunFormValues): unknown {
+  const path = 'sprinkling.region';
+  switch (v.regionKind) {
+    case 'diamond2d':
+    case 'diamond4d':
+      return { kind: v.regionKind, properTime: reader.read(v.properTime, `${path}.properTime`) };
+    case 'cylinder2d':
+      return {
+        kind: 'cylinder2d',
+        properTime: reader.read(v.properTime, `${path}.properTime`),
+        circumference: reader.read(v.circumference, `${path}.circumference`),
+      };
+    case 'slab2d':
+      return {
+        kind: 'slab2d',
+        tMin: reader.read(v.tMin, `${path}.tMin`),
+        tMax: reader.read(v.tMax, `${path}.tMax`),
+        xMin: reader.read(v.xMin, `${path}.xMin`),
+        xMax: reader.read(v.xMax, `${path}.xMax`),
+      };
+  }
+}
+
+/** Human messages for the fields whose schema messages are terse ("Too small: expected ..."). */
+const fieldMessages: Record<string, string> = {
+  'sprinkling.count': `N is a whole number of elements, at least 2 and at most ${denseLimitN}.`,
+  'sprinkling.density': 'The density ρ is a positive number (elements per unit volume).',
+  'sprinkling.seed': 'Give a seed (any text or number), or press “New seed”.',
+  'sprinkling.region.properTime': 'The proper time between the tips is a positive number.',
+  'sprinkling.region.circumference': 'The circumference is a positive number.',
+  mass: 'The mass is a number ≥ 0.',
+  'truncation.cut': 'λc is a number ≥ 0.',
+  'truncation.count': 'The number of modes kept is a whole number ≥ 1.',
+  'truncation.tolerance': 'The tolerance is a positive number, at most 10 (or leave it empty).',
+};
+
+const tipFieldMessage = 'Each tip coordinate is a number.';
+
+/**
+ * Where a schema issue is shown. Issues without a field of their own (object-level refinements) go to
+ * the field they are about: the size when count/density are missing, the region's first field otherwise.
+ */
+export function fieldForIssuePath(path: string): string {
+  if (path === 'sprinkling') return 'sprinkling.count';
+  if (path === 'sprinkling.region') return 'sprinkling.region';
+  if (path === 'subregion' || path === 'subregion.past' || path === 'subregion.future') return 'subregion';
+  return path;
+}
+
+function humanise(errors: FieldErrors): FieldErrors {
+  const out: FieldErrors = {};
+  for (const [rawPath, message] of Object.entries(errors)) {
+    const path = fieldForIssuePath(rawPath);
+    if (path in out) continue;
+    if (path in fieldMessages) out[path] = fieldMessages[path];
+    else if (/^subregion\.(past|future)\.[txyz]$/.test(path)) out[path] = tipFieldMessage;
+    else out[path] = message;
+  }
+  return out;
+}
+
+function schemaErrors(issues: z.core.$ZodIssue[]): FieldErrors {
+  const errors: FieldErrors = {};
+  for (const issue of issues) {
+    const path = issue.path.map(String).join('.') || 'form';
+    if (!(path in errors)) errors[path] = issue.message;
+  }
+  return errors;
+}
+
+interface TipNumbers {
+  t: number;
+  x: number;
+  y?: number;
+  z?: number;
+}
+
+/** True when `future` lies strictly inside the future light cone of `past` (c = 1). */
+export function insideFutureLightCone(past: TipNumbers, future: TipNumbers): boolean {
+  const dt = future.t - past.t;
+  const dx = future.x - past.x;
+  const dy = (future.y ?? 0) - (past.y ?? 0);
+  const dz = (future.z ?? 0) - (past.z ?? 0);
+  return dt > 0 && dt * dt > dx * dx + dy * dy + dz * dz;
+}
+
+const lightConeMessage =
+  'The future tip must lie strictly inside the future light cone of the past tip (Δt greater than the spatial distance), or the subregion is empty.';
+
+function subregionFromForm(reader: NumberReader, v: RunFormValues, dimension: 2 | 4) {
+  return { kind: 'diamond', past: tip(reader, v.past, 'subregion.past', dimension), future: tip(reader, v.future, 'subregion.future', dimension) };
+}
+
+/** Checks the shared schema cannot: the subregion's tips are causally ordered. */
+function subregionLightConeError(subregion: { past: TipNumbers; future: TipNumbers } | undefined): FieldErrors {
+  if (!subregion || insideFutureLightCone(subregion.past, subregion.future)) return {};
+  return { 'subregion.future.t': lightConeMessage };
+}
+
+export type Checked<T> = { ok: true; request: T } | { ok: false; errors: FieldErrors };
+
+/**
+ * Maps the form to a POST /api/runs body and validates it with the shared schema, so the form refuses
+ * what the server would refuse, with a message beside the field at fault.
+ */
+export function runRequestFromForm(v: RunFormValues): Checked<CreateRunRequest> {
+  const reader = new NumberReader();
+  const dimension = regionDimension(v.regionKind);
+  const sprinkling: Record<string, unknown> = {
+    region: regionFromForm(reader, v),
+    process: v.process,
+    seed: v.seed.trim(),
+    prng: v.prng,
+  };
+  if (v.sizeBy === 'count' || v.process === 'fixed') sprinkling.count = reader.read(v.count, 'sprinkling.count');
+  else sprinkling.density = reader.read(v.density, 'sprinkling.density');
+
+  const candidate: Record<string, unknown> = {
+    sprinkling,
+    mass: reader.read(v.mass, 'mass') ?? 0,
+    truncation: truncationFromForm(v.truncation),
+    doubleTruncation: v.withSubregion && v.doubleTruncation,
+  };
+  if (v.title.trim()) candidate.title = v.title.trim();
+  if (v.withSubregion) candidate.subregion = subregionFromForm(reader, v, dimension);
+
+  const parsed = createRunRequestSchema.safeParse(candidate);
+  const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
+  const count = sprinkling.count;
+  if (typeof count === 'number' && Number.isInteger(count) && (count < 2 || count > denseLimitN) && !errors['sprinkling.count']) {
+    errors['sprinkling.count'] =
+      count < 2
+        ? 'A causal set needs at least 2 elements.'
+        : `N = ${count} is above the dense limit of ${denseLimitN} elements: the engine holds about 7 N×N matrices in memory at once.`;
+  }
+  if (parsed.success) Object.assign(errors, subregionLightConeError(parsed.data.subregion?.kind === 'diamond' ? parsed.data.subregion : undefined));
+  if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
+  return { ok: true, request: parsed.data };
+}
+
+/** The re-analysis form: another truncation, subregion, mass or title for the same points. */
+export interface ReanalyseFormValues {
+  title: string;
+  mass: string;
+  truncation: TruncationFormValues;
+  withSubregion: boolean;
+  past: TipValues;
+  future: TipValues;
+  doubleTruncation: boolean;
+}
+
+export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 4): Checked<ReanalyseRunRequest> {
+  const reader = new NumberReader();
+  const candidate: Record<string, unknown> = {
+    mass: reader.read(v.mass, 'mass') ?? 0,
+    truncation: truncationFromForm(v.truncation),
+    subregion: v.withSubregion ? subregionFromForm(reader, { ...defaultRunForm(''), ...v }, dimension) : null,
+    doubleTruncation: v.withSubregion && v.doubleTruncation,
+  };
+  if (v.title.trim()) candidate.title = v.title.trim();
+  const parsed = reanalyseRunRequestSchema.safeParse(candidate);
+  const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
+  if (parsed.success && parsed.data.subregion?.kind === 'diamond') Object.assign(errors, subregionLightConeError(parsed.data.subregion));
+  if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
+  return { ok: true, request: parsed.data };
+}
+
+/**
+ * Field errors from a failed POST: schema issues (400) go beside their fields; a size refusal (422
+ * too_large) beside N; other refusals stay as the form's message.
+ */
+export function serverFieldErrors(error: { code: string; issues: { path: string; message: string }[] }): FieldErrors {
+  const errors: FieldErrors = {};
+  for (const issue of error.issues) {
+    const path = fieldForIssuePath(issue.path);
+    if (!(path in errors)) errors[path] = issue.message;
+  }
+  if (error.code === 'too_large' && !errors['sprinkling.count']) errors['sprinkling.count'] = 'Too large for the dense engine (see the message below).';
+  return errors;
+}

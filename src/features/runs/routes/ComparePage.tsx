@@ -1,0 +1,139 @@
+import { useState } from 'react';
+import { Link, useSearchParams } from 'react-router';
+import tailwindConfig from '../../../../tailwind.config';
+import { plotPalette } from '../../../lib/plotly';
+import { PageHeader, Section } from '../../../ui/Page';
+import { Empty, ErrorState, Loading } from '../../../ui/States';
+import { useRunDetails } from '../api/runs';
+import { Caution } from '../components/Caution';
+import { Checkbox } from '../components/Checkbox';
+import { Figure } from '../components/Figure';
+import { PlotFigure } from '../components/PlotFigure';
+import { StatusLabel } from '../components/StatusLabel';
+import { compareTraces, tickFont, type CompareRun } from '../lib/plotData';
+import { runLabel, maxCompared } from './RunsPage';
+
+const colors = tailwindConfig.theme.extend.colors;
+const comparePalette = { ...plotPalette, accentDeep: colors.accent.deep, inkFaint: colors.ink.faint };
+
+/** The run ids of `?ids=a,b,c`, without repeats, at most six. */
+export function parseCompareIds(text: string | null): string[] {
+  if (!text) return [];
+  return Array.from(new Set(text.split(',').map((id) => id.trim()).filter(Boolean))).slice(0, maxCompared);
+}
+
+export function ComparePage() {
+  const [params] = useSearchParams();
+  const ids = parseCompareIds(params.get('ids'));
+  const details = useRunDetails(ids);
+  const [normalised, setNormalised] = useState(true);
+
+  if (ids.length < 2) {
+    return (
+      <>
+        <PageHeader title="Compare spectra" />
+        <Empty>
+          Pick 2 to {maxCompared} finished runs with the boxes in the{' '}
+          <Link to="/runs" className="text-accent hover:underline">
+            runs table
+          </Link>{' '}
+          and press Compare.
+        </Empty>
+      </>
+    );
+  }
+  if (details.some((d) => d.isPending)) return <Loading label="Loading the runs" />;
+  const failed = details.find((d) => d.isError);
+  if (failed) return <ErrorState error={failed.error} onRetry={() => failed.refetch()} />;
+
+  const runs = details.map((d) => d.data!);
+  const withResult = runs.filter((run) => run.result !== null);
+  const compared: CompareRun[] = withResult.map((run) => ({
+    id: run.id,
+    label: runLabel(run),
+    N: run.result!.N,
+    eigenvalues: run.result!.eigenvalues,
+    continuum: run.result!.continuum,
+    cutoff: run.result!.cutoff,
+  }));
+
+  return (
+    <>
+      <PageHeader
+        title="Compare spectra"
+        context={`${compared.length} runs overlaid${compared.length < runs.length ? `; ${runs.length - compared.length} without results left out` : ''}.`}
+      />
+      <div className="mb-10">
+        <Caution />
+      </div>
+      <Section title="Spectra" aside={<Checkbox label="Normalise λ/N" checked={normalised} onChange={setNormalised} />}>
+        {compared.length === 0 ? (
+          <Empty>None of these runs has finished yet.</Empty>
+        ) : (
+          <PlotFigure
+            title="Compared spectra"
+            fileName={`tacet-compare-${compared.map((r) => r.id.slice(0, 4)).join('-')}`}
+            height={480}
+            data={compareTraces(compared, normalised, comparePalette)}
+            layout={{
+              xaxis: { type: 'log', title: { text: 'rank k' }, tickfont: tickFont, gridcolor: plotPalette.grid },
+              yaxis: {
+                type: 'log',
+                title: { text: normalised ? 'λ_k / N' : 'λ_k' },
+                tickfont: tickFont,
+                gridcolor: plotPalette.grid,
+                exponentformat: 'power',
+              },
+              legend: { x: 1, xanchor: 'right', y: 1, bgcolor: 'rgba(247,244,238,0.85)' },
+            }}
+            caption={
+              normalised
+                ? 'Positive eigenvalues of iΔ divided by N, by rank; for 2D diamonds the continuum 1/(4x_k) is the same for every N.'
+                : 'Positive eigenvalues of iΔ by rank; each 2D diamond has its own continuum N/(4x_k).'
+            }
+          />
+        )}
+      </Section>
+      <Section title="Runs">
+        <table className="w-full border-collapse text-sm" aria-label="Compared runs">
+          <thead>
+            <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
+              <th className="py-2 pr-4 font-normal">Run</th>
+              <th className="py-2 pr-4 font-normal">Status</th>
+              <th className="py-2 pr-4 text-right font-normal">N</th>
+              <th className="py-2 pr-4 text-right font-normal">Cut λc</th>
+              <th className="py-2 pr-4 text-right font-normal">Modes kept</th>
+              <th className="py-2 text-right font-normal">S</th>
+            </tr>
+          </thead>
+          <tbody>
+            {runs.map((run) => (
+              <tr key={run.id} className="border-b border-rule align-baseline">
+                <td className="py-2 pr-4">
+                  <Link to={`/runs/${run.id}`} className="hover:text-accent hover:underline">
+                    {runLabel(run)}
+                  </Link>
+                </td>
+                <td className="py-2 pr-4">
+                  <StatusLabel status={run.status} percent={run.percent} />
+                </td>
+                <td className="py-2 pr-4 text-right">
+                  <span className="figures">{run.result?.N ?? run.N ?? '—'}</span>
+                </td>
+                <td className="py-2 pr-4 text-right">
+                  <Figure value={run.result?.cutoff} whole={3} />
+                </td>
+                <td className="py-2 pr-4 text-right">
+                  <span className="figures">{run.result?.modesKept ?? '—'}</span>
+                </td>
+                <td className="py-2 text-right">
+                  <Figure value={run.result?.entropy?.S} whole={3} fraction={7} />
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </Section>
+    </>
+  );
+}

@@ -1,0 +1,308 @@
+import { useState, type FormEvent, type ReactNode } from 'react';
+import { Link, useNavigate } from 'react-router';
+import { isApiError } from '../../../lib/apiClient';
+import { useFormErrors } from '../../../lib/forms';
+import { Button } from '../../../ui/Button';
+import { FormError, SelectField, TextField } from '../../../ui/Field';
+import { PageHeader } from '../../../ui/Page';
+import { Empty } from '../../../ui/States';
+import { useCan } from '../../auth/api/me';
+import { useCutRules } from '../../cutRules/api/cutRules';
+import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
+import { useCreateRun } from '../api/runs';
+import { SubregionFields } from '../components/SubregionFields';
+import {
+  defaultRunForm,
+  denseLimitN,
+  newSeed,
+  regionDimension,
+  regionLabels,
+  runRequestFromForm,
+  serverFieldErrors,
+  type RunFormValues,
+} from '../lib/runForm';
+
+function FormSection({ title, note, children }: { title: string; note?: ReactNode; children: ReactNode }) {
+  return (
+    <section className="grid grid-cols-1 gap-4 border-t border-rule pt-5 pb-8 md:grid-cols-[12rem_1fr] md:gap-10">
+      <div>
+        <h2 className="text-sm font-semibold uppercase tracking-[0.12em] text-ink-soft">{title}</h2>
+        {note && <p className="mt-1 text-xs text-ink-faint">{note}</p>}
+      </div>
+      <div className="flex flex-col gap-6">{children}</div>
+    </section>
+  );
+}
+
+export function NewRunPage() {
+  const canCompute = useCan('compute');
+  if (!canCompute) {
+    return (
+      <>
+        <PageHeader title="New run" />
+        <Empty>
+          Viewers read and export runs but do not start them. Ask an owner of the team for the researcher role.{' '}
+          <Link to="/runs" className="text-accent hover:underline">
+            Back to the runs
+          </Link>
+        </Empty>
+      </>
+    );
+  }
+  return <NewRunForm />;
+}
+
+function NewRunForm() {
+  const [values, setValues] = useState<RunFormValues>(() => defaultRunForm());
+  const [presetId, setPresetId] = useState<string | null>(null);
+  const errors = useFormErrors();
+  const createRun = useCreateRun();
+  const cutRules = useCutRules();
+  const navigate = useNavigate();
+  const fe = errors.fieldErrors;
+  const dimension = regionDimension(values.regionKind);
+
+  function set<K extends keyof RunFormValues>(key: K, value: RunFormValues[K]) {
+    setValues((v) => ({ ...v, [key]: value }));
+  }
+
+  function submit(event: FormEvent) {
+    event.preventDefault();
+    errors.clear();
+    const checked = runRequestFromForm(values);
+    if (!checked.ok) {
+      errors.setFieldErrors(checked.errors);
+      errors.setFormError('Some settings need a look; see the messages beside the fields.');
+      return;
+    }
+    createRun.mutate(checked.request, {
+      onSuccess: ({ id }) => navigate(`/runs/${id}`),
+      onError: (error) => {
+        if (isApiError(error)) {
+          errors.setFieldErrors(serverFieldErrors(error));
+          errors.setFormError(error.message);
+        } else errors.fromServer(error);
+      },
+    });
+  }
+
+  return (
+    <>
+      <PageHeader
+        title="New run"
+        context="Sprinkle a causal set, build its SJ state and, if asked, the entropy of a subregion. Units: c = 1."
+      />
+      <form onSubmit={submit} noValidate aria-label="New run" className="max-w-4xl">
+        <FormSection title="Region" note="Where the points are sprinkled.">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <SelectField
+              label="Region"
+              name="regionKind"
+              value={values.regionKind}
+              onChange={(e) => set('regionKind', e.target.value as RunFormValues['regionKind'])}
+              error={fe['sprinkling.region']}
+            >
+              {(['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d'] as const).map((kind) => (
+                <option key={kind} value={kind}>
+                  {regionLabels[kind]}
+                </option>
+              ))}
+            </SelectField>
+            {values.regionKind !== 'slab2d' && (
+              <TextField
+                label="Proper time T"
+                name="properTime"
+                inputMode="decimal"
+                className="font-mono"
+                value={values.properTime}
+                onChange={(e) => set('properTime', e.target.value)}
+                error={fe['sprinkling.region.properTime']}
+                hint="Between the tips, at t = ±T/2."
+              />
+            )}
+            {values.regionKind === 'cylinder2d' && (
+              <TextField
+                label="Circumference"
+                name="circumference"
+                inputMode="decimal"
+                className="font-mono"
+                value={values.circumference}
+                onChange={(e) => set('circumference', e.target.value)}
+                error={fe['sprinkling.region.circumference']}
+                hint="x is periodic; T > circumference wraps."
+              />
+            )}
+          </div>
+          {values.regionKind === 'slab2d' && (
+            <div className="grid grid-cols-2 gap-6 sm:grid-cols-4">
+              {(['tMin', 'tMax', 'xMin', 'xMax'] as const).map((key) => (
+                <TextField
+                  key={key}
+                  label={key.replace('Min', ' min').replace('Max', ' max')}
+                  name={key}
+                  inputMode="decimal"
+                  className="font-mono"
+                  value={values[key]}
+                  onChange={(e) => set(key, e.target.value)}
+                  error={fe[`sprinkling.region.${key}`]}
+                />
+              ))}
+            </div>
+          )}
+        </FormSection>
+
+        <FormSection
+          title="Sprinkling"
+          note={
+            <>
+              The dense engine takes at most <span className="figures">{denseLimitN}</span> elements: it holds about seven N×N
+              matrices at once.
+            </>
+          }
+        >
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <SelectField
+              label="Process"
+              name="process"
+              value={values.process}
+              onChange={(e) => {
+                const process = e.target.value as RunFormValues['process'];
+                setValues((v) => ({ ...v, process, sizeBy: process === 'fixed' ? 'count' : v.sizeBy }));
+              }}
+              hint={values.process === 'fixed' ? 'Exactly N points; ρ = N/V.' : 'N ~ Poisson(ρV).'}
+            >
+              <option value="fixed">Fixed N</option>
+              <option value="poisson">Poisson</option>
+            </SelectField>
+            {values.process === 'poisson' && (
+              <SelectField
+                label="Size given by"
+                name="sizeBy"
+                value={values.sizeBy}
+                onChange={(e) => set('sizeBy', e.target.value as RunFormValues['sizeBy'])}
+              >
+                <option value="count">Expected N</option>
+                <option value="density">Density ρ</option>
+              </SelectField>
+            )}
+            {values.sizeBy === 'count' || values.process === 'fixed' ? (
+              <TextField
+                label={values.process === 'fixed' ? 'N (elements)' : 'Expected N'}
+                name="count"
+                inputMode="numeric"
+                className="font-mono"
+                value={values.count}
+                onChange={(e) => set('count', e.target.value)}
+                error={fe['sprinkling.count']}
+                hint={`2 to ${denseLimitN}.`}
+              />
+            ) : (
+              <TextField
+                label="Density ρ"
+                name="density"
+                inputMode="decimal"
+                className="font-mono"
+                value={values.density}
+                onChange={(e) => set('density', e.target.value)}
+                error={fe['sprinkling.density'] ?? fe['sprinkling.count']}
+                hint="Elements per unit spacetime volume."
+              />
+            )}
+          </div>
+          <div className="grid grid-cols-1 items-end gap-6 sm:grid-cols-3">
+            <div className="flex items-end gap-3 sm:col-span-2">
+              <div className="flex-1">
+                <TextField
+                  label="Seed"
+                  name="seed"
+                  className="font-mono"
+                  value={values.seed}
+                  onChange={(e) => set('seed', e.target.value)}
+                  error={fe['sprinkling.seed']}
+                  hint="The same seed and settings give the same points."
+                />
+              </div>
+              <Button variant="quiet" className="mb-5" onClick={() => set('seed', newSeed())}>
+                New seed
+              </Button>
+            </div>
+            <SelectField
+              label="Generator"
+              name="prng"
+              value={values.prng}
+              onChange={(e) => set('prng', e.target.value as RunFormValues['prng'])}
+              hint="seedrandom's PRNGs."
+            >
+              <option value="arc4">arc4 (default)</option>
+              <option value="alea">alea</option>
+              <option value="xor4096">xor4096</option>
+            </SelectField>
+          </div>
+        </FormSection>
+
+        <FormSection title="Field" note="A free scalar field.">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <TextField
+              label="Mass m"
+              name="mass"
+              inputMode="decimal"
+              className="font-mono"
+              value={values.mass}
+              onChange={(e) => set('mass', e.target.value)}
+              error={fe.mass}
+              hint="0 for the massless field."
+            />
+          </div>
+        </FormSection>
+
+        <FormSection title="Truncation" note="Which modes of iΔ the SJ state keeps. A modelling choice: it shapes every number downstream.">
+          <TruncationRuleFields
+            value={values.truncation}
+            onChange={(truncation) => set('truncation', truncation)}
+            errors={fe}
+            presets={cutRules.data ?? []}
+            presetId={presetId}
+            onPresetChange={setPresetId}
+          />
+        </FormSection>
+
+        <FormSection title="Subregion" note="Optional.">
+          <SubregionFields
+            dimension={dimension}
+            enabled={values.withSubregion}
+            onEnabledChange={(v) => set('withSubregion', v)}
+            past={values.past}
+            future={values.future}
+            onTipChange={(which, tip) => set(which, tip)}
+            doubleTruncation={values.doubleTruncation}
+            onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+            errors={fe}
+          />
+        </FormSection>
+
+        <FormSection title="Title" note="Optional; shown in the runs table and the e-mail.">
+          <TextField
+            label="Title"
+            name="title"
+            value={values.title}
+            onChange={(e) => set('title', e.target.value)}
+            error={fe.title}
+            maxLength={200}
+          />
+        </FormSection>
+
+        <div className="flex flex-col gap-4 border-t border-rule pt-6">
+          <FormError message={errors.formError} />
+          <div className="flex items-center gap-4">
+            <Button type="submit" busy={createRun.isPending}>
+              Start run
+            </Button>
+            <Link to="/runs" className="text-sm text-ink-soft hover:text-ink">
+              Cancel
+            </Link>
+          </div>
+        </div>
+      </form>
+    </>
+  );
+}

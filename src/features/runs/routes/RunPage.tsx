@@ -1,0 +1,218 @@
+import { useState } from 'react';
+import { Link, useNavigate, useParams } from 'react-router';
+import type { RunDetail } from '@shared/runs';
+import { isApiError } from '../../../lib/apiClient';
+import { formatDateTime } from '../../../lib/format';
+import { Button } from '../../../ui/Button';
+import { PageHeader, Section } from '../../../ui/Page';
+import { ErrorState, Loading } from '../../../ui/States';
+import { useCan } from '../../auth/api/me';
+import { downloadRunFile, isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
+import { Caution } from '../components/Caution';
+import { ReanalyseForm } from '../components/ReanalyseForm';
+import { DiagnosticsTable, EntropyTable, SettingsTable } from '../components/RunResultTables';
+import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
+import { RunProgress } from '../components/RunProgress';
+import { StatusLabel } from '../components/StatusLabel';
+import { runLabel } from './RunsPage';
+
+export function RunPage() {
+  const { runId = '' } = useParams();
+  const run = useRun(runId);
+
+  if (run.isPending) return <Loading label="Loading the run" />;
+  if (run.isError) {
+    if (isApiError(run.error, 404)) {
+      return (
+        <>
+          <PageHeader title="Run not found" />
+          <p className="text-sm text-ink-soft">
+            No run with this id in the current team: it may have been deleted, or it belongs to another team.{' '}
+            <Link to="/runs" className="text-accent hover:underline">
+              All runs
+            </Link>
+          </p>
+        </>
+      );
+    }
+    return <ErrorState error={run.error} onRetry={() => run.refetch()} />;
+  }
+  return <RunView run={run.data} />;
+}
+
+function RunView({ run }: { run: RunDetail }) {
+  const canCompute = useCan('compute');
+  const result = run.result;
+  const dimension = run.dimension;
+
+  return (
+    <>
+      <PageHeader
+        title={runLabel(run)}
+        context={
+          <span className="inline-flex flex-wrap items-baseline gap-x-2">
+            <StatusLabel status={run.status} />
+            <span aria-hidden>·</span>
+            <span>{run.author.name}</span>
+            <span aria-hidden>·</span>
+            <span className="figures">{formatDateTime(run.createdAt)}</span>
+            {run.parentRunId && (
+              <>
+                <span aria-hidden>·</span>
+                <span>
+                  re-analysis of{' '}
+                  <Link to={`/runs/${run.parentRunId}`} className="text-accent hover:underline">
+                    run {run.parentRunId.slice(0, 8)}
+                  </Link>
+                </span>
+              </>
+            )}
+          </span>
+        }
+        actions={canCompute && <RunActions run={run} />}
+      />
+
+      {isActive(run.status) && (
+        <Section title="Progress">
+          <RunProgress run={run} />
+        </Section>
+      )}
+
+      {run.status === 'failed' && (
+        <Section title="Failed">
+          <p role="alert" className="border-l-2 border-danger pl-3 text-sm text-danger" data-testid="run-error">
+            {run.error ?? 'The run failed without a message.'}
+          </p>
+        </Section>
+      )}
+
+      {run.status === 'cancelled' && (
+        <p className="mb-10 text-sm text-ink-soft">This run was cancelled{run.stage ? ` during “${run.stage}”` : ''}; nothing was kept.</p>
+      )}
+
+      {result && (
+        <>
+          <div className="mb-10">
+            <Caution />
+          </div>
+          <Section title="Spectrum" aside={<span className="figures">N = {result.N}</span>}>
+            <SpectrumPlot run={run} result={result} />
+          </Section>
+          <Section title="Points">
+            <PointsPlot run={run} />
+          </Section>
+          <div className="grid grid-cols-1 gap-x-12 md:grid-cols-2">
+            {result.entropy ? (
+              <Section title="Entropy">
+                <EntropyTable entropy={result.entropy} doubleTruncation={Boolean((run.request as { doubleTruncation?: boolean })?.doubleTruncation)} />
+              </Section>
+            ) : (
+              <Section title="Entropy">
+                <p className="text-sm text-ink-soft">No subregion was asked for this run{canCompute ? '; re-analyse with one below.' : '.'}</p>
+              </Section>
+            )}
+            <Section title="Diagnostics">
+              <DiagnosticsTable result={result} />
+            </Section>
+          </div>
+          <Section title="Downloads">
+            <Downloads runId={run.id} />
+          </Section>
+        </>
+      )}
+
+      <Section title="Settings">
+        <SettingsTable run={run} />
+      </Section>
+
+      {canCompute && result && run.status === 'done' && (
+        <Section title="Re-analyse">
+          <ReanalyseForm run={run} dimension={dimension} />
+        </Section>
+      )}
+    </>
+  );
+}
+
+function RunActions({ run }: { run: RunDetail }) {
+  const cancel = useCancelRun(run.id);
+  const remove = useDeleteRun();
+  const navigate = useNavigate();
+  const [confirming, setConfirming] = useState(false);
+  const error = cancel.error ?? remove.error;
+
+  return (
+    <div className="flex flex-col items-end gap-1">
+      <div className="flex items-baseline gap-3">
+        {isActive(run.status) && (
+          <Button variant="quiet" busy={cancel.isPending} disabled={run.cancelRequested} onClick={() => cancel.mutate()}>
+            {run.cancelRequested ? 'Cancelling' : 'Cancel run'}
+          </Button>
+        )}
+        {confirming ? (
+          <span className="inline-flex items-baseline gap-2">
+            <span className="text-xs text-ink-soft">Delete this run and its points for the whole team?</span>
+            <Button variant="danger" busy={remove.isPending} onClick={() => remove.mutate(run.id, { onSuccess: () => navigate('/runs') })}>
+              Delete
+            </Button>
+            <Button variant="quiet" onClick={() => setConfirming(false)}>
+              Keep
+            </Button>
+          </span>
+        ) : (
+          <Button variant="quiet" className="text-ink-soft" onClick={() => setConfirming(true)}>
+            Delete run
+          </Button>
+        )}
+      </div>
+      {error && (
+        <p role="alert" className="text-xs text-danger">
+          {error.message}
+        </p>
+      )}
+    </div>
+  );
+}
+
+function Downloads({ runId }: { runId: string }) {
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState<string | null>(null);
+  const files = [
+    { file: 'points.csv', label: 'Points (CSV)', note: 't,x[,y,z] per element, 17 significant digits' },
+    { file: 'spectrum.csv', label: 'Spectrum (CSV)', note: 'rank, eigenvalue, continuum, kept' },
+    { file: 'spectrum.json', label: 'Spectrum (JSON)', note: 'eigenvalues, continuum, cut, modes kept, N' },
+  ] as const;
+
+  async function get(file: (typeof files)[number]['file']) {
+    setError(null);
+    setBusy(file);
+    try {
+      await downloadRunFile(runId, file);
+    } catch (cause) {
+      setError(cause instanceof Error ? cause.message : String(cause));
+    } finally {
+      setBusy(null);
+    }
+  }
+
+  return (
+    <div className="flex flex-col gap-2">
+      <ul className="flex flex-col text-sm">
+        {files.map(({ file, label, note }) => (
+          <li key={file} className="flex items-baseline gap-4 border-b border-rule py-1.5">
+            <Button variant="quiet" busy={busy === file} onClick={() => get(file)}>
+              {label}
+            </Button>
+            <span className="text-xs text-ink-faint">{note}</span>
+          </li>
+        ))}
+      </ul>
+      <p className="text-xs text-ink-faint">Each plot has its own PNG and SVG download beneath it.</p>
+      {error && (
+        <p role="alert" className="text-xs text-danger">
+          {error}
+        </p>
+      )}
+    </div>
+  );
+}
