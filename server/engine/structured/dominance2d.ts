@@ -150,3 +150,16 @@ export class PauliJordan2D implements SkewOperator {
     for (let i = 0; i < this.size; i++) output[i] = 0.5 * (this.past[i] - this.futureSums[i]);
   }
 }
+
+/** The operator for flat 2D points (t, x per element), the layout of a sprinkling. */
+export function pauliJordan2DFromPoints(points: ArrayLike<number>, options: PauliJordan2DOptions = {}): PauliJordan2D {
+  if (points.length % 2 !== 0) throw new Error(`2D points need t, x per element (got ${points.length} numbers)`);
+  const n = points.length / 2;
+  const t = new Float64Array(n);
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    t[i] = points[2 * i];
+    x[i] = points[2 * i + 1];
+  }
+  return new PauliJordan2D(lightConeSweep(t, x), options);
+}

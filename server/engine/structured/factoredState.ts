@@ -63,7 +63,7 @@ export function applyWightman(state: FactoredSjState, w: Float64Array): { real: 
 
 /**
  * The same state in the dense engine's form (basis columns a_1, b_1, a_2, b_2, …, each σ twice, and
- * BᵀΔB = block diagonal [[0, −σ], [σ, 0]]), so the dense checks and entropy can run on it; only for
+ * BᵀΔB = block diagonal [[0, −σ], [σ, 0]], ΔB from Δa = σb, Δb = −σa), so the dense checks and entropy can run on it; only for
  * sizes where an N × N Δ is affordable.
  */
 export function toDenseSjState(state: FactoredSjState, delta: DenseMatrix): SjState {
@@ -72,13 +72,18 @@ export function toDenseSjState(state: FactoredSjState, delta: DenseMatrix): SjSt
   const basis = denseMatrix(n, 2 * k);
   const sigma = new Float64Array(2 * k);
   const deltaInBasis = denseMatrix(2 * k, 2 * k);
+  const deltaTimesBasis = denseMatrix(n, 2 * k);
   for (let i = 0; i < k; i++) {
     basis.data.set(state.a[i], 2 * i * n);
     basis.data.set(state.b[i], (2 * i + 1) * n);
+    for (let r = 0; r < n; r++) {
+      deltaTimesBasis.data[r + 2 * i * n] = state.sigma[i] * state.b[i][r];
+      deltaTimesBasis.data[r + (2 * i + 1) * n] = -state.sigma[i] * state.a[i][r];
+    }
     sigma[2 * i] = state.sigma[i];
     sigma[2 * i + 1] = state.sigma[i];
     deltaInBasis.data[2 * i + 1 + 2 * i * 2 * k] = state.sigma[i];
     deltaInBasis.data[2 * i + (2 * i + 1) * 2 * k] = -state.sigma[i];
   }
-  return { size: n, complete: false, modesKept: k, cutoff: state.cutoff, basis, sigma, deltaInBasis, delta };
+  return { size: n, complete: false, modesKept: k, cutoff: state.cutoff, basis, sigma, deltaInBasis, delta, deltaTimesBasis };
 }

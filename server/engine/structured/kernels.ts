@@ -4,67 +4,6 @@
  * inner loops run over contiguous memory.
  */
 
-/** h[j] = Σ_{begin≤i<end} basis[j][i]·w[i] for j < count (two columns per pass over w). */
-export function columnDots(basis: Float64Array[], count: number, w: Float64Array, h: Float64Array, begin: number, end: number): void {
-  let j = 0;
-  for (; j + 1 < count; j += 2) {
-    const a = basis[j];
-    const b = basis[j + 1];
-    let sa0 = 0;
-    let sa1 = 0;
-    let sb0 = 0;
-    let sb1 = 0;
-    let i = begin;
-    for (; i + 1 < end; i += 2) {
-      const w0 = w[i];
-      const w1 = w[i + 1];
-      sa0 += a[i] * w0;
-      sa1 += a[i + 1] * w1;
-      sb0 += b[i] * w0;
-      sb1 += b[i + 1] * w1;
-    }
-    if (i < end) {
-      sa0 += a[i] * w[i];
-      sb0 += b[i] * w[i];
-    }
-    h[j] = sa0 + sa1;
-    h[j + 1] = sb0 + sb1;
-  }
-  if (j < count) {
-    const a = basis[j];
-    let s0 = 0;
-    let s1 = 0;
-    let i = begin;
-    for (; i + 1 < end; i += 2) {
-      s0 += a[i] * w[i];
-      s1 += a[i + 1] * w[i + 1];
-    }
-    if (i < end) s0 += a[i] * w[i];
-    h[j] = s0 + s1;
-  }
-}
-
-/** w[i] −= Σ_{j<count} h[j]·basis[j][i] on [begin, end), four columns per pass over w. */
-export function subtractCombination(basis: Float64Array[], count: number, h: Float64Array, w: Float64Array, begin: number, end: number): void {
-  let j = 0;
-  for (; j + 3 < count; j += 4) {
-    const a = basis[j];
-    const b = basis[j + 1];
-    const c = basis[j + 2];
-    const d = basis[j + 3];
-    const ha = h[j];
-    const hb = h[j + 1];
-    const hc = h[j + 2];
-    const hd = h[j + 3];
-    for (let i = begin; i < end; i++) w[i] -= ha * a[i] + hb * b[i] + hc * c[i] + hd * d[i];
-  }
-  for (; j < count; j++) {
-    const a = basis[j];
-    const ha = h[j];
-    for (let i = begin; i < end; i++) w[i] -= ha * a[i];
-  }
-}
-
 const ROW_BLOCK = 256;
 
 /**

@@ -1,6 +1,8 @@
 import seedrandom from 'seedrandom';
 import type { SkewOperator } from './dominance2d';
-import { columnDots, combineColumns, subtractCombination } from './kernels';
+import type { LinearAlgebraBackend } from '../linalg/backend';
+import { getBackend } from '../linalg';
+import { combineColumns } from './kernels';
 import { tridiagonalEigenvalues, tridiagonalEigenvectors } from './tridiagonal';
 
 /**
@@ -57,6 +59,10 @@ export interface TopPairsOptions {
   /** seed of the start vector and inverse iteration (default 'tacet-lanczos') */
   seed?: string;
   onProgress?: (progress: LanczosProgress) => void;
+  /** dense backend for the block products (default: the best available; null: plain JavaScript kernels) */
+  backend?: LinearAlgebraBackend | null;
+  /** a guess of the number of pairs that will be kept, to size the basis storage up front */
+  expectedPairs?: number;
 }
 
 const DEFAULT_TOLERANCE = 1e-10;
@@ -66,35 +72,166 @@ const DEFAULT_GUARD = 3;
 const INVARIANT_RELATIVE = 1e-13;
 const REORTHOGONALISE_BELOW = Math.SQRT1_2;
 
+const ROW_BLOCK = 8192;
+
+/**
+ * Lanczos vectors stored in row blocks: block b holds rows [b·ROW_BLOCK, …) of every column, column-major
+ * with room for `capacity` columns, so the first `count` columns of a block are one contiguous matrix.
+ * Gram–Schmidt against the basis is then two matrix–vector products per block, done by the dense
+ * backend (BLAS dgemv-shaped dgemm when native) or by the flat JavaScript kernels.
+ */
 class Basis {
-  readonly columns: Float64Array[] = [];
-  private readonly dots: Float64Array;
+  count = 0;
+  private capacity: number;
+  private blocks: Float64Array[];
+  private readonly starts: number[] = [];
+
   constructor(
     readonly size: number,
-    capacity: number,
+    initialCapacity: number,
+    private readonly backend: LinearAlgebraBackend | null,
   ) {
-    this.dots = new Float64Array(capacity);
-  }
-
-  /** Orthogonalises w against every stored column (classical Gram–Schmidt, repeated when needed) and returns ‖w‖. */
-  orthogonalise(w: Float64Array): number {
-    const count = this.columns.length;
-    let before = norm(w);
-    for (let pass = 0; pass < 3 && count > 0; pass++) {
-      columnDots(this.columns, count, w, this.dots, 0, this.size);
-      subtractCombination(this.columns, count, this.dots, w, 0, this.size);
-      const after = norm(w);
-      if (after > REORTHOGONALISE_BELOW * before) return after;
-      before = after;
+    this.capacity = Math.max(4, initialCapacity);
+    this.blocks = [];
+    for (let r = 0; r < size; r += ROW_BLOCK) {
+      this.starts.push(r);
+      this.blocks.push(new Float64Array(Math.min(ROW_BLOCK, size - r) * this.capacity));
     }
-    return norm(w);
   }
 
+  private rows(b: number): number {
+    return Math.min(ROW_BLOCK, this.size - this.starts[b]);
+  }
+
+  /** h = Vᵀ w */
+  dots(w: Float64Array, h: Float64Array): void {
+    h.fill(0, 0, this.count);
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      if (this.backend) {
+        const part = this.backend.multiply(
+          { rows, cols: this.count, data: block.subarray(0, rows * this.count) },
+          { rows, cols: 1, data: w.subarray(start, start + rows) },
+          { transposeA: true },
+        ).data;
+        for (let j = 0; j < this.count; j++) h[j] += part[j];
+      } else {
+        for (let j = 0; j < this.count; j++) {
+          const off = j * rows;
+          let s0 = 0;
+          let s1 = 0;
+          let i = 0;
+          for (; i + 1 < rows; i += 2) {
+            s0 += block[off + i] * w[start + i];
+            s1 += block[off + i + 1] * w[start + i + 1];
+          }
+          if (i < rows) s0 += block[off + i] * w[start + i];
+          h[j] += s0 + s1;
+        }
+      }
+    }
+  }
+
+  /** w −= V h */
+  subtract(h: Float64Array, w: Float64Array): void {
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      if (this.backend) {
+        const part = this.backend.multiply(
+          { rows, cols: this.count, data: block.subarray(0, rows * this.count) },
+          { rows: this.count, cols: 1, data: h.subarray(0, this.count) },
+        ).data;
+        for (let i = 0; i < rows; i++) w[start + i] -= part[i];
+      } else {
+        let j = 0;
+        for (; j + 3 < this.count; j += 4) {
+          const o0 = j * rows;
+          const o1 = o0 + rows;
+          const o2 = o1 + rows;
+          const o3 = o2 + rows;
+          const h0 = h[j];
+          const h1 = h[j + 1];
+          const h2 = h[j + 2];
+          const h3 = h[j + 3];
+          for (let i = 0; i < rows; i++) w[start + i] -= h0 * block[o0 + i] + h1 * block[o1 + i] + h2 * block[o2 + i] + h3 * block[o3 + i];
+        }
+        for (; j < this.count; j++) {
+          const o = j * rows;
+          const hj = h[j];
+          for (let i = 0; i < rows; i++) w[start + i] -= hj * block[o + i];
+        }
+      }
+    }
+  }
+
+  /** Stores w / scale as the next column (w itself is normalised in place). */
   push(w: Float64Array, scale: number): void {
     const inv = 1 / scale;
     for (let i = 0; i < w.length; i++) w[i] *= inv;
-    this.columns.push(w);
+    if (this.count === this.capacity) this.grow();
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      this.blocks[b].set(w.subarray(this.starts[b], this.starts[b] + rows), this.count * rows);
+    }
+    this.count++;
   }
+
+  private grow(): void {
+    const capacity = Math.min(this.size, Math.ceil(this.capacity * 1.5) + 4);
+    this.blocks = this.blocks.map((block, b) => {
+      const bigger = new Float64Array(this.rows(b) * capacity);
+      bigger.set(block);
+      return bigger;
+    });
+    this.capacity = capacity;
+  }
+
+  /**
+   * out[c] = Σ_j V[:, j] coefficients[j + c·count] for c < outputs (the Ritz vectors), blockwise:
+   * one dgemm per row block when native.
+   */
+  combine(coefficients: Float64Array, outputs: number): Float64Array[] {
+    const out = Array.from({ length: outputs }, () => new Float64Array(this.size));
+    const m = this.count;
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      if (this.backend) {
+        const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows: m, cols: outputs, data: coefficients }).data;
+        for (let c = 0; c < outputs; c++) out[c].set(part.subarray(c * rows, (c + 1) * rows), start);
+      } else {
+        const columns = Array.from({ length: m }, (_, j) => block.subarray(j * rows, (j + 1) * rows));
+        const targets = out.map((o) => o.subarray(start, start + rows));
+        combineColumns(columns, Int32Array.from({ length: m }, (_, j) => j), coefficients, outputs, targets, 0, rows);
+      }
+    }
+    return out;
+  }
+
+  release(): void {
+    this.blocks = [];
+  }
+}
+
+/** Gram–Schmidt of w against both sides of the bidiagonalisation, repeated when a pass removed most of w. */
+function orthogonaliseAgainst(bases: Basis[], w: Float64Array, scratch: Float64Array): number {
+  let before = norm(w);
+  for (let pass = 0; pass < 3; pass++) {
+    for (const basis of bases) {
+      if (basis.count === 0) continue;
+      basis.dots(w, scratch);
+      basis.subtract(scratch, w);
+    }
+    const after = norm(w);
+    if (after > REORTHOGONALISE_BELOW * before) return after;
+    before = after;
+  }
+  return norm(w);
 }
 
 function norm(w: Float64Array): number {
@@ -162,17 +299,21 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
   const maxSteps = Math.min(Math.floor(n / 2), options.maxSteps ?? Math.floor(n / 2));
   const random = seedrandom(options.seed ?? 'tacet-lanczos');
 
-  const basis = new Basis(n, 2 * maxSteps + 2);
-  const rightColumns: number[] = [];
-  const leftColumns: number[] = [];
+  const backend = options.backend === undefined ? getBackend() : options.backend;
+  const useBackend = backend && backend.name === 'native' ? backend : null;
+  const initialColumns = Math.min(maxSteps + 1, options.expectedPairs !== undefined ? Math.ceil(2.2 * options.expectedPairs) + 16 : 64);
+  const right = new Basis(n, initialColumns, useBackend);
+  const left = new Basis(n, initialColumns, useBackend);
+  const both = [right, left];
+  const scratch = new Float64Array(maxSteps + 2);
   const alpha: number[] = [];
   const beta: number[] = [];
   let products = 0;
 
-  const start = new Float64Array(n);
-  for (let i = 0; i < n; i++) start[i] = random() - 0.5;
-  basis.push(start, norm(start));
-  rightColumns.push(0);
+  let p = new Float64Array(n);
+  for (let i = 0; i < n; i++) p[i] = random() - 0.5;
+  right.push(p, norm(p));
+  let previousLeft: Float64Array | null = null;
 
   let steps = 0;
   let nextCheck = 8;
@@ -182,33 +323,31 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
   let scale = 0;
   while (!finished) {
     // left vector: α_j q_j = Δ p_j − β_{j−1} q_{j−1}
-    const p = basis.columns[rightColumns[steps]];
     const q = new Float64Array(n);
     op.apply(p, q);
     products++;
-    if (steps > 0) {
-      const prev = basis.columns[leftColumns[steps - 1]];
+    if (previousLeft) {
       const b = beta[steps - 1];
-      for (let i = 0; i < n; i++) q[i] -= b * prev[i];
+      for (let i = 0; i < n; i++) q[i] -= b * previousLeft[i];
     }
-    const a = basis.orthogonalise(q);
+    const a = orthogonaliseAgainst(both, q, scratch);
     alpha.push(a);
-    basis.push(q, a);
-    leftColumns.push(basis.columns.length - 1);
+    left.push(q, a);
     // right vector: β_j p_{j+1} = Δᵀ q_j − α_j p_j = −Δ q_j − α_j p_j
     const r = new Float64Array(n);
     op.apply(q, r);
     products++;
     for (let i = 0; i < n; i++) r[i] = -r[i] - a * p[i];
     steps++;
-    const bNorm = basis.orthogonalise(r);
+    const bNorm = orthogonaliseAgainst(both, r, scratch);
     scale = Math.max(scale, a, bNorm);
     const invariant = bNorm <= INVARIANT_RELATIVE * scale;
-    const exhausted = steps >= maxSteps || basis.columns.length >= n;
+    const exhausted = steps >= maxSteps || right.count + left.count >= n;
     beta.push(invariant ? 0 : bNorm);
     if (!invariant && !exhausted) {
-      basis.push(r, bNorm);
-      rightColumns.push(basis.columns.length - 1);
+      right.push(r, bNorm);
+      p = r;
+      previousLeft = q;
     }
     if (steps >= nextCheck || invariant || exhausted) {
       summary = ritzSummary(alpha, beta, steps);
@@ -219,7 +358,7 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
       while (converged < sigma.length && relativeResiduals[converged] <= tolerance) converged++;
       options.onProgress?.({ steps, products, wanted: wantedCount, converged: Math.min(converged, wantedCount) });
       if ((count === undefined || sigma.length >= count) && converged >= need && need >= wantedCount) finished = true;
-      else if (invariant || basis.columns.length >= n) finished = true;
+      else if (invariant || right.count + left.count >= n) finished = true;
       else if (exhausted) {
         throw new Error(`the eigensolver did not converge in ${steps} steps (${converged} of ${need} triplets converged)`);
       }
@@ -229,36 +368,35 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
   const final = summary as RitzSummary;
   const keep = count ?? final.sigma.filter((s) => s > (cut as number)).length;
   if (keep > final.sigma.length) throw new Error(`only ${final.sigma.length} nonzero pairs exist; asked for ${keep}`);
-  const triplets = formTriplets(basis, alpha, beta, steps, final.sigma.subarray(0, keep), rightColumns, leftColumns, random);
-  return { size: n, sigma: Float64Array.from(final.sigma.subarray(0, keep)), ...triplets, relativeResiduals: Float64Array.from(final.relativeResiduals.subarray(0, keep)), steps, products };
+  const sigma = Float64Array.from(final.sigma.subarray(0, keep));
+  const triplets = formTriplets(right, left, alpha, beta, steps, sigma, random);
+  return { size: n, sigma, ...triplets, relativeResiduals: Float64Array.from(final.relativeResiduals.subarray(0, keep)), steps, products };
 }
 
 /** a_i = P y_i, b_i = Q x_i from the Jordan–Wielandt eigenvectors (y, x interleaved, scaled by 1/√2). */
 function formTriplets(
-  basis: Basis,
+  right: Basis,
+  left: Basis,
   alpha: number[],
   beta: number[],
   steps: number,
   sigma: Float64Array,
-  rightColumns: number[],
-  leftColumns: number[],
   random: () => number,
 ): { a: Float64Array[]; b: Float64Array[] } {
   const k = sigma.length;
   const m = 2 * steps;
   const vectors = tridiagonalEigenvectors(new Float64Array(m), jordanWielandtOffDiagonal(alpha, beta, steps), sigma, random);
-  const right = new Float64Array(steps * k);
-  const left = new Float64Array(steps * k);
+  const rightCoefficients = new Float64Array(right.count * k);
+  const leftCoefficients = new Float64Array(left.count * k);
   for (let c = 0; c < k; c++) {
     for (let j = 0; j < steps; j++) {
-      right[j + c * steps] = Math.SQRT2 * vectors[2 * j + c * m];
-      left[j + c * steps] = Math.SQRT2 * vectors[2 * j + 1 + c * m];
+      if (j < right.count) rightCoefficients[j + c * right.count] = Math.SQRT2 * vectors[2 * j + c * m];
+      leftCoefficients[j + c * left.count] = Math.SQRT2 * vectors[2 * j + 1 + c * m];
     }
   }
-  const n = basis.size;
-  const a = Array.from({ length: k }, () => new Float64Array(n));
-  const b = Array.from({ length: k }, () => new Float64Array(n));
-  combineColumns(basis.columns, Int32Array.from(rightColumns.slice(0, steps)), right, k, a, 0, n);
-  combineColumns(basis.columns, Int32Array.from(leftColumns.slice(0, steps)), left, k, b, 0, n);
+  const a = right.combine(rightCoefficients, k);
+  right.release();
+  const b = left.combine(leftCoefficients, k);
+  left.release();
   return { a, b };
 }
