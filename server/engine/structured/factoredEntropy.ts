@@ -38,9 +38,21 @@ export function factoredEntropy(
   const width = 2 * k;
   const columns: Float64Array[] = [];
   for (let i = 0; i < k; i++) columns.push(state.a[i], state.b[i]);
-  const gram = new Float64Array(width * width);
-  gatheredGram(columns, rows, gram);
-  const gramEig = backend.symmetricEigen(denseMatrix(width, width, gram));
+  let gram: DenseMatrix;
+  if (backend.name === 'native') {
+    // gathering the n × 2k rows once lets BLAS dsyrk do the O(n k²) product
+    const gathered = denseMatrix(n, width);
+    for (let c = 0; c < width; c++) {
+      const column = columns[c];
+      const offset = c * n;
+      for (let i = 0; i < n; i++) gathered.data[offset + i] = column[rows[i]];
+    }
+    gram = backend.gram(gathered);
+  } else {
+    gram = denseMatrix(width, width);
+    gatheredGram(columns, rows, gram.data);
+  }
+  const gramEig = backend.symmetricEigen(gram);
   const top = gramEig.values[width - 1] ?? 0;
   const kept: number[] = [];
   for (let c = width - 1; c >= 0; c--) if (gramEig.values[c] > NULL_DIRECTION_RELATIVE * top) kept.push(c);

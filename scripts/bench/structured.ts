@@ -1,0 +1,125 @@
+/**
+ * Benchmark of the structured (large-N) engine on the truncated pipeline: rows
+ * `{ task, engine: 'structured', N, seconds, peakRssMB, S }` for N = 4000, 20 000, 100 000
+ * (BENCH_MAX_N limits the sizes).
+ *
+ * Per N: one fixed-N sprinkling of the 2D diamond with tips t = ±√2; tasks in the order a run does them:
+ * - sprinkle: the points;
+ * - spectrum: the light-cone sweep order and every pair of iΔ above the √N/(4π) cut by Golub–Kahan–Lanczos;
+ * - state: the factored truncated SJ state (and its trace);
+ * - SSEE: the double-truncated entropy of the half-size diamond (tips t = ±√2/2, about N/4 elements);
+ * - pipeline: the sum of the four (S is given on SSEE and pipeline rows, null elsewhere).
+ * Targets (issue 9): N = 4000 within 3 s; N = 100 000 within 10 minutes and 4 GiB peak on 2 cores.
+ * Each N runs in a fresh child process so peakRssMB (maxRSS at the end of the task) is that size's own.
+ *
+ * Run alone with `npx tsx scripts/bench/structured.ts`, or through `npm run bench`.
+ */
+import { spawn } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+
+export interface StructuredBenchRow {
+  task: 'sprinkle' | 'spectrum' | 'state' | 'SSEE' | 'pipeline';
+  engine: 'structured';
+  N: number;
+  seconds: number;
+  peakRssMB: number;
+  S: number | null;
+  /** pairs kept above the cut, Lanczos steps and Δ products (spectrum rows) */
+  modesKept?: number;
+  steps?: number;
+  products?: number;
+}
+
+const thisFile = fileURLToPath(import.meta.url);
+const SIZES = [4000, 20_000, 100_000];
+
+function sizes(): number[] {
+  const text = process.env.BENCH_MAX_N;
+  if (!text) return SIZES;
+  const max = Number(text);
+  if (!Number.isFinite(max) || max < 10) throw new Error(`BENCH_MAX_N must be a number ≥ 10, got "${text}"`);
+  return SIZES.filter((n) => n <= max);
+}
+
+async function childRows(n: number): Promise<StructuredBenchRow[]> {
+  const { sprinkle } = await import('../../server/engine/sprinkle');
+  const { subregionElements } = await import('../../server/engine/entropy');
+  const { sqrtNCutoff } = await import('../../server/engine/truncation');
+  const { pauliJordan2DFromPoints } = await import('../../server/engine/structured/dominance2d');
+  const { topSkewPairs } = await import('../../server/engine/structured/lanczos');
+  const { factoredState, factoredTrace } = await import('../../server/engine/structured/factoredState');
+  const { factoredEntropy } = await import('../../server/engine/structured/factoredEntropy');
+  const rows: StructuredBenchRow[] = [];
+  let total = 0;
+  const timed = <T>(task: StructuredBenchRow['task'], work: () => T, extra: (value: T) => Partial<StructuredBenchRow> = () => ({})): T => {
+    const start = performance.now();
+    const value = work();
+    const seconds = (performance.now() - start) / 1000;
+    total += seconds;
+    rows.push({ task, engine: 'structured', N: n, seconds, peakRssMB: process.resourceUsage().maxRSS / 1024, S: null, ...extra(value) });
+    return value;
+  };
+  const s = timed('sprinkle', () =>
+    sprinkle({ region: { kind: 'diamond2d', properTime: 2 * Math.SQRT2 }, process: 'fixed', count: n, seed: `bench-${n}`, prng: 'arc4' }),
+  );
+  const cut = sqrtNCutoff(n);
+  let lastReport = performance.now();
+  const pairs = timed(
+    'spectrum',
+    () =>
+      topSkewPairs(pauliJordan2DFromPoints(s.points), {
+        cut,
+        expectedPairs: 2 * Math.sqrt(n),
+        onProgress: (p) => {
+          if (performance.now() - lastReport < 10_000) return;
+          lastReport = performance.now();
+          process.stderr.write(`bench structured N = ${n}: ${p.steps} steps, ${p.converged}/${p.wanted} pairs converged\n`);
+        },
+      }),
+    (p) => ({ modesKept: p.sigma.length, steps: p.steps, products: p.products }),
+  );
+  const state = timed('state', () => {
+    const state = factoredState(pairs, cut);
+    factoredTrace(state);
+    return state;
+  });
+  const entropy = timed(
+    'SSEE',
+    () => {
+      const half = Math.SQRT2 / 2;
+      const elements = subregionElements({ kind: 'diamond', past: { t: -half, x: 0 }, future: { t: half, x: 0 } }, s.points, 2);
+      return factoredEntropy(state, elements, { doubleTruncation: true });
+    },
+    (e) => ({ S: e.S }),
+  );
+  rows.push({ task: 'pipeline', engine: 'structured', N: n, seconds: total, peakRssMB: process.resourceUsage().maxRSS / 1024, S: entropy.S });
+  return rows;
+}
+
+function runChild(n: number): Promise<StructuredBenchRow[]> {
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, ['--import', 'tsx', thisFile, '--child', String(n)], { stdio: ['ignore', 'pipe', 'inherit'] });
+    let out = '';
+    child.stdout.on('data', (chunk) => (out += chunk));
+    child.on('error', reject);
+    child.on('close', (code) => {
+      if (code !== 0) return reject(new Error(`structured bench child for N = ${n} exited with ${code}`));
+      resolve(JSON.parse(out) as StructuredBenchRow[]);
+    });
+  });
+}
+
+export async function benchRows(): Promise<StructuredBenchRow[]> {
+  const rows: StructuredBenchRow[] = [];
+  for (const n of sizes()) {
+    process.stderr.write(`bench structured: N = ${n}…\n`);
+    rows.push(...(await runChild(n)));
+  }
+  return rows;
+}
+
+if (process.argv[1] === thisFile) {
+  const childIndex = process.argv.indexOf('--child');
+  if (childIndex >= 0) process.stdout.write(JSON.stringify(await childRows(Number(process.argv[childIndex + 1]))));
+  else process.stdout.write(JSON.stringify({ rows: await benchRows() }, null, 2) + '\n');
+}
