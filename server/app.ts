@@ -5,6 +5,7 @@ import express, { type Express } from 'express';
 import type { AppDeps } from './api/context';
 import { apiNotFound, errorHandler } from './api/middleware/errors';
 import { authRoutes } from './api/routes/auth';
+import { causalSetRoutes } from './api/routes/causalSets';
 import { cutRuleRoutes } from './api/routes/cutRules';
 import { healthRoutes } from './api/routes/health';
 import { invitationRoutes } from './api/routes/invitations';
@@ -12,6 +13,7 @@ import { outboxRoutes } from './api/routes/outbox';
 import { runRoutes } from './api/routes/runs';
 import { teamRoutes } from './api/routes/team';
 import { createAuthService } from './api/services/auth-service';
+import { createCausalSetService } from './api/services/causal-set-service';
 import { createCutRuleService } from './api/services/cut-rule-service';
 import { createHealthService } from './api/services/health-service';
 import { createInvitationService } from './api/services/invitation-service';
@@ -30,6 +32,7 @@ export function createApp(deps: AppDeps): Express {
   const outbox = createOutboxService({ dataSource });
   const runs = createRunService({ dataSource, computeQueue });
   const cutRules = createCutRuleService({ dataSource });
+  const causalSets = createCausalSetService({ dataSource });
   const health = createHealthService({ dataSource, redis, computeQueue, version: config.version });
 
   const app = express();
@@ -49,6 +52,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(invitationRoutes({ auth, invitations }));
   api.use(runRoutes({ auth, teams, runs }));
   api.use(cutRuleRoutes({ auth, teams, cutRules }));
+  api.use(causalSetRoutes({ auth, teams, causalSets }));
   if (config.mode === 'development') api.use(outboxRoutes({ auth, teams, outbox }));
   api.use(apiNotFound);
   api.use(errorHandler);

@@ -1,10 +1,11 @@
 import { DataSource } from 'typeorm';
+import { causalSetEntities } from './causal-set-entities';
 import { platformEntities } from './entities';
 import { runEntities } from './run-entities';
 import { migrations } from './migrations/index';
 
 /** Every EntitySchema the API and the worker use; later features append theirs here. */
-const allEntities = [...platformEntities, ...runEntities];
+const allEntities = [...platformEntities, ...runEntities, ...causalSetEntities];
 
 export function createDataSource(databaseUrl: string): DataSource {
   return new DataSource({

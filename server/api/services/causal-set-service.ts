@@ -1,0 +1,203 @@
+import { createHash } from 'node:crypto';
+import { gunzipSync, gzipSync } from 'node:zlib';
+import type { DataSource } from 'typeorm';
+import {
+  CAUSAL_SET_FILE_LIMIT_BYTES,
+  causalSetMetadataSchema,
+  metadataFromFormFields,
+  type CausalSetDetail,
+  type CausalSetLimits,
+  type CausalSetSummary,
+} from '@shared/causalSets';
+import type { RegionSpec } from '@shared/vacuum';
+import {
+  coordinatesOrder,
+  orderSummary,
+  packPoints,
+  packRelation,
+  parseCoordinatesCsv,
+  parseRelationList,
+  unpackPoints,
+  unpackRelation,
+} from '../../causalSets/parse';
+import type { CausalSetRow } from '../../db/causal-set-entities';
+import * as causalSets from '../../db/repositories/causal-sets';
+import type { UserRow } from '../../db/entities';
+import { DENSE_SIZE_LIMIT } from '../../engine/index';
+import type { BitRelation } from '../../engine/order';
+import { makeRegion } from '../../engine/regions';
+import type { TeamContext } from '../context';
+import { badRequest, notFound } from '../errors';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+export interface UploadedFile {
+  originalName: string;
+  bytes: Buffer;
+}
+
+/** What a run needs of an imported causal set to compute on it (and to record where it came from). */
+export type CausalSetForRun = {
+  id: string;
+  name: string;
+  checksum: string;
+  dimension: 2 | 4;
+  n: number;
+  density: number | null;
+  region: RegionSpec | null;
+} & ({ kind: 'coordinates'; points: Float64Array } | { kind: 'relations'; causal: BitRelation });
+
+export type CausalSetService = ReturnType<typeof createCausalSetService>;
+
+/** Keeps the last path segment of a client-sent name and anything printable; never empty. */
+function cleanFileName(name: string): string {
+  const base = name.split(/[\\/]/).pop() ?? '';
+  // eslint-disable-next-line no-control-regex
+  const printable = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 255);
+  return printable || 'causal-set.csv';
+}
+
+function toSummary(row: causalSets.CausalSetListing): CausalSetSummary {
+  const { layerSizes: _layers, ...stats } = row.stats;
+  return {
+    id: row.id,
+    name: row.name,
+    kind: row.kind,
+    dimension: row.dimension,
+    N: row.n,
+    region: row.region,
+    density: row.density,
+    volume: row.volume,
+    fileName: row.fileName,
+    fileBytes: row.fileBytes,
+    checksum: row.checksum,
+    stats,
+    createdBy: { id: row.createdBy, name: row.createdByName },
+    createdAt: row.createdAt.toISOString(),
+  };
+}
+
+export function createCausalSetService(deps: { dataSource: DataSource; maxElements?: number; maxFileBytes?: number }) {
+  const { dataSource } = deps;
+  const m = dataSource.manager;
+  const limits: CausalSetLimits = {
+    maxElements: deps.maxElements ?? DENSE_SIZE_LIMIT.maxN,
+    maxFileBytes: deps.maxFileBytes ?? CAUSAL_SET_FILE_LIMIT_BYTES,
+  };
+  const sizeLimit = { maxElements: limits.maxElements, reason: DENSE_SIZE_LIMIT.reason };
+
+  const validId = (id: string) => (uuidPattern.test(id) ? id.toLowerCase() : null);
+
+  async function listingOrThrow(teamId: string, id: string): Promise<causalSets.CausalSetListing> {
+    const key = validId(id);
+    const row = key ? await causalSets.findCausalSetListing(m, teamId, key) : null;
+    if (!row) throw notFound('Causal set not found.');
+    return row;
+  }
+
+  return {
+    limits: () => limits,
+
+    /**
+     * Validates the metadata and the file completely before anything is written: a CausalSetFileError
+     * (row/column messages) or a ZodError leaves the database untouched.
+     */
+    async importFile(team: TeamContext, uploader: UserRow, fields: Record<string, unknown>, file: UploadedFile | undefined): Promise<{ id: string }> {
+      const metadata = causalSetMetadataSchema.parse(metadataFromFormFields(fields));
+      if (!file) throw badRequest('file_missing', 'Attach the file as the multipart field "file".');
+      let values: Omit<CausalSetRow, 'id' | 'createdAt' | 'teamId' | 'createdBy' | 'name' | 'fileName' | 'fileBytes' | 'checksum' | 'original'>;
+      if (metadata.kind === 'coordinates') {
+        const parsed = parseCoordinatesCsv(file.bytes, { region: metadata.region, dimension: metadata.dimension, limit: sizeLimit });
+        const summary = orderSummary(coordinatesOrder(parsed.points, parsed.dimension, metadata.region));
+        const volume = metadata.region ? makeRegion(metadata.region).volume : null;
+        values = {
+          kind: 'coordinates',
+          dimension: parsed.dimension,
+          n: parsed.n,
+          region: metadata.region ?? null,
+          density: metadata.density ?? (volume ? parsed.n / volume : null),
+          volume,
+          stats: summary,
+          elements: gzipSync(packPoints(parsed.points)),
+        };
+      } else {
+        const parsed = parseRelationList(file.bytes, { count: metadata.count!, limit: sizeLimit });
+        values = {
+          kind: 'relations',
+          dimension: metadata.dimension!,
+          n: parsed.n,
+          region: null,
+          density: metadata.density ?? null,
+          volume: null,
+          stats: orderSummary(parsed.causal),
+          elements: gzipSync(packRelation(parsed.causal)),
+        };
+      }
+      const row = await causalSets.insertCausalSet(m, {
+        ...values,
+        teamId: team.id,
+        createdBy: uploader.id,
+        name: metadata.name,
+        fileName: cleanFileName(file.originalName),
+        fileBytes: file.bytes.length,
+        checksum: createHash('sha256').update(file.bytes).digest('hex'),
+        original: gzipSync(file.bytes),
+      });
+      return { id: row.id };
+    },
+
+    async list(teamId: string): Promise<CausalSetSummary[]> {
+      return (await causalSets.listCausalSets(m, teamId)).map(toSummary);
+    },
+
+    async detail(teamId: string, id: string): Promise<CausalSetDetail> {
+      const listing = await listingOrThrow(teamId, id);
+      const summary = toSummary(listing);
+      if (listing.kind === 'relations') {
+        return { ...summary, preview: { kind: 'relations', layerSizes: listing.stats.layerSizes } };
+      }
+      const stored = await causalSets.findCausalSetElements(m, teamId, listing.id);
+      const flat = unpackPoints(gunzipSync(stored!.elements));
+      const d = listing.dimension;
+      const points: number[][] = [];
+      for (let i = 0; i < listing.n; i++) points.push(Array.from(flat.subarray(i * d, (i + 1) * d)));
+      return {
+        ...summary,
+        preview: { kind: 'coordinates', columns: d === 2 ? ['t', 'x'] : ['t', 'x', 'y', 'z'], points },
+      };
+    },
+
+    /** The uploaded bytes, exactly as they came. */
+    async originalFile(teamId: string, id: string): Promise<{ fileName: string; bytes: Buffer }> {
+      const key = validId(id);
+      const row = key ? await causalSets.findCausalSetOriginal(m, teamId, key) : null;
+      if (!row) throw notFound('Causal set not found.');
+      return { fileName: row.fileName, bytes: gunzipSync(row.original) };
+    },
+
+    async remove(teamId: string, id: string): Promise<void> {
+      const key = validId(id);
+      if (!key || !(await causalSets.deleteCausalSet(m, teamId, key))) throw notFound('Causal set not found.');
+    },
+
+    /** The elements of a causal set of the team, ready for the engine; null when there is none. */
+    async loadForRun(teamId: string, id: string): Promise<CausalSetForRun | null> {
+      const key = validId(id);
+      const row = key ? await causalSets.findCausalSetElements(m, teamId, key) : null;
+      if (!row) return null;
+      const raw = gunzipSync(row.elements);
+      const common = {
+        id: row.id,
+        name: row.name,
+        checksum: row.checksum,
+        dimension: row.dimension,
+        n: row.n,
+        density: row.density,
+        region: row.region,
+      };
+      return row.kind === 'coordinates'
+        ? { ...common, kind: 'coordinates', points: unpackPoints(raw) }
+        : { ...common, kind: 'relations', causal: unpackRelation(raw, row.n) };
+    },
+  };
+}
