@@ -160,7 +160,10 @@ describe('structured against dense on the same points (issue 9: eigenvalues 1e-8
     const d = factoredEntropy(state, elements, { doubleTruncation: true });
     expect(d.modesKept).toBe(denseS.keptDouble);
     expect(Math.abs(d.S - denseS.double)).toBeLessThan(1e-6);
-    expect(Math.abs(factoredEntropy(state, elements).S - denseS.single)).toBeLessThan(1e-6);
+    // Without the second cut the restricted modes go down to 1e-6 of the largest and Ã⁻¹ divides by
+    // their σ²; both engines resolve those only to about ε‖A‖²/σ (physics notes §4), so this one is
+    // compared relatively, looser than the well-conditioned double-truncated S above.
+    expect(Math.abs(factoredEntropy(state, elements).S / denseS.single - 1)).toBeLessThan(1e-5);
   });
 
   it('modes:K asks for the K largest', () => {
