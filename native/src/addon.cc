@@ -14,6 +14,7 @@
 //   gram(rows, cols, a) -> c (cols × cols, both triangles)          dsyrk: C = Aᵀ A
 //   solveTriangular(n, t, nrhs, b, lower, unitDiag, transpose) -> x dtrsm: T X = B or Tᵀ X = B
 //   info() -> { blasConfig, threads }
+//   setThreads(n)                                                    openblas_set_num_threads
 #include <napi.h>
 #include <cblas.h>
 
@@ -312,7 +313,15 @@ Napi::Value Info(const Napi::CallbackInfo& info) {
   return result;
 }
 
+Napi::Value SetThreads(const Napi::CallbackInfo& info) {
+  int threads = DimensionArg(info, 0, "threads");
+  if (threads < 1) throw Napi::RangeError::New(info.Env(), "threads must be at least 1");
+  openblas_set_num_threads(threads);
+  return Napi::Number::New(info.Env(), openblas_get_num_threads());
+}
+
 Napi::Object Init(Napi::Env env, Napi::Object exports) {
+  exports.Set("setThreads", Napi::Function::New(env, SetThreads));
   exports.Set("symmetricEigen", Napi::Function::New(env, SymmetricEigen));
   exports.Set("multiply", Napi::Function::New(env, Multiply));
   exports.Set("gram", Napi::Function::New(env, Gram));

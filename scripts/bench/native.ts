@@ -10,7 +10,8 @@
  * - ssee-double-truncated: the √N/(4π)-truncated state, its checks and S with double truncation;
  * - dense-pipeline: all of the above (the sum, timed as one).
  * Each (engine, N) runs in a fresh child process so that peakRssMB (the child's maximum resident set
- * so far, sampled at the end of the task) is not inherited from an earlier size.
+ * so far, sampled at the end of the task) is not inherited from an earlier size. Rows also carry the
+ * CPU seconds and the load average, since wall time on a shared machine depends on the other work.
  *
  * Targets (issue 8): native N = 2000 within 2 s and N = 4000 within 15 s for the whole pipeline.
  * ml-matrix is slow (its eigensolver grows as N³ in JavaScript), so it runs only up to
@@ -19,6 +20,7 @@
  * Run alone with `npx tsx scripts/bench/native.ts` (prints JSON), or through `npm run bench`.
  */
 import { spawn } from 'node:child_process';
+import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -28,6 +30,11 @@ export interface BenchRow {
   N: number;
   seconds: number;
   peakRssMB: number;
+  /** CPU time of the process over the task (all threads): with a busy machine wall time ≫ this */
+  cpuSeconds: number;
+  /** 1-minute load average when the task ended, against `cores` */
+  loadAverage: number;
+  cores: number;
 }
 
 const thisFile = fileURLToPath(import.meta.url);
@@ -56,12 +63,29 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
   const backend = getBackend(engine);
   const rows: BenchRow[] = [];
   const peakRssMB = () => Math.round(process.resourceUsage().maxRSS / 1024);
+  const cores = os.availableParallelism();
+  const cpuSince = (since: NodeJS.CpuUsage) => {
+    const used = process.cpuUsage(since);
+    return Number(((used.user + used.system) / 1e6).toFixed(3));
+  };
+  const row = (task: BenchRow['task'], from: number, cpuFrom: NodeJS.CpuUsage): BenchRow => ({
+    task,
+    engine,
+    N,
+    seconds: Number(((performance.now() - from) / 1000).toFixed(3)),
+    peakRssMB: peakRssMB(),
+    cpuSeconds: cpuSince(cpuFrom),
+    loadAverage: Number(os.loadavg()[0].toFixed(2)),
+    cores,
+  });
   const begin = performance.now();
+  const cpuBegin = process.cpuUsage();
   let start = begin;
+  let cpuStart = cpuBegin;
   const record = (task: BenchRow['task']) => {
-    const now = performance.now();
-    rows.push({ task, engine, N, seconds: Number(((now - start) / 1000).toFixed(3)), peakRssMB: peakRssMB() });
-    start = now;
+    rows.push(row(task, start, cpuStart));
+    start = performance.now();
+    cpuStart = process.cpuUsage();
   };
 
   const sprinkling = sprinkle(
@@ -88,7 +112,7 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
   if (!Number.isFinite(untruncated.S) || !Number.isFinite(doubleTruncated.S)) {
     throw new Error(`non-finite entropy at N = ${N} on ${engine}`);
   }
-  rows.push({ task: 'dense-pipeline', engine, N, seconds: Number(((performance.now() - begin) / 1000).toFixed(3)), peakRssMB: peakRssMB() });
+  rows.push(row('dense-pipeline', begin, cpuBegin));
   return rows;
 }
 

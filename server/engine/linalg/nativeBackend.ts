@@ -9,15 +9,19 @@
  * - gram: BLAS dsyrk, C = AᵀA (half the flops of a general product), mirrored to both triangles.
  * - solveTriangular: BLAS dtrsm, T X = B or Tᵀ X = B by substitution.
  *
- * OpenBLAS uses every core by default; OPENBLAS_NUM_THREADS=1 is much faster when other processes
- * keep the cores busy (its threads spin while they wait: dsyevd at N = 2000 took 1.4 s on one thread
- * against 5.0 s on two on a loaded 2-core machine).
+ * Threads: OpenBLAS splits every call over all cores, and its threads wait for each other at every
+ * step of the tridiagonal reduction; when other processes keep the cores busy that costs far more than
+ * it gains (dsyevd at N = 2000: 1.4 s on one thread against 5.0 s on two, on a 2-core machine with a
+ * load average of 8). So by default (TACET_BLAS_THREADS=auto) each large call runs on all cores while
+ * the 1-minute load average is at most the number of cores, and on one thread when the machine is
+ * oversubscribed. TACET_BLAS_THREADS=<n> or OPENBLAS_NUM_THREADS fixes the count instead.
  *
  * When the addon is missing or does not load (no compiler, no OpenBLAS at build or run time), this
  * module yields no backend and the reason, and the engine serves from ml-matrix instead.
  */
 import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
+import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type {
@@ -49,6 +53,7 @@ interface TacetLinalgAddon {
     transpose: boolean,
   ): Float64Array;
   info(): { blasConfig: string; threads: number };
+  setThreads(threads: number): number;
 }
 
 export interface NativeLoadResult {
@@ -75,8 +80,31 @@ function checkData(name: string, m: DenseMatrix): void {
   }
 }
 
+/** Calls below this many multiply–adds are too short for the thread count to matter. */
+const THREAD_POLICY_MIN_WORK = 256 ** 3;
+
+/** Returns the function to call before a large routine (see the module note on threads). */
+function threadPolicy(addon: TacetLinalgAddon): (work: number) => void {
+  const setting = process.env.TACET_BLAS_THREADS ?? (process.env.OPENBLAS_NUM_THREADS ? 'fixed' : 'auto');
+  if (setting === 'fixed') return () => {};
+  const cores = Math.max(1, os.availableParallelism());
+  if (setting !== 'auto') {
+    const fixed = Number(setting);
+    if (!Number.isInteger(fixed) || fixed < 1) throw new Error(`TACET_BLAS_THREADS must be auto or a positive integer, got "${setting}"`);
+    addon.setThreads(fixed);
+    return () => {};
+  }
+  let current = addon.info().threads;
+  return (work) => {
+    if (work < THREAD_POLICY_MIN_WORK) return;
+    const wanted = os.loadavg()[0] > cores ? 1 : cores;
+    if (wanted !== current) current = addon.setThreads(wanted);
+  };
+}
+
 /** Wraps the addon in the LinearAlgebraBackend interface, checking shapes with messages in our terms. */
 export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend {
+  const beforeLargeCall = threadPolicy(addon);
   return {
     name: 'native',
 
@@ -85,6 +113,7 @@ export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend 
       if (a.rows !== a.cols) throw new RangeError(`symmetricEigen needs a square matrix, got ${a.rows}×${a.cols}`);
       const wantVectors = options.vectors !== false;
       const n = a.rows;
+      beforeLargeCall(n * n * n);
       const r = addon.symmetricEigen(n, a.data, wantVectors, options.above);
       return {
         values: r.values,
@@ -107,11 +136,13 @@ export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend 
             `${transposeB ? '(' : ''}${b.rows}×${b.cols}${transposeB ? ')ᵀ' : ''}`,
         );
       }
+      beforeLargeCall(m * n * k);
       return { rows: m, cols: n, data: addon.multiply(m, n, k, a.data, transposeA, b.data, transposeB) };
     },
 
     gram(a) {
       checkData('gram', a);
+      beforeLargeCall(a.rows * a.cols * a.cols);
       return { rows: a.cols, cols: a.cols, data: addon.gram(a.rows, a.cols, a.data) };
     },
 
@@ -121,6 +152,7 @@ export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend 
       if (t.rows !== t.cols || b.rows !== t.rows) {
         throw new RangeError(`solveTriangular: T (${t.rows}×${t.cols}) must be square and match B (${b.rows}×${b.cols})`);
       }
+      beforeLargeCall(t.rows * t.rows * b.cols);
       const data = addon.solveTriangular(
         t.rows,
         t.data,
