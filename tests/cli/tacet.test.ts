@@ -39,7 +39,7 @@ describe('tacet command line', () => {
     expect(entropy.n).toBeGreaterThan(10);
     expect(entropy.S).toBeGreaterThan(0);
     expect(entropy.modesKept % 2).toBe(0);
-  });
+  }, 120_000);
 
   it('runs massive and 4D fields when the region gives the density', () => {
     tacet('sprinkle', '--region', 'diamond4d', '--proper-time', '2', '--n', '120', '--seed', '4d', '--out', 'd4.csv');
@@ -49,7 +49,7 @@ describe('tacet command line', () => {
     const out = JSON.parse(r.stdout);
     expect(out.dimension).toBe(4);
     expect(out.density).toBeCloseTo(120 / ((Math.PI * 16) / 24), 10);
-  });
+  }, 120_000);
 
   it('rejects bad input with one line on stderr and exit code 2', () => {
     writeFileSync(join(dir, 'nan.csv'), 't,x\n0,0\nNaN,1\n');
@@ -78,7 +78,7 @@ describe('tacet command line', () => {
       expect(r.stderr.trim().split('\n'), args.join(' ')).toHaveLength(1);
       expect(r.stderr).toMatch(/^tacet: /);
     }
-  });
+  }, 240_000);
 
   it('prints help', () => {
     const r = tacet('--help');

@@ -1,6 +1,13 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import { computeVacuum, type VacuumResult } from '../../server/engine/index';
+import type { TruncationRule } from '../../shared/vacuum';
+import { computeVacuum } from '../../server/engine/index';
 import { entanglementEntropy, subregionElements } from '../../server/engine/entropy';
+import { retardedGreen } from '../../server/engine/green';
+import { causalMatrix } from '../../server/engine/order';
+import { pauliJordan, pauliJordanSpectrum } from '../../server/engine/pauliJordan';
+import { sjState, type SjState } from '../../server/engine/sjState';
+import { sprinkle } from '../../server/engine/sprinkle';
+import { applyTruncation } from '../../server/engine/truncation';
 
 // Statistical test, seeded: three fixed-N sprinklings of N = 600 into the diamond with tips t = ±√2, and
 // centred sub-diamonds of growing size. Expected behaviour from Sorkin 2012 / Saravani–Sorkin–Yazdi 2014
@@ -9,26 +16,31 @@ import { entanglementEntropy, subregionElements } from '../../server/engine/entr
 const seeds = ['ssee-a', 'ssee-b', 'ssee-c'];
 const fractions = [0.25, 0.35, 0.5];
 const halfHeight = Math.SQRT2;
-const runs: { full: VacuumResult; cut: VacuumResult }[] = [];
+interface Run {
+  points: Float64Array;
+  full: SjState;
+  cut: SjState;
+}
+const runs: Run[] = [];
 
-beforeAll(async () => {
+beforeAll(() => {
   for (const seed of seeds) {
-    const source = { kind: 'sprinkling' as const, sprinkling: { region: { kind: 'diamond2d' as const, properTime: 2 * halfHeight }, count: 600, seed } };
-    const full = await computeVacuum({ source, truncation: { rule: 'none' }, keepState: true });
-    const cut = await computeVacuum({ source, truncation: { rule: 'sqrtN' }, keepState: true });
-    runs.push({ full, cut });
+    const s = sprinkle({ region: { kind: 'diamond2d', properTime: 2 * halfHeight }, process: 'fixed', count: 600, seed, prng: 'arc4' });
+    const delta = pauliJordan(retardedGreen({ points: s.points, dimension: 2, causal: causalMatrix(s.points, 2) }));
+    const spectrum = pauliJordanSpectrum(delta);
+    const state = (rule: TruncationRule) => sjState(delta, spectrum, applyTruncation(spectrum.positive, s.count, rule));
+    runs.push({ points: s.points, full: state({ rule: 'none' }), cut: state({ rule: 'sqrtN' }) });
   }
-}, 120_000);
+}, 240_000);
 
 function meanEntropies(doubleTruncation: boolean) {
   return fractions.map((f) => {
     let s = 0;
     let n = 0;
-    for (const { full, cut } of runs) {
-      const run = doubleTruncation ? cut : full;
+    for (const { points, full, cut } of runs) {
       const subregion = { kind: 'diamond' as const, past: { t: -f * halfHeight, x: 0 }, future: { t: f * halfHeight, x: 0 } };
-      const elements = subregionElements(subregion, run.points, 2);
-      const e = entanglementEntropy(run.state!, elements, { doubleTruncation });
+      const elements = subregionElements(subregion, points, 2);
+      const e = entanglementEntropy(doubleTruncation ? cut : full, elements, { doubleTruncation });
       s += e.S;
       n += e.n;
     }
@@ -58,15 +70,16 @@ describe('spacetime entanglement entropy of sub-diamonds (statistical, seeded)',
   });
 
   it('reports the entropy through the pipeline for a subregion given as element labels', async () => {
-    const { full } = runs[0];
-    const elements = Array.from(subregionElements({ kind: 'diamond', past: { t: -0.7, x: 0 }, future: { t: 0.7, x: 0 } }, full.points, 2));
+    const { points, cut } = runs[0];
+    const elements = Array.from(subregionElements({ kind: 'diamond', past: { t: -0.7, x: 0 }, future: { t: 0.7, x: 0 } }, points, 2));
     const viaPipeline = await computeVacuum({
-      source: { kind: 'points', points: full.points, dimension: 2, region: { kind: 'diamond2d', properTime: 2 * halfHeight } },
+      source: { kind: 'points', points, dimension: 2, region: { kind: 'diamond2d', properTime: 2 * halfHeight } },
+      truncation: { rule: 'sqrtN' },
       subregion: { kind: 'elements', indices: elements },
     });
-    const direct = entanglementEntropy(full.state!, elements);
+    const direct = entanglementEntropy(cut, elements);
     expect(viaPipeline.entropy?.n).toBe(elements.length);
     expect(viaPipeline.entropy?.S).toBeCloseTo(direct.S, 8);
     expect(viaPipeline.density).toBeCloseTo(600 / 4, 10);
-  });
+  }, 120_000);
 });

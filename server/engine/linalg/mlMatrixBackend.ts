@@ -24,11 +24,14 @@ function multiplyPlain(a: DenseMatrix, b: DenseMatrix): DenseMatrix {
   const m = a.rows;
   const c = denseMatrix(m, b.cols);
   const ad = a.data;
+  const bd = b.data;
   const cd = c.data;
+  const inner = a.cols;
+  const bRows = b.rows;
   for (let j = 0; j < b.cols; j++) {
     const cj = j * m;
-    for (let k = 0; k < a.cols; k++) {
-      const bkj = b.data[k + j * b.rows];
+    for (let k = 0; k < inner; k++) {
+      const bkj = bd[k + j * bRows];
       if (bkj === 0) continue;
       const ak = k * m;
       for (let i = 0; i < m; i++) cd[cj + i] += ad[ak + i] * bkj;
@@ -42,13 +45,17 @@ function multiplyTransposeA(a: DenseMatrix, b: DenseMatrix): DenseMatrix {
   if (a.rows !== b.rows) throw new RangeError(`cannot multiply (${a.rows}×${a.cols})ᵀ by ${b.rows}×${b.cols}`);
   const n = a.rows;
   const c = denseMatrix(a.cols, b.cols);
+  const ad = a.data;
+  const bd = b.data;
+  const cd = c.data;
+  const m = a.cols;
   for (let j = 0; j < b.cols; j++) {
     const bj = j * n;
-    for (let i = 0; i < a.cols; i++) {
+    for (let i = 0; i < m; i++) {
       const ai = i * n;
       let s = 0;
-      for (let k = 0; k < n; k++) s += a.data[ai + k] * b.data[bj + k];
-      c.data[i + j * a.cols] = s;
+      for (let k = 0; k < n; k++) s += ad[ai + k] * bd[bj + k];
+      cd[i + j * m] = s;
     }
   }
   return c;
@@ -97,15 +104,18 @@ export const mlMatrixBackend: LinearAlgebraBackend = {
 
   gram(a) {
     const n = a.rows;
-    const g = denseMatrix(a.cols, a.cols);
-    for (let j = 0; j < a.cols; j++) {
+    const m = a.cols;
+    const g = denseMatrix(m, m);
+    const ad = a.data;
+    const gd = g.data;
+    for (let j = 0; j < m; j++) {
       const aj = j * n;
       for (let i = 0; i <= j; i++) {
         const ai = i * n;
         let s = 0;
-        for (let k = 0; k < n; k++) s += a.data[ai + k] * a.data[aj + k];
-        g.data[i + j * a.cols] = s;
-        g.data[j + i * a.cols] = s;
+        for (let k = 0; k < n; k++) s += ad[ai + k] * ad[aj + k];
+        gd[i + j * m] = s;
+        gd[j + i * m] = s;
       }
     }
     return g;
