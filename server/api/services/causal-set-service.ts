@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import { gunzipSync, gzipSync } from 'node:zlib';
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
 import {
   CAUSAL_SET_FILE_LIMIT_BYTES,
   causalSetMetadataSchema,
@@ -20,11 +20,11 @@ import {
   unpackPoints,
   unpackRelation,
 } from '../../causalSets/parse';
+import { encodeFloat64 } from '../../db/arrays';
 import type { CausalSetRow } from '../../db/causal-set-entities';
 import * as causalSets from '../../db/repositories/causal-sets';
 import type { UserRow } from '../../db/entities';
 import { DENSE_SIZE_LIMIT } from '../../engine/index';
-import type { BitRelation } from '../../engine/order';
 import { makeRegion } from '../../engine/regions';
 import type { TeamContext } from '../context';
 import { badRequest, notFound } from '../errors';
@@ -36,16 +36,62 @@ export interface UploadedFile {
   bytes: Buffer;
 }
 
-/** What a run needs of an imported causal set to compute on it (and to record where it came from). */
-export type CausalSetForRun = {
+/** Where a run's elements came from, kept in the run's stored request. */
+export interface CausalSetReference {
   id: string;
   name: string;
+  kind: 'coordinates' | 'relations';
+  /** SHA-256 of the uploaded file */
   checksum: string;
-  dimension: 2 | 4;
-  n: number;
+  N: number;
   density: number | null;
   region: RegionSpec | null;
-} & ({ kind: 'coordinates'; points: Float64Array } | { kind: 'relations'; causal: BitRelation });
+}
+
+/** An imported causal set as a run takes it: its reference and its elements, in the run's storage form. */
+export interface CausalSetRunInput {
+  reference: CausalSetReference;
+  dimension: 2 | 4;
+  n: number;
+  /** coordinates, flat; null for a relation list */
+  points: Float64Array | null;
+  /** the closed relation's bit-packed words; null for coordinates */
+  relationWords: Uint32Array | null;
+  /** what the run row keeps so it never depends on the causal set again */
+  stored: { points: Buffer | null; relation: Buffer | null };
+}
+
+/** The copy a run makes of a causal set of the team; null when the team has no such set. */
+export async function loadCausalSetRunInput(m: EntityManager, teamId: string, id: string): Promise<CausalSetRunInput | null> {
+  const row = uuidPattern.test(id) ? await causalSets.findCausalSetElements(m, teamId, id.toLowerCase()) : null;
+  if (!row) return null;
+  const reference: CausalSetReference = {
+    id: row.id,
+    name: row.name,
+    kind: row.kind,
+    checksum: row.checksum,
+    N: row.n,
+    density: row.density,
+    region: row.region,
+  };
+  if (row.kind === 'coordinates') {
+    const points = unpackPoints(gunzipSync(row.elements));
+    return { reference, dimension: row.dimension, n: row.n, points, relationWords: null, stored: { points: encodeFloat64(points), relation: null } };
+  }
+  return {
+    reference,
+    dimension: row.dimension,
+    n: row.n,
+    points: null,
+    relationWords: decodeRelationWords(row.elements, row.n),
+    stored: { points: null, relation: row.elements },
+  };
+}
+
+/** Stored relation (gzip of the bit-packed closed relation) → its words, as the engine's order source takes them. */
+export function decodeRelationWords(stored: Uint8Array, n: number): Uint32Array {
+  return unpackRelation(gunzipSync(stored), n).words;
+}
 
 export type CausalSetService = ReturnType<typeof createCausalSetService>;
 
@@ -178,26 +224,6 @@ export function createCausalSetService(deps: { dataSource: DataSource; maxElemen
     async remove(teamId: string, id: string): Promise<void> {
       const key = validId(id);
       if (!key || !(await causalSets.deleteCausalSet(m, teamId, key))) throw notFound('Causal set not found.');
-    },
-
-    /** The elements of a causal set of the team, ready for the engine; null when there is none. */
-    async loadForRun(teamId: string, id: string): Promise<CausalSetForRun | null> {
-      const key = validId(id);
-      const row = key ? await causalSets.findCausalSetElements(m, teamId, key) : null;
-      if (!row) return null;
-      const raw = gunzipSync(row.elements);
-      const common = {
-        id: row.id,
-        name: row.name,
-        checksum: row.checksum,
-        dimension: row.dimension,
-        n: row.n,
-        density: row.density,
-        region: row.region,
-      };
-      return row.kind === 'coordinates'
-        ? { ...common, kind: 'coordinates', points: unpackPoints(raw) }
-        : { ...common, kind: 'relations', causal: unpackRelation(raw, row.n) };
     },
   };
 }

@@ -14,6 +14,7 @@ import { decodeFloat64, decodeInt32 } from '../../db/arrays';
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
+import { loadCausalSetRunInput, type CausalSetReference } from './causal-set-service';
 import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
@@ -35,6 +36,8 @@ export interface StoredRunRequest {
   doubleTruncation: boolean;
   sprinkling?: SprinklingSpec;
   reusedPoints?: { runId: string; N: number; density: number | null };
+  /** an imported causal set; its elements are copied into the run's row */
+  causalSet?: CausalSetReference;
 }
 
 /** The engine request for a stored run; `points` are the run's stored points when it reuses some. */
@@ -45,6 +48,13 @@ export function toEngineRequest(request: StoredRunRequest, dimension: 2 | 4, poi
     subregion: request.subregion,
     doubleTruncation: request.doubleTruncation,
   };
+  if (request.causalSet) {
+    const imported = request.causalSet;
+    if (!points) throw new EngineInputError(`this run has lost the elements of the causal set "${imported.name}"`);
+    // with the region the engine checks membership, takes ρ = N/V and the periodic x of a cylinder
+    const placement = imported.region ? { region: imported.region } : imported.density !== null ? { density: imported.density } : {};
+    return { ...settings, source: { kind: 'points', points, dimension, ...placement } };
+  }
   if (request.reusedPoints) {
     if (!points) throw new EngineInputError('this re-analysis has lost the points it was to reuse');
     return {
@@ -184,9 +194,34 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   return {
     async create(team: TeamContext, author: UserRow, body: unknown): Promise<{ id: string }> {
       const request = createRunRequestSchema.parse(body);
-      if (request.causalSetId !== undefined || !request.sprinkling) {
-        throw new HttpError(422, 'invalid_request', `No imported causal set ${request.causalSetId} exists in this team; give a sprinkling.`);
+      if (request.causalSetId !== undefined) {
+        const imported = await loadCausalSetRunInput(m, team.id, request.causalSetId);
+        if (!imported) throw new HttpError(422, 'invalid_request', `No imported causal set ${request.causalSetId} exists in this team.`);
+        const stored: StoredRunRequest = {
+          ...(request.title ? { title: request.title } : {}),
+          mass: request.mass,
+          truncation: request.truncation,
+          ...(request.subregion ? { subregion: request.subregion } : {}),
+          doubleTruncation: request.doubleTruncation,
+          causalSet: imported.reference,
+        };
+        validateForEngine(toEngineRequest(stored, imported.dimension, imported.points));
+        return {
+          id: await storeAndEnqueue({
+            teamId: team.id,
+            authorId: author.id,
+            title: request.title || null,
+            request: stored as unknown as Record<string, unknown>,
+            dimension: imported.dimension,
+            regionKind: 'imported',
+            requestedN: imported.n,
+            truncationText: formatTruncationRule(request.truncation),
+            parentRunId: null,
+            points: imported.stored.points,
+          }),
+        };
       }
+      if (!request.sprinkling) throw new HttpError(422, 'invalid_request', 'Give a sprinkling or the id of an imported causal set.');
       const sprinkling = request.sprinkling;
       const stored: StoredRunRequest = {
         ...(request.title ? { title: request.title } : {}),
@@ -258,6 +293,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         // a parent's double truncation lapses with its subregion unless asked for again
         doubleTruncation: changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false),
         ...(base.sprinkling ? { sprinkling: base.sprinkling } : {}),
+        ...(base.causalSet ? { causalSet: base.causalSet } : {}),
         reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
       };
       validateForEngine(toEngineRequest(stored, parent.dimension, decodeFloat64(arrays.points)));
