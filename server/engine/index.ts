@@ -11,8 +11,8 @@ import {
 } from '../../shared/vacuum';
 import { entanglementEntropy, subregionElements, type EntropyResult } from './entropy';
 import { retardedGreen } from './green';
-import { getBackend, type BackendPreference } from './linalg';
-import type { LinearAlgebraBackend } from './linalg/backend';
+import { backendSelection, getBackend, type BackendPreference } from './linalg';
+import type { BackendName, LinearAlgebraBackend } from './linalg/backend';
 import { causalMatrix, linkMatrix } from './order';
 import { pauliJordan, pauliJordanSpectrum } from './pauliJordan';
 import { makeRegion, type Region } from './regions';
@@ -102,14 +102,29 @@ export interface VacuumResult {
 }
 
 /**
- * Largest N the dense pipeline accepts. It holds about MATRICES_HELD N × N float64 matrices at once
- * (K, Δ, ΔᵀΔ, its eigenvectors, the solver's working copy, products with the kept basis): at N = 3000
- * that is 7 × 8 × 3000² bytes ≈ 0.5 GB, and the pure-JavaScript eigensolver takes tens of minutes.
+ * Largest N the dense pipeline accepts, per backend. It holds about 7 N × N float64 matrices at once
+ * (K, Δ, ΔᵀΔ, its eigenvectors, the solver's working copy, products with the kept basis; LAPACK's
+ * dsyevd adds about 2 N² of workspace): 7 × 8 × N² bytes is 0.5 GB at N = 3000 and 2.0 GB at N = 6000
+ * (measured peak resident set: 0.32 GB at N = 2000, 0.96 GB at N = 4000 on native).
+ * - ml-matrix: 3000 — its pure-JavaScript eigensolver already takes tens of minutes there.
+ * - native (LAPACK dsyevd on OpenBLAS, N³ growth from ≈ 6.5 s at N = 4000 on two free cores): 6000,
+ *   about 25 s for the eigendecomposition and under a minute for a whole run, ≈ 2–3 GB of memory;
+ *   N = 8000 would need ≈ 5 GB per running job, too much beside other jobs on a team server.
  */
+export const DENSE_SIZE_LIMITS: Readonly<Record<BackendName, number>> = { native: 6000, 'ml-matrix': 3000 };
+
+export function denseSizeLimit(backend: BackendName = backendSelection().name): number {
+  return DENSE_SIZE_LIMITS[backend];
+}
+
+const autoDenseLimit = denseSizeLimit();
+
+/** The limit for runs on this process's automatic backend (native when its addon loads). */
 export const DENSE_SIZE_LIMIT = {
-  maxN: 3000,
+  maxN: autoDenseLimit,
   matricesHeld: 7,
-  reason: 'the dense pipeline holds about 7 N×N float64 matrices at once (≈0.5 GB at N = 3000)',
+  backend: backendSelection().name,
+  reason: `the dense pipeline holds about 7 N×N float64 matrices at once (≈${((7 * 8 * autoDenseLimit ** 2) / 1e9).toFixed(1)} GB at N = ${autoDenseLimit})`,
 } as const;
 
 export function denseMemoryBytes(n: number): number {
@@ -199,8 +214,9 @@ function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend 
  * `shouldCancel()` before each stage (throws CancelledError).
  */
 export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks = {}): Promise<VacuumResult> {
-  validateVacuumRequest(request);
   const backend = resolveBackend(request.backend);
+  const sizeLimit = denseSizeLimit(backend.name);
+  validateVacuumRequest(request, sizeLimit);
   const timings: Partial<Record<VacuumStage, number>> = {};
   const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
     if (hooks.shouldCancel?.()) throw new CancelledError(name);
@@ -219,7 +235,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
   const placed = await stage('sprinkle', () => {
     if (source.kind === 'sprinkling') {
       const s = sprinkle(sprinklingSpecSchema.parse(source.sprinkling));
-      checkDenseSize(s.count);
+      checkDenseSize(s.count, sizeLimit);
       return { points: s.points, dimension: s.dimension, density: s.density as number | null, region: s.region as Region | null, provenance: s.provenance as Sprinkling['provenance'] | null };
     }
     const points = Float64Array.from(source.points);
