@@ -9,7 +9,13 @@ import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { useCreateCutRule, useCutRules, useDeleteCutRule } from '../api/cutRules';
 import { TruncationRuleFields } from '../components/TruncationRuleFields';
-import { defaultTruncation, describeTruncation, truncationFromForm, type TruncationFormValues } from '../lib/truncationForm';
+import {
+  defaultTruncation,
+  describeTruncation,
+  truncationFieldMessages,
+  truncationFromForm,
+  type TruncationFormValues,
+} from '../lib/truncationForm';
 
 export function CutRulesPage() {
   const cutRules = useCutRules();
@@ -122,7 +128,10 @@ function CutRuleForm() {
     if (!checked.ok) {
       // The rule's fields are keyed like the run form's (truncation.*).
       const byField: Record<string, string> = {};
-      for (const [path, message] of Object.entries(checked.errors)) byField[path.replace(/^rule/, 'truncation')] = message;
+      for (const [path, message] of Object.entries(checked.errors)) {
+        const field = path.replace(/^rule/, 'truncation');
+        byField[field] = truncationFieldMessages[field] ?? message;
+      }
       if (byField.name) byField.name = 'Give the rule a name (up to 80 characters).';
       return errors.setFieldErrors(byField);
     }

@@ -14,8 +14,8 @@ export function SpectrumPlot({ run, result }: { run: RunDetail; result: RunResul
       fileName={`tacet-run-${run.id.slice(0, 8)}-spectrum`}
       data={spectrumTraces(result, plotPalette)}
       layout={{
-        xaxis: { type: 'log', title: axisTitle('rank k'), tickfont: tickFont, gridcolor: plotPalette.grid, linecolor: plotPalette.grid },
-        yaxis: { type: 'log', title: axisTitle('λ_k  (positive eigenvalues of iΔ)'), tickfont: tickFont, gridcolor: plotPalette.grid, exponentformat: 'power' },
+        xaxis: { type: 'log', dtick: 1, title: axisTitle('rank k'), tickfont: tickFont, gridcolor: plotPalette.grid, linecolor: plotPalette.grid },
+        yaxis: { type: 'log', nticks: 8, title: axisTitle('λ_k  (positive eigenvalues of iΔ)'), tickfont: tickFont, gridcolor: plotPalette.grid, exponentformat: 'power' },
         legend: { x: 1, xanchor: 'right', y: 1, bgcolor: 'rgba(247,244,238,0.85)' },
       }}
       caption={
@@ -40,7 +40,7 @@ export function PointsPlot({ run }: { run: RunDetail }) {
       height={460}
       data={pointsTraces(points.data, run.request, plotPalette)}
       layout={{
-        xaxis: { title: axisTitle('x'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false },
+        xaxis: { title: axisTitle('x'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, constrain: 'domain' },
         yaxis: { title: axisTitle('t'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, scaleanchor: 'x', scaleratio: 1 },
         legend: { orientation: 'h', y: -0.14 },
       }}

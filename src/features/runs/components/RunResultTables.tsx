@@ -47,12 +47,20 @@ const diagnosticLabels: Record<string, { label: string; note: string }> = {
   commutatorResidual: { label: 'Commutator residual', note: '‖W − W̄ − iΔ‖ / ‖Δ‖ on the kept modes' },
   positiveNegativeOverlap: { label: 'Orthogonality error', note: '‖W W̄‖ / ‖W‖²' },
   trace: { label: 'Trace of W', note: 'equals the sum of the kept eigenvalues' },
+  positiveEigenvalueSum: { label: 'Sum of kept eigenvalues', note: 'what the trace must equal' },
+  basisOrthonormalityError: { label: 'Basis orthonormality error', note: '‖VᵀV − 1‖ of the kept modes' },
 };
+
+/** The engine's own names for the checks above, sent alongside; shown once under the labels above. */
+const engineAliases = new Set(['hermiticityError', 'smallestEigenvalue', 'commutatorError', 'orthogonalityError']);
 
 /** The SJ state's checks, then the counts of the causal set. */
 export function DiagnosticsTable({ result }: { result: RunResult }) {
   const known = Object.keys(diagnosticLabels).filter((k) => typeof result.diagnostics[k] === 'number');
-  const extra = Object.entries(result.diagnostics).filter(([k, v]) => !(k in diagnosticLabels) && typeof v === 'number') as [string, number][];
+  const extra = Object.entries(result.diagnostics).filter(
+    ([k, v]) => !(k in diagnosticLabels) && !engineAliases.has(k) && typeof v === 'number',
+  ) as [string, number][];
+  const method = result.diagnostics.smallestEigenvalueMethod;
   return (
     <table className="w-full max-w-md border-collapse text-sm" aria-label="Diagnostics">
       <tbody>
@@ -79,7 +87,11 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
           <Figure value={result.modesKept} />
         </Row>
         {known.map((key) => (
-          <Row key={key} label={diagnosticLabels[key].label} note={diagnosticLabels[key].note}>
+          <Row
+            key={key}
+            label={diagnosticLabels[key].label}
+            note={key === 'minEigenvalueW' && method === 'lower-bound' ? 'a rigorous lower bound; ≥ 0 up to rounding' : diagnosticLabels[key].note}
+          >
             <Figure value={result.diagnostics[key] as number} digits={3} />
           </Row>
         ))}
@@ -146,7 +158,9 @@ export function SettingsTable({ run }: { run: RunDetail }) {
   }
   if (run.result) {
     rows.push(['Engine', `${run.result.engineVersion}, ${run.result.backend} backend`]);
+    const order = Object.keys(stageLabels);
     const timings = Object.entries(run.result.timings)
+      .sort(([a], [b]) => order.indexOf(a) - order.indexOf(b))
       .map(([stage, seconds]) => `${stageLabels[stage as keyof typeof stageLabels] ?? stage} ${seconds.toFixed(2)} s`)
       .join(' · ');
     if (timings) rows.push(['Timings', timings]);

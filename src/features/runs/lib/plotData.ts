@@ -47,7 +47,7 @@ export function spectrumTraces(result: Pick<RunResult, 'eigenvalues' | 'continuu
       type: 'scatter',
       mode: 'markers',
       ...kept,
-      marker: { color: colors.data, size: 4 },
+      marker: { color: colors.data, size: 5 },
       hovertemplate: 'rank %{x}<br>λ = %{y:.6g}<extra></extra>',
     },
   ];

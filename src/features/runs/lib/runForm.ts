@@ -2,13 +2,21 @@ import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunReques
 import type { PrngName, RegionKind } from '@shared/vacuum';
 import type { z } from 'zod';
 import type { FieldErrors } from '../../../lib/forms';
-import { defaultTruncation, parseNumber, truncationFromForm, type TruncationFormValues } from '../../cutRules/lib/truncationForm';
+import {
+  defaultTruncation,
+  parseNumber,
+  truncationFieldMessages,
+  truncationFromForm,
+  type TruncationFormValues,
+} from '../../cutRules/lib/truncationForm';
 
 /**
- * Largest N the server's dense engine accepts (server/engine DENSE_SIZE_LIMIT.maxN; a unit test keeps the
- * two equal). The form states it and checks it early; the server's 422 stays the authority.
+ * Largest N the server's dense engine accepts, per linear-algebra backend (server/engine
+ * DENSE_SIZE_LIMITS; a unit test keeps the two equal). Which backend a server runs is not known here, so
+ * the form refuses only what no server takes and states both; the server's 422 has the last word.
  */
-export const denseLimitN = 3000;
+export const denseLimits = { native: 6000, 'ml-matrix': 3000 } as const;
+export const denseLimitN = Math.max(...Object.values(denseLimits));
 
 export interface TipValues {
   t: string;
@@ -133,15 +141,13 @@ function regionFromForm(reader: NumberReader, v: RunFormValues): unknown {
 
 /** Human messages for the fields whose schema messages are terse ("Too small: expected ..."). */
 const fieldMessages: Record<string, string> = {
-  'sprinkling.count': `N is a whole number of elements, at least 2 and at most ${denseLimitN}.`,
+  'sprinkling.count': `N is a whole number of elements, at least 2 and at most ${denseLimitN} (${denseLimits['ml-matrix']} without the native backend).`,
   'sprinkling.density': 'The density ρ is a positive number (elements per unit volume).',
   'sprinkling.seed': 'Give a seed (any text or number), or press “New seed”.',
   'sprinkling.region.properTime': 'The proper time between the tips is a positive number.',
   'sprinkling.region.circumference': 'The circumference is a positive number.',
   mass: 'The mass is a number ≥ 0.',
-  'truncation.cut': 'λc is a number ≥ 0.',
-  'truncation.count': 'The number of modes kept is a whole number ≥ 1.',
-  'truncation.tolerance': 'The tolerance is a positive number, at most 10 (or leave it empty).',
+  ...truncationFieldMessages,
 };
 
 const tipFieldMessage = 'Each tip coordinate is a number.';
@@ -201,9 +207,18 @@ function subregionFromForm(reader: NumberReader, v: RunFormValues, dimension: 2 
   return { kind: 'diamond', past: tip(reader, v.past, 'subregion.past', dimension), future: tip(reader, v.future, 'subregion.future', dimension) };
 }
 
-/** Checks the shared schema cannot: the subregion's tips are causally ordered. */
-function subregionLightConeError(subregion: { past: TipNumbers; future: TipNumbers } | undefined): FieldErrors {
-  if (!subregion || insideFutureLightCone(subregion.past, subregion.future)) return {};
+function finiteTip(tip: unknown): tip is TipNumbers {
+  return typeof tip === 'object' && tip !== null && Object.values(tip).every((c) => typeof c === 'number' && Number.isFinite(c));
+}
+
+/**
+ * Checks what the shared schema cannot: the subregion's tips are causally ordered. Done on the typed
+ * numbers, so the message shows together with any other field's.
+ */
+function subregionLightConeError(subregion: unknown): FieldErrors {
+  const diamond = subregion as { past?: unknown; future?: unknown } | undefined;
+  if (!diamond || !finiteTip(diamond.past) || !finiteTip(diamond.future)) return {};
+  if (insideFutureLightCone(diamond.past, diamond.future)) return {};
   return { 'subregion.future.t': lightConeMessage };
 }
 
@@ -241,9 +256,9 @@ export function runRequestFromForm(v: RunFormValues): Checked<CreateRunRequest> 
     errors['sprinkling.count'] =
       count < 2
         ? 'A causal set needs at least 2 elements.'
-        : `N = ${count} is above the dense limit of ${denseLimitN} elements: the engine holds about 7 N×N matrices in memory at once.`;
+        : `N = ${count} is above the dense limit of ${denseLimitN} elements: the engine holds about 7 N×N float64 matrices in memory at once (≈ ${((7 * 8 * count * count) / 1e9).toFixed(1)} GB here).`;
   }
-  if (parsed.success) Object.assign(errors, subregionLightConeError(parsed.data.subregion?.kind === 'diamond' ? parsed.data.subregion : undefined));
+  Object.assign(errors, subregionLightConeError(candidate.subregion));
   if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
   return { ok: true, request: parsed.data };
 }
@@ -270,7 +285,7 @@ export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 
   if (v.title.trim()) candidate.title = v.title.trim();
   const parsed = reanalyseRunRequestSchema.safeParse(candidate);
   const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
-  if (parsed.success && parsed.data.subregion?.kind === 'diamond') Object.assign(errors, subregionLightConeError(parsed.data.subregion));
+  if (candidate.subregion) Object.assign(errors, subregionLightConeError(candidate.subregion));
   if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
   return { ok: true, request: parsed.data };
 }
@@ -279,12 +294,12 @@ export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 
  * Field errors from a failed POST: schema issues (400) go beside their fields; a size refusal (422
  * too_large) beside N; other refusals stay as the form's message.
  */
-export function serverFieldErrors(error: { code: string; issues: { path: string; message: string }[] }): FieldErrors {
+export function serverFieldErrors(error: { code: string; message: string; issues: { path: string; message: string }[] }): FieldErrors {
   const errors: FieldErrors = {};
   for (const issue of error.issues) {
     const path = fieldForIssuePath(issue.path);
     if (!(path in errors)) errors[path] = issue.message;
   }
-  if (error.code === 'too_large' && !errors['sprinkling.count']) errors['sprinkling.count'] = 'Too large for the dense engine (see the message below).';
+  if (error.code === 'too_large' && !errors['sprinkling.count']) errors['sprinkling.count'] = error.message;
   return errors;
 }

@@ -11,16 +11,10 @@ import { Figure } from '../components/Figure';
 import { PlotFigure } from '../components/PlotFigure';
 import { StatusLabel } from '../components/StatusLabel';
 import { compareTraces, tickFont, type CompareRun } from '../lib/plotData';
-import { runLabel, maxCompared } from './RunsPage';
+import { maxCompared, parseCompareIds, runLabel } from '../lib/runIds';
 
 const colors = tailwindConfig.theme.extend.colors;
 const comparePalette = { ...plotPalette, accentDeep: colors.accent.deep, inkFaint: colors.ink.faint };
-
-/** The run ids of `?ids=a,b,c`, without repeats, at most six. */
-export function parseCompareIds(text: string | null): string[] {
-  if (!text) return [];
-  return Array.from(new Set(text.split(',').map((id) => id.trim()).filter(Boolean))).slice(0, maxCompared);
-}
 
 export function ComparePage() {
   const [params] = useSearchParams();
@@ -76,9 +70,10 @@ export function ComparePage() {
             height={480}
             data={compareTraces(compared, normalised, comparePalette)}
             layout={{
-              xaxis: { type: 'log', title: { text: 'rank k' }, tickfont: tickFont, gridcolor: plotPalette.grid },
+              xaxis: { type: 'log', dtick: 1, title: { text: 'rank k' }, tickfont: tickFont, gridcolor: plotPalette.grid },
               yaxis: {
                 type: 'log',
+                nticks: 8,
                 title: { text: normalised ? 'λ_k / N' : 'λ_k' },
                 tickfont: tickFont,
                 gridcolor: plotPalette.grid,

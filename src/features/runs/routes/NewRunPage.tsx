@@ -14,6 +14,7 @@ import { SubregionFields } from '../components/SubregionFields';
 import {
   defaultRunForm,
   denseLimitN,
+  denseLimits,
   newSeed,
   regionDimension,
   regionLabels,
@@ -155,8 +156,9 @@ function NewRunForm() {
           title="Sprinkling"
           note={
             <>
-              The dense engine takes at most <span className="figures">{denseLimitN}</span> elements: it holds about seven N×N
-              matrices at once.
+              The dense engine takes at most <span className="figures">{denseLimits.native}</span> elements with the native
+              backend, <span className="figures">{denseLimits['ml-matrix']}</span> without: it holds about seven N×N matrices at
+              once.
             </>
           }
         >

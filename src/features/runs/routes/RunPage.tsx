@@ -14,7 +14,7 @@ import { DiagnosticsTable, EntropyTable, SettingsTable } from '../components/Run
 import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
 import { RunProgress } from '../components/RunProgress';
 import { StatusLabel } from '../components/StatusLabel';
-import { runLabel } from './RunsPage';
+import { runLabel } from '../lib/runIds';
 
 export function RunPage() {
   const { runId = '' } = useParams();

@@ -13,10 +13,10 @@ import { Checkbox } from '../components/Checkbox';
 import { Figure } from '../components/Figure';
 import { StatusLabel, statusLabels } from '../components/StatusLabel';
 import { regionLabels } from '../lib/runForm';
+import { maxCompared, runLabel } from '../lib/runIds';
 
 const pageSize = 25;
 type SortField = 'createdAt' | 'N' | 'S' | 'status';
-export const maxCompared = 6;
 
 /** Filters live in the address, so a filtered table can be bookmarked and shared. */
 function filtersFrom(params: URLSearchParams): RunFilters {
@@ -32,10 +32,6 @@ function filtersFrom(params: URLSearchParams): RunFilters {
     page: Math.max(1, Number(params.get('page')) || 1),
     pageSize,
   };
-}
-
-export function runLabel(run: Pick<RunSummary, 'id' | 'title'>): string {
-  return run.title?.trim() || `Run ${run.id.slice(0, 8)}`;
 }
 
 export function RunsPage() {

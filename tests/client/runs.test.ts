@@ -1,0 +1,193 @@
+import { describe, expect, it } from 'vitest';
+import { createRunRequestSchema } from '@shared/runs';
+import { DENSE_SIZE_LIMITS } from '../../server/engine/index';
+import { attachmentName, runsQueryString } from '../../src/features/runs/api/runs';
+import {
+  describeTruncation,
+  describeTruncationText,
+  truncationFromForm,
+  truncationToForm,
+} from '../../src/features/cutRules/lib/truncationForm';
+import {
+  defaultRunForm,
+  denseLimitN,
+  denseLimits,
+  insideFutureLightCone,
+  reanalyseRequestFromForm,
+  runRequestFromForm,
+  serverFieldErrors,
+  type RunFormValues,
+} from '../../src/features/runs/lib/runForm';
+import { formatSignificant, splitDecimal } from '../../src/features/runs/lib/numbers';
+import { parseCompareIds, runLabel } from '../../src/features/runs/lib/runIds';
+
+const form = (changes: Partial<RunFormValues> = {}): RunFormValues => ({ ...defaultRunForm('seed-1'), ...changes });
+
+describe('new-run form → POST /api/runs body', () => {
+  it('maps the defaults to a 2D diamond of proper time 2 with N = 500 fixed and the √N/4π cut', () => {
+    const checked = runRequestFromForm(form());
+    expect(checked).toEqual({
+      ok: true,
+      request: {
+        sprinkling: { region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 500, seed: 'seed-1', prng: 'arc4' },
+        mass: 0,
+        truncation: { rule: 'sqrtN' },
+        doubleTruncation: false,
+      },
+    });
+    // What the form sends is exactly what the server's schema accepts.
+    if (checked.ok) expect(createRunRequestSchema.parse(checked.request)).toEqual(checked.request);
+  });
+
+  it('sends a subregion diamond by its tips, the title and double truncation', () => {
+    const checked = runRequestFromForm(
+      form({ count: '300', title: ' N=300 ', withSubregion: true, doubleTruncation: true, truncation: { kind: 'lambda', value: '0.5' } }),
+    );
+    expect(checked.ok).toBe(true);
+    if (!checked.ok) return;
+    expect(checked.request.title).toBe('N=300');
+    expect(checked.request.sprinkling?.count).toBe(300);
+    expect(checked.request.truncation).toEqual({ rule: 'lambda', cut: 0.5 });
+    expect(checked.request.subregion).toEqual({ kind: 'diamond', past: { t: -0.5, x: 0 }, future: { t: 0.5, x: 0 } });
+    expect(checked.request.doubleTruncation).toBe(true);
+  });
+
+  it('gives 4D tips four coordinates and a Poisson sprinkling by density no count', () => {
+    const checked = runRequestFromForm(
+      form({ regionKind: 'diamond4d', process: 'poisson', sizeBy: 'density', density: '40', withSubregion: true }),
+    );
+    expect(checked.ok).toBe(true);
+    if (!checked.ok) return;
+    expect(checked.request.sprinkling).toMatchObject({ region: { kind: 'diamond4d', properTime: 2 }, process: 'poisson', density: 40 });
+    expect(checked.request.sprinkling?.count).toBeUndefined();
+    expect(checked.request.subregion).toEqual({ kind: 'diamond', past: { t: -0.5, x: 0, y: 0, z: 0 }, future: { t: 0.5, x: 0, y: 0, z: 0 } });
+  });
+
+  it('refuses N = 0 beside the N field, with a plain message', () => {
+    const checked = runRequestFromForm(form({ count: '0' }));
+    expect(checked.ok).toBe(false);
+    if (!checked.ok) expect(checked.errors['sprinkling.count']).toMatch(/at least 2/);
+  });
+
+  it('refuses N above the dense limit and says the limit', () => {
+    const checked = runRequestFromForm(form({ count: String(denseLimitN + 1) }));
+    expect(checked.ok).toBe(false);
+    if (!checked.ok) expect(checked.errors['sprinkling.count']).toContain(`dense limit of ${denseLimitN}`);
+  });
+
+  it('states the same dense limits as the engine', () => {
+    expect(denseLimits).toEqual(DENSE_SIZE_LIMITS);
+    expect(denseLimitN).toBe(Math.max(...Object.values(DENSE_SIZE_LIMITS)));
+  });
+
+  it('refuses a future tip outside the past tip’s light cone, together with other errors', () => {
+    const checked = runRequestFromForm(form({ count: '0', withSubregion: true, future: { t: '0.1', x: '0.6', y: '0', z: '0' } }));
+    expect(checked.ok).toBe(false);
+    if (checked.ok) return;
+    expect(checked.errors['subregion.future.t']).toMatch(/future light cone/);
+    expect(checked.errors['sprinkling.count']).toBeDefined();
+  });
+
+  it('reports text that is no number at its field', () => {
+    const checked = runRequestFromForm(form({ properTime: 'two', mass: '-1' }));
+    expect(checked.ok).toBe(false);
+    if (checked.ok) return;
+    expect(checked.errors['sprinkling.region.properTime']).toBe('Enter a number.');
+    expect(checked.errors.mass).toBe('The mass is a number ≥ 0.');
+  });
+
+  it('needs a seed and a number of modes for the top-modes rule', () => {
+    const checked = runRequestFromForm(form({ seed: '  ', truncation: { kind: 'modes', value: '' } }));
+    expect(checked.ok).toBe(false);
+    if (checked.ok) return;
+    expect(checked.errors['sprinkling.seed']).toMatch(/seed/);
+    expect(checked.errors['truncation.count']).toMatch(/whole number ≥ 1/);
+  });
+
+  it('puts the slab refinement (max > min) at the region', () => {
+    const checked = runRequestFromForm(form({ regionKind: 'slab2d', tMin: '1', tMax: '0' }));
+    expect(checked.ok).toBe(false);
+    if (!checked.ok) expect(checked.errors['sprinkling.region']).toMatch(/max > min/);
+  });
+});
+
+describe('light cone of the subregion tips (c = 1; common practice)', () => {
+  it('accepts timelike-separated tips only, future after past', () => {
+    expect(insideFutureLightCone({ t: -0.5, x: 0 }, { t: 0.5, x: 0 })).toBe(true);
+    expect(insideFutureLightCone({ t: 0, x: 0 }, { t: 1, x: 1 })).toBe(false); // null: on the cone
+    expect(insideFutureLightCone({ t: 0, x: 0 }, { t: 1, x: 0.99 })).toBe(true);
+    expect(insideFutureLightCone({ t: 0.5, x: 0 }, { t: -0.5, x: 0 })).toBe(false);
+    expect(insideFutureLightCone({ t: 0, x: 0, y: 0, z: 0 }, { t: 1, x: 0.6, y: 0.6, z: 0.6 })).toBe(false); // |r| ≈ 1.04
+  });
+});
+
+describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
+  const base = { title: '', mass: '0', truncation: { kind: 'sqrtN' as const, value: '' }, withSubregion: false, doubleTruncation: true };
+  const tips = { past: { t: '-0.5', x: '0', y: '0', z: '0' }, future: { t: '0.5', x: '0', y: '0', z: '0' } };
+
+  it('sends subregion null to drop it, and no double truncation without one', () => {
+    expect(reanalyseRequestFromForm({ ...base, ...tips }, 2)).toEqual({
+      ok: true,
+      request: { mass: 0, truncation: { rule: 'sqrtN' }, subregion: null, doubleTruncation: false },
+    });
+  });
+
+  it('checks the light cone here too', () => {
+    const checked = reanalyseRequestFromForm({ ...base, ...tips, withSubregion: true, future: { t: '-0.6', x: '0', y: '0', z: '0' } }, 2);
+    expect(checked.ok).toBe(false);
+  });
+});
+
+describe('server errors beside the fields', () => {
+  it('keeps schema issue paths and sends a size refusal to N', () => {
+    expect(
+      serverFieldErrors({ code: 'validation', message: 'invalid', issues: [{ path: 'sprinkling.count', message: 'too small' }] }),
+    ).toEqual({ 'sprinkling.count': 'too small' });
+    const tooLarge = 'N = 4000 exceeds the dense limit of 3000 elements';
+    expect(serverFieldErrors({ code: 'too_large', message: tooLarge, issues: [] })['sprinkling.count']).toBe(tooLarge);
+    expect(serverFieldErrors({ code: 'invalid_request', message: 'x', issues: [] })).toEqual({});
+  });
+});
+
+describe('truncation rule fields', () => {
+  it('round-trips every rule kind through the form', () => {
+    for (const rule of [{ rule: 'none' }, { rule: 'sqrtN' }, { rule: 'lambda', cut: 0.25 }, { rule: 'modes', count: 12 }, { rule: 'knee' }, { rule: 'knee', tolerance: 0.3 }] as const) {
+      expect(truncationFromForm(truncationToForm(rule))).toEqual(rule);
+    }
+  });
+  it('reads the API’s short text forms for people', () => {
+    expect(describeTruncationText('sqrtN')).toBe('√N/4π');
+    expect(describeTruncationText('lambda:0.5')).toBe('λc = 0.5');
+    expect(describeTruncationText('modes:20')).toBe('top 20 modes');
+    expect(describeTruncationText('knee')).toBe('knee');
+    expect(describeTruncation({ rule: 'knee', tolerance: 0.2 })).toBe('knee (tol 0.2)');
+  });
+});
+
+describe('small helpers', () => {
+  it('aligns decimals by splitting at the point', () => {
+    expect(formatSignificant(1.378312, 5)).toBe('1.3783');
+    expect(formatSignificant(212, 5)).toBe('212.00');
+    expect(formatSignificant(6.84e-16, 3)).toBe('6.84×10^-16');
+    expect(splitDecimal('1.3783')).toEqual({ whole: '1', fraction: '.3783' });
+    expect(splitDecimal('-4.07×10^-14')).toEqual({ whole: '-4', fraction: '.07×10^-14' });
+    expect(splitDecimal('300')).toEqual({ whole: '300', fraction: '' });
+  });
+  it('reads compare ids without repeats, at most six', () => {
+    expect(parseCompareIds('a, b,a,,c')).toEqual(['a', 'b', 'c']);
+    expect(parseCompareIds('1,2,3,4,5,6,7')).toHaveLength(6);
+    expect(parseCompareIds(null)).toEqual([]);
+  });
+  it('labels untitled runs by their short id', () => {
+    expect(runLabel({ id: '2a2f7d25-c20f-44a5-ab69-d7f8745e9794', title: null })).toBe('Run 2a2f7d25');
+    expect(runLabel({ id: 'x', title: 'Diamond N=300' })).toBe('Diamond N=300');
+  });
+  it('builds list queries without empty filters', () => {
+    expect(runsQueryString({ status: 'done', search: '', page: 2, sort: 'N', order: 'asc' })).toBe('?status=done&page=2&sort=N&order=asc');
+    expect(runsQueryString({})).toBe('');
+  });
+  it('takes the download name from Content-Disposition', () => {
+    expect(attachmentName('attachment; filename="tacet-run-2a2f7d25-points.csv"', 'x')).toBe('tacet-run-2a2f7d25-points.csv');
+    expect(attachmentName(null, 'fallback.csv')).toBe('fallback.csv');
+  });
+});
