@@ -160,7 +160,10 @@ export function sjDiagnostics(state: SjState, positive: Float64Array, backend: L
   const commutatorError = Math.sqrt(leak) / Math.max(frobenius(state.delta.data), Number.MIN_VALUE);
 
   // 4 W̃ conj(W̃) = (s + iA)(s − iA) = s² + A² + i(As − sA)
-  const aa = backend.multiply(a, a);
+  // A·A = −AᵀA for antisymmetric A (its symmetric part is the hermiticity error above); the Gram
+  // product is a symmetric rank-k update (dsyrk on native), half the work of a general product
+  const aa = backend.gram(a);
+  for (let k = 0; k < aa.data.length; k++) aa.data[k] = -aa.data[k];
   let product = 0;
   for (let j = 0; j < r; j++) {
     for (let i = 0; i < r; i++) {
@@ -211,7 +214,7 @@ export function sjDiagnostics(state: SjState, positive: Float64Array, backend: L
   let positiveEigenvalueSum = 0;
   for (let k = 0; k < state.modesKept; k++) if (positive[k] > KERNEL_RESOLUTION * positive[0]) positiveEigenvalueSum += positive[k];
 
-  const gram = backend.multiply(state.basis, state.basis, { transposeA: true });
+  const gram = backend.gram(state.basis);
   for (let c = 0; c < r; c++) gram.data[c + c * r] -= 1;
   const basisOrthonormalityError = frobenius(gram.data);
 
