@@ -1,6 +1,7 @@
 import type { EntityManager } from 'typeorm';
 import type { TruncationRule } from '@shared/vacuum';
 import { CutRuleEntity, type CutRuleRow } from '../run-entities';
+import { changedRows } from './runs';
 
 export type CutRuleWithAuthor = CutRuleRow & { createdByName: string };
 
@@ -39,6 +40,5 @@ export async function insertCutRule(
 }
 
 export async function deleteCutRule(m: EntityManager, teamId: string, id: string): Promise<boolean> {
-  const rows: unknown[] = await m.query(`DELETE FROM cut_rules WHERE id = $1 AND team_id = $2 RETURNING id`, [id, teamId]);
-  return rows.length > 0;
+  return changedRows(m, `DELETE FROM cut_rules WHERE id = $1 AND team_id = $2`, [id, teamId]);
 }

@@ -16,6 +16,12 @@ const summaryColumns = [
   'startedAt', 'finishedAt', 'parentRunId', 'summary',
 ] as const;
 
+/** Runs an UPDATE or DELETE; true when it touched a row (TypeORM answers those with [rows, rowCount]). */
+export async function changedRows(m: EntityManager, sql: string, parameters: unknown[]): Promise<boolean> {
+  const [, rowCount] = (await m.query(sql, parameters)) as [unknown[], number];
+  return rowCount > 0;
+}
+
 export type NewRun = Pick<
   RunRow,
   'teamId' | 'authorId' | 'title' | 'request' | 'dimension' | 'regionKind' | 'requestedN' | 'truncationText' | 'parentRunId'
@@ -91,24 +97,19 @@ export async function listRunsOfTeam(m: EntityManager, teamId: string, q: ListRu
 
 /** queued → cancelled in one statement, so it cannot cross the worker's claim; false if not queued. */
 export async function cancelQueuedRun(m: EntityManager, teamId: string, id: string): Promise<boolean> {
-  const rows: unknown[] = await m.query(
-    `UPDATE runs SET status = 'cancelled', finished_at = now() WHERE id = $1 AND team_id = $2 AND status = 'queued' RETURNING id`,
+  return changedRows(
+    m,
+    `UPDATE runs SET status = 'cancelled', finished_at = now() WHERE id = $1 AND team_id = $2 AND status = 'queued'`,
     [id, teamId],
   );
-  return rows.length > 0;
 }
 
 export async function requestCancelOfRunningRun(m: EntityManager, teamId: string, id: string): Promise<boolean> {
-  const rows: unknown[] = await m.query(
-    `UPDATE runs SET cancel_requested = true WHERE id = $1 AND team_id = $2 AND status = 'running' RETURNING id`,
-    [id, teamId],
-  );
-  return rows.length > 0;
+  return changedRows(m, `UPDATE runs SET cancel_requested = true WHERE id = $1 AND team_id = $2 AND status = 'running'`, [id, teamId]);
 }
 
 export async function deleteRun(m: EntityManager, teamId: string, id: string): Promise<boolean> {
-  const rows: unknown[] = await m.query(`DELETE FROM runs WHERE id = $1 AND team_id = $2 RETURNING id`, [id, teamId]);
-  return rows.length > 0;
+  return changedRows(m, `DELETE FROM runs WHERE id = $1 AND team_id = $2`, [id, teamId]);
 }
 
 /** Marks a run failed when nothing will ever run it (e.g. the queue refused the job). */
@@ -126,12 +127,13 @@ export async function failRun(m: EntityManager, id: string, message: string): Pr
  * stalled job out a second time) and not asked to stop. Returns the row with its stored points.
  */
 export async function claimRun(m: EntityManager, id: string): Promise<RunRow | null> {
-  const rows: { id: string }[] = await m.query(
+  const claimed = await changedRows(
+    m,
     `UPDATE runs SET status = 'running', started_at = COALESCE(started_at, now()), stage = 'sprinkle', percent = 0
-      WHERE id = $1 AND status IN ('queued', 'running') AND NOT cancel_requested RETURNING id`,
+      WHERE id = $1 AND status IN ('queued', 'running') AND NOT cancel_requested`,
     [id],
   );
-  if (rows.length === 0) return null;
+  if (!claimed) return null;
   return m.findOneBy(RunEntity, { id });
 }
 
@@ -166,17 +168,17 @@ export interface RunOutcome {
  * asked to stop it. False when the run was cancelled or deleted meanwhile.
  */
 export async function completeRun(m: EntityManager, id: string, outcome: RunOutcome): Promise<boolean> {
-  const rows: unknown[] = await m.query(
+  return changedRows(
+    m,
     `UPDATE runs SET status = 'done', stage = NULL, percent = 100, finished_at = now(), error = NULL,
             n = $2, engine_version = $3, backend = $4, entropy_s = $5, summary = $6,
             points = $7, eigenvalues = $8, generalized_eigenvalues = $9, subregion_elements = $10
-      WHERE id = $1 AND status = 'running' AND NOT cancel_requested RETURNING id`,
+      WHERE id = $1 AND status = 'running' AND NOT cancel_requested`,
     [
       id, outcome.n, outcome.engineVersion, outcome.backend, outcome.entropyS, JSON.stringify(outcome.summary),
       outcome.points, outcome.eigenvalues, outcome.generalizedEigenvalues, outcome.subregionElements,
     ],
   );
-  return rows.length > 0;
 }
 
 export async function markRunCancelled(m: EntityManager, id: string): Promise<void> {
@@ -188,10 +190,10 @@ export async function markRunCancelled(m: EntityManager, id: string): Promise<vo
 
 /** running → failed with the message; false if the run is no longer running (deleted, cancelled). */
 export async function markRunFailed(m: EntityManager, id: string, message: string, backend: string | null, engineVersion: string): Promise<boolean> {
-  const rows: unknown[] = await m.query(
+  return changedRows(
+    m,
     `UPDATE runs SET status = 'failed', error = $2, finished_at = now(), backend = COALESCE($3, backend), engine_version = $4
-      WHERE id = $1 AND status = 'running' RETURNING id`,
+      WHERE id = $1 AND status = 'running'`,
     [id, message, backend, engineVersion],
   );
-  return rows.length > 0;
 }
