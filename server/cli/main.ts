@@ -32,7 +32,7 @@ usage:
 region size options (defaults in brackets):
   diamond2d   --proper-time T [2√2]  or  --tips T0,X0:T1,X1
   cylinder2d  --proper-time T [2] --circumference L [2]     (x periodic, x ∈ [−L/2, L/2))
-  slab2d      --t-range T0,T1 [0,1] --x-range X0,X1 [0,1]
+  slab2d      --t-range T0,T1 [0,1] --x-range X0,X1 [0,1]   (a negative start: --x-range=-1,1)
   diamond4d   --proper-time T [2]
 
 points files are CSV with a header t,x (2D) or t,x,y,z (4D). A massive field or a 4D Green function
@@ -173,7 +173,7 @@ function parse<T extends NonNullable<ParseArgsConfig['options']>>(args: string[]
   try {
     return parseArgs({ args, options, strict: true, allowPositionals: false }).values as Record<string, string | boolean | undefined>;
   } catch (error) {
-    throw new UsageError((error as Error).message.split('\n')[0]);
+    throw new UsageError((error as Error).message.replace(/\s*\n\s*/g, ' '));
   }
 }
 
