@@ -1,0 +1,161 @@
+import { z } from 'zod';
+import { sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, vacuumSettingsSchema, vacuumStages } from './vacuum';
+
+/**
+ * Vacuum runs: one computation of the SJ state (and optionally a subregion's entropy) on one causal set.
+ * Shared by the run form, the API and the worker, so a request validates alike everywhere.
+ */
+
+export const runStatuses = ['queued', 'running', 'done', 'failed', 'cancelled'] as const;
+export const runStatusSchema = z.enum(runStatuses);
+export type RunStatus = z.infer<typeof runStatusSchema>;
+
+export const runStageSchema = z.enum(vacuumStages);
+
+/**
+ * Body of POST /api/runs. Either `sprinkling` (region, fixed or Poisson, count or density, seed) or,
+ * once imported causal sets exist, `causalSetId`. Field settings sit beside it.
+ */
+export const createRunRequestSchema = vacuumSettingsSchema
+  .extend({
+    title: z.string().trim().max(200).optional(),
+    sprinkling: sprinklingSpecSchema.optional(),
+    causalSetId: z.uuid().optional(),
+  })
+  .refine((r) => (r.sprinkling === undefined) !== (r.causalSetId === undefined), {
+    message: 'give exactly one of sprinkling and causalSetId',
+    path: ['sprinkling'],
+  });
+export type CreateRunRequest = z.infer<typeof createRunRequestSchema>;
+export type CreateRunRequestInput = z.input<typeof createRunRequestSchema>;
+
+/** Body of POST /api/runs/:id/reanalyse: the same points, other settings, as a new run. */
+export const reanalyseRunRequestSchema = z.strictObject({
+  title: z.string().trim().max(200).optional(),
+  mass: z.number().min(0).optional(),
+  truncation: truncationRuleSchema.optional(),
+  subregion: subregionSpecSchema.nullable().optional(),
+  doubleTruncation: z.boolean().optional(),
+});
+export type ReanalyseRunRequest = z.infer<typeof reanalyseRunRequestSchema>;
+
+export const runSortFields = ['createdAt', 'N', 'S', 'status'] as const;
+
+/** Query of GET /api/runs. */
+export const listRunsQuerySchema = z.strictObject({
+  status: runStatusSchema.optional(),
+  regionKind: z.enum(['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d', 'imported']).optional(),
+  authorId: z.uuid().optional(),
+  search: z.string().trim().max(200).optional(),
+  sort: z.enum(runSortFields).default('createdAt'),
+  order: z.enum(['asc', 'desc']).default('desc'),
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(25),
+});
+export type ListRunsQuery = z.infer<typeof listRunsQuerySchema>;
+
+/** One row of the runs table. */
+export const runSummarySchema = z.object({
+  id: z.string(),
+  title: z.string().nullable(),
+  status: runStatusSchema,
+  stage: runStageSchema.nullable(),
+  /** 0..100 over all stages */
+  percent: z.number(),
+  author: z.object({ id: z.string(), name: z.string() }),
+  createdAt: z.string(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  dimension: z.union([z.literal(2), z.literal(4)]),
+  regionKind: z.string(),
+  /** elements: the requested count until sprinkled, then the actual N */
+  N: z.number().int().nullable(),
+  /** short text form of the truncation rule, e.g. "sqrtN" or "lambda:0.5" */
+  truncation: z.string(),
+  /** entropy of the subregion when one was asked and the run is done */
+  S: z.number().nullable(),
+  parentRunId: z.string().nullable(),
+});
+export type RunSummary = z.infer<typeof runSummarySchema>;
+
+export const runListResponseSchema = z.object({
+  items: z.array(runSummarySchema),
+  total: z.number().int(),
+  page: z.number().int(),
+  pageSize: z.number().int(),
+});
+
+export const runDiagnosticsSchema = z.object({
+  hermiticity: z.number(),
+  minEigenvalueW: z.number(),
+  commutatorResidual: z.number(),
+  positiveNegativeOverlap: z.number(),
+  trace: z.number(),
+}).catchall(z.unknown());
+
+/** `result` of GET /api/runs/:id once the run is done. */
+export const runResultSchema = z.object({
+  N: z.number().int(),
+  density: z.number().nullable(),
+  volume: z.number().nullable(),
+  relations: z.number().int(),
+  links: z.number().int().nullable(),
+  /** all positive eigenvalues of iΔ, descending */
+  eigenvalues: z.array(z.number()),
+  /** continuum values N/(4x_k) for each rank, 2D diamonds only */
+  continuum: z.array(z.number()).nullable(),
+  cutoff: z.number(),
+  modesKept: z.number().int(),
+  knee: z.unknown().nullable(),
+  diagnostics: runDiagnosticsSchema,
+  entropy: z
+    .object({
+      S: z.number(),
+      n: z.number().int(),
+      modesKept: z.number().int(),
+      generalizedEigenvalues: z.array(z.number()),
+    })
+    .nullable(),
+  backend: z.string(),
+  engineVersion: z.string(),
+  /** seconds per stage */
+  timings: z.record(z.string(), z.number()),
+});
+export type RunResult = z.infer<typeof runResultSchema>;
+
+/** GET /api/runs/:id */
+export const runDetailSchema = runSummarySchema.extend({
+  /** the validated request the run was made from (a re-analysis shows its own settings) */
+  request: z.unknown(),
+  error: z.string().nullable(),
+  cancelRequested: z.boolean(),
+  result: runResultSchema.nullable(),
+});
+export type RunDetail = z.infer<typeof runDetailSchema>;
+
+/** GET /api/runs/:id/points — for the scatter plot. */
+export const runPointsSchema = z.object({
+  dimension: z.union([z.literal(2), z.literal(4)]),
+  columns: z.array(z.string()),
+  /** one row per element, in element order */
+  points: z.array(z.array(z.number())),
+  /** element labels inside the subregion, when one was asked */
+  subregionElements: z.array(z.number().int()).nullable(),
+});
+export type RunPoints = z.infer<typeof runPointsSchema>;
+
+/** Saved truncation presets of a team ("cut rules"). */
+export const createCutRuleRequestSchema = z.strictObject({
+  name: z.string().trim().min(1).max(80),
+  rule: truncationRuleSchema,
+  note: z.string().trim().max(500).optional(),
+});
+export const cutRuleSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  rule: truncationRuleSchema,
+  note: z.string().nullable(),
+  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdAt: z.string(),
+});
+export type CutRule = z.infer<typeof cutRuleSchema>;
