@@ -20,6 +20,9 @@ describe('inviting a colleague in the browser', () => {
     await owner.getByLabel('E-mail').fill('ingrid.halvorsen@tacet.example');
     await owner.getByLabel('Password').fill(demoPassword);
     await owner.getByRole('button', { name: 'Sign in' }).click();
+    // The start page is the runs table; the team is one link away.
+    await owner.waitForURL('**/runs');
+    await owner.getByRole('link', { name: 'Team', exact: true }).click();
     await owner.waitForURL('**/team');
 
     // A malformed address is refused by the shared schema before any request.

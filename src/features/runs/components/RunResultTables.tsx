@@ -23,7 +23,7 @@ export function EntropyTable({ entropy, doubleTruncation }: { entropy: NonNullab
     <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
       <tbody>
         <Row label="Entanglement entropy S" note="Sorkin's spacetime entropy of the subregion">
-          <span data-testid="entropy-S">
+          <span data-testid="entropy-S" data-value={entropy.S}>
             <Figure value={entropy.S} digits={6} />
           </span>
         </Row>
