@@ -5,7 +5,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync, mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import os, { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import type { DenseMatrix, LinearAlgebraBackend } from '../../server/engine/linalg/backend';
@@ -123,6 +123,21 @@ describe('native backend loading', () => {
     const result = loadNativeBackend(bogus);
     expect(result.backend).toBeNull();
     expect(result.reason).toMatch(/failed to load/);
+  });
+
+  it.runIf(native.backend)('TACET_BLAS_THREADS fixes the OpenBLAS thread count and rejects nonsense', () => {
+    const saved = process.env.TACET_BLAS_THREADS;
+    try {
+      process.env.TACET_BLAS_THREADS = '1';
+      expect(loadNativeBackend(native.addonPath).blasThreads).toBe(1);
+      process.env.TACET_BLAS_THREADS = 'many';
+      expect(loadNativeBackend(native.addonPath).reason).toMatch(/TACET_BLAS_THREADS must be auto or a positive integer, got "many"/);
+    } finally {
+      process.env.TACET_BLAS_THREADS = String(os.availableParallelism());
+      loadNativeBackend(native.addonPath);
+      if (saved === undefined) delete process.env.TACET_BLAS_THREADS;
+      else process.env.TACET_BLAS_THREADS = saved;
+    }
   });
 
   describe('selection', () => {

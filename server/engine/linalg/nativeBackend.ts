@@ -180,8 +180,9 @@ export function loadNativeBackend(addonPath: string = defaultAddonPath): NativeL
   }
   try {
     const addon = createRequire(import.meta.url)(addonPath) as TacetLinalgAddon;
+    const backend = backendFromAddon(addon);
     const { blasConfig, threads } = addon.info();
-    return { backend: backendFromAddon(addon), reason: null, blasConfig, blasThreads: threads, addonPath };
+    return { backend, reason: null, blasConfig, blasThreads: threads, addonPath };
   } catch (error) {
     const message = error instanceof Error ? error.message.split('\n')[0] : String(error);
     return { backend: null, reason: `native addon failed to load: ${message}`, blasConfig: null, blasThreads: null, addonPath };
