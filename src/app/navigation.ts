@@ -11,10 +11,11 @@ export interface NavigationItem {
 
 /**
  * The main navigation, in order. Only pages that exist are listed; later issues add
- * Studies and Causal sets here.
+ * Studies here.
  */
 export const navigation: NavigationItem[] = [
   { to: '/runs', label: 'Runs', permission: 'read', description: 'Vacuum runs: SJ states, spectra and entropies' },
+  { to: '/causal-sets', label: 'Causal sets', permission: 'read', description: 'Imported causal sets: coordinates or relations made elsewhere' },
   { to: '/cut-rules', label: 'Cut rules', permission: 'read', description: 'Truncation rules saved for the team' },
   { to: '/team', label: 'Team', permission: 'read', description: 'Members, roles and invitations' },
   { to: '/outbox', label: 'Outbox', permission: 'manageTeam', description: 'E-mail kept by a development server' },

@@ -1,5 +1,8 @@
 import { createBrowserRouter, Navigate } from 'react-router';
 import { AccountPage } from '../features/account/routes/AccountPage';
+import { CausalSetPage } from '../features/causalSets/routes/CausalSetPage';
+import { CausalSetsPage } from '../features/causalSets/routes/CausalSetsPage';
+import { ImportCausalSetPage } from '../features/causalSets/routes/ImportCausalSetPage';
 import { CutRulesPage } from '../features/cutRules/routes/CutRulesPage';
 import { ComparePage } from '../features/runs/routes/ComparePage';
 import { NewRunPage } from '../features/runs/routes/NewRunPage';
@@ -34,6 +37,9 @@ export const router = createBrowserRouter([
           { path: '/runs/new', element: <NewRunPage /> },
           { path: '/runs/compare', element: <ComparePage /> },
           { path: '/runs/:runId', element: <RunPage /> },
+          { path: '/causal-sets', element: <CausalSetsPage /> },
+          { path: '/causal-sets/import', element: <ImportCausalSetPage /> },
+          { path: '/causal-sets/:causalSetId', element: <CausalSetPage /> },
           { path: '/cut-rules', element: <CutRulesPage /> },
           { path: '/team', element: <TeamPage /> },
           { path: '/outbox', element: <OutboxPage /> },

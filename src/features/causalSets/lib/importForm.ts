@@ -1,0 +1,133 @@
+import { causalSetMetadataSchema, type CausalSetKind, type CausalSetMetadata } from '@shared/causalSets';
+import type { RegionKind } from '@shared/vacuum';
+import { validate, type FieldErrors } from '../../../lib/forms';
+import { parseNumber } from '../../cutRules/lib/truncationForm';
+
+/** The import form as typed: every number is text until submitted. */
+export interface ImportFormValues {
+  name: string;
+  kind: CausalSetKind;
+  /** coordinates: how the spacetime volume per element is known */
+  scale: 'region' | 'density';
+  regionKind: RegionKind;
+  properTime: string;
+  circumference: string;
+  tMin: string;
+  tMax: string;
+  xMin: string;
+  xMax: string;
+  density: string;
+  /** relations only */
+  count: string;
+  dimension: '2' | '4';
+}
+
+export function defaultImportForm(): ImportFormValues {
+  return {
+    name: '',
+    kind: 'coordinates',
+    scale: 'region',
+    regionKind: 'diamond2d',
+    properTime: '2',
+    circumference: '',
+    tMin: '',
+    tMax: '',
+    xMin: '',
+    xMax: '',
+    density: '',
+    count: '',
+    dimension: '2',
+  };
+}
+
+export const importRegionLabels: Record<RegionKind, string> = {
+  diamond2d: '2D causal diamond, tips at (±τ/2, 0)',
+  cylinder2d: 'Diamond on a cylinder (x periodic)',
+  slab2d: '2D slab (rectangle in t, x)',
+  diamond4d: '4D causal diamond, tips at (±τ/2, 0⃗)',
+};
+
+function regionFromForm(v: ImportFormValues): unknown {
+  switch (v.regionKind) {
+    case 'diamond2d':
+    case 'diamond4d':
+      return { kind: v.regionKind, properTime: parseNumber(v.properTime) };
+    case 'cylinder2d':
+      return { kind: 'cylinder2d', properTime: parseNumber(v.properTime), circumference: parseNumber(v.circumference) };
+    case 'slab2d':
+      return { kind: 'slab2d', tMin: parseNumber(v.tMin), tMax: parseNumber(v.tMax), xMin: parseNumber(v.xMin), xMax: parseNumber(v.xMax) };
+  }
+}
+
+/** Field name of the form for a schema path ("region.properTime" → "properTime"). */
+export function importFieldFor(path: string): string {
+  if (path.startsWith('region.')) return path.slice('region.'.length);
+  return path;
+}
+
+/** The metadata to send, checked with the same schema as the server, or messages per form field. */
+export function metadataFromForm(v: ImportFormValues): { ok: true; metadata: CausalSetMetadata } | { ok: false; errors: FieldErrors } {
+  const candidate: Record<string, unknown> = { name: v.name, kind: v.kind };
+  if (v.kind === 'coordinates') {
+    if (v.scale === 'region') candidate.region = regionFromForm(v);
+    else candidate.density = parseNumber(v.density);
+  } else {
+    candidate.count = parseNumber(v.count);
+    candidate.dimension = Number(v.dimension);
+    const density = parseNumber(v.density);
+    if (density !== undefined) candidate.density = density;
+  }
+  const result = validate(causalSetMetadataSchema, candidate);
+  if (result.ok) return { ok: true, metadata: result.data };
+  const errors: FieldErrors = {};
+  for (const [path, message] of Object.entries(result.errors)) {
+    const field = importFieldFor(path);
+    if (!(field in errors)) errors[field] = message;
+  }
+  if (errors.region && v.scale === 'region' && v.regionKind === 'slab2d' && !errors.tMin) errors.tMin = errors.region;
+  return { ok: false, errors };
+}
+
+/** A name for the set from its file name: no folder, no extension. */
+export function nameFromFileName(fileName: string): string {
+  const base = fileName.split(/[\\/]/).pop() ?? fileName;
+  return base.replace(/\.(csv|txt|dat)$/i, '').trim();
+}
+
+export function formatBytes(bytes: number): string {
+  if (bytes < 1024) return `${bytes} B`;
+  if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} KiB`;
+  return `${(bytes / (1024 * 1024)).toFixed(1)} MiB`;
+}
+
+/** What the first rows of a file suggest, so the form can preset the kind and dimension. */
+export interface FileSniff {
+  kind: CausalSetKind | null;
+  dimension: 2 | 4 | null;
+  /** relations: the largest label seen plus one, a guess for the element count */
+  countGuess: number | null;
+  /** the first lines, for showing beside the form */
+  head: string[];
+  rows: number;
+}
+
+export function sniffFile(text: string): FileSniff {
+  const lines = text.replace(/^\ufeff/, '').split(/\r\n|\n|\r/);
+  const content = lines.map((l) => l.trim()).filter((l) => l !== '' && !l.startsWith('#'));
+  const first = (content[0] ?? '').toLowerCase().replace(/\s|"/g, '');
+  let kind: CausalSetKind | null = null;
+  let dimension: 2 | 4 | null = null;
+  if (first === 't,x') [kind, dimension] = ['coordinates', 2];
+  else if (first === 't,x,y,z') [kind, dimension] = ['coordinates', 4];
+  else if (first === 'i,j' || /^\d+,\d+$/.test(first)) kind = 'relations';
+  let countGuess: number | null = null;
+  if (kind === 'relations') {
+    let max = -1;
+    for (const line of content) {
+      const match = /^\s*"?(\d+)"?\s*,\s*"?(\d+)"?\s*$/.exec(line);
+      if (match) max = Math.max(max, Number(match[1]), Number(match[2]));
+    }
+    countGuess = max >= 0 ? max + 1 : null;
+  }
+  return { kind, dimension, countGuess, head: lines.slice(0, 6), rows: Math.max(0, content.length - (kind === 'coordinates' || first === 'i,j' ? 1 : 0)) };
+}
