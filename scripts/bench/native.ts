@@ -15,7 +15,8 @@
  *
  * Targets (issue 8): native N = 2000 within 2 s and N = 4000 within 15 s for the whole pipeline.
  * ml-matrix is slow (its eigensolver grows as N³ in JavaScript), so it runs only up to
- * TACET_BENCH_ML_MATRIX_MAX_N (default 1000). TACET_BENCH_NATIVE_SIZES overrides "1000,2000,4000".
+ * TACET_BENCH_ML_MATRIX_MAX_N (default 1000; scripts/bench/dense.ts has more ml-matrix sizes).
+ * TACET_BENCH_NATIVE_SIZES overrides "1000,2000,4000"; BENCH_MAX_N drops the larger sizes.
  *
  * Run alone with `npx tsx scripts/bench/native.ts` (prints JSON), or through `npm run bench`.
  */
@@ -137,7 +138,9 @@ export async function benchRows(): Promise<BenchRow[]> {
   const rows: BenchRow[] = [];
   const plan: [BenchRow['engine'], number][] = [];
   const mlMax = Number(process.env.TACET_BENCH_ML_MATRIX_MAX_N ?? 1000);
-  const nativeSizes = sizes('TACET_BENCH_NATIVE_SIZES', [1000, 2000, 4000]);
+  const maxN = process.env.BENCH_MAX_N ? Number(process.env.BENCH_MAX_N) : Infinity;
+  if (!(maxN >= 10)) throw new Error(`BENCH_MAX_N must be a number ≥ 10, got "${process.env.BENCH_MAX_N}"`);
+  const nativeSizes = sizes('TACET_BENCH_NATIVE_SIZES', [1000, 2000, 4000]).filter((n) => n <= maxN);
   // force the probe of the native addon past TACET_LINALG: this bench compares both backends
   const saved = process.env.TACET_LINALG;
   delete process.env.TACET_LINALG;
