@@ -12,6 +12,8 @@ export interface GreenFunctionInput {
   density?: number;
   mass?: number;
   backend?: LinearAlgebraBackend;
+  /** an order of the elements that respects ≺, for sets without coordinates; default: sorted by t */
+  linearExtension?: ArrayLike<number>;
 }
 
 /** Weight of a link in the 4D massless K = (√ρ / (2π√6)) Lᵀ (Johnston 2009, PRL 103 180401). */
@@ -54,7 +56,7 @@ export function retardedGreen(input: GreenFunctionInput): DenseMatrix {
   if (!(input.density !== undefined && input.density > 0)) throw new RangeError('a massive field needs the density ρ');
   const backend = input.backend ?? getBackend();
   const n = phi.rows;
-  const order = timeOrder(input.points, input.dimension);
+  const order = input.linearExtension ?? timeOrder(input.points, input.dimension);
   const sortedPhi = denseMatrix(n, n);
   const system = denseMatrix(n, n);
   const coupling = (mass * mass) / input.density;

@@ -13,7 +13,7 @@ import { entanglementEntropy, subregionElements, type EntropyResult } from './en
 import { retardedGreen } from './green';
 import { backendSelection, getBackend, type BackendPreference } from './linalg';
 import type { BackendName, LinearAlgebraBackend } from './linalg/backend';
-import { causalMatrix, linkMatrix } from './order';
+import { BitRelation, causalMatrix, linkMatrix } from './order';
 import { pauliJordan, pauliJordanSpectrum } from './pauliJordan';
 import { makeRegion, type Region } from './regions';
 import { sjDiagnostics, sjState, type SjDiagnostics, type SjState } from './sjState';
@@ -56,6 +56,20 @@ export type PointSource =
       /** ρ; or give the region the points were drawn in, then ρ = N/V */
       density?: number;
       region?: RegionSpec;
+    }
+  | {
+      /** a causal set given by its order alone (an imported relation list): no coordinates */
+      kind: 'order';
+      /**
+       * the transitively closed relation, bit-packed like BitRelation: ⌈count/32⌉ uint32 words per
+       * row, bit j of row i set iff i ≺ j
+       */
+      causal: Uint32Array;
+      count: number;
+      /** chooses the Green function (2D: ½Cᵀ, 4D: from the links) */
+      dimension: 2 | 4;
+      /** ρ, needed for a massive field and in 4D */
+      density?: number;
     };
 
 export interface VacuumRequest {
@@ -164,6 +178,22 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = DEN
     const worst = parsed.data.process === 'fixed' ? mean : Math.ceil(mean + 5 * Math.sqrt(mean));
     if (worst > maxN) checkDenseSize(worst, maxN);
     if (parsed.data.process === 'fixed' && mean < 2) fail('a sprinkling needs at least 2 elements');
+  } else if (request.source.kind === 'order') {
+    const { causal, count, dimension: d, density } = request.source;
+    if (d !== 2 && d !== 4) fail(`dimension must be 2 or 4, got ${String(d)}`);
+    dimension = d;
+    if (!Number.isInteger(count)) fail(`the element count must be a whole number, got ${count}`);
+    checkDenseSize(count, maxN);
+    const words = (count + 31) >>> 5;
+    if (causal.length !== words * count) fail(`a relation on ${count} elements has ${words * count} words, got ${causal.length}`);
+    for (let i = 0; i < count; i++) {
+      if (causal[i * words + (i >>> 5)] & (1 << (i & 31))) fail(`element ${i} precedes itself; a causal order is irreflexive`);
+    }
+    if (density !== undefined && !(density > 0 && Number.isFinite(density))) fail('density must be a positive number');
+    hasDensity = density !== undefined;
+    if (request.subregion?.kind === 'diamond') {
+      fail('a causal set given by its relation has no coordinates: give the subregion as a list of elements');
+    }
   } else {
     const { points, dimension: d } = request.source;
     if (d !== 2 && d !== 4) fail(`dimension must be 2 or 4, got ${String(d)}`);
@@ -202,6 +232,34 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = DEN
   if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion');
 }
 
+function relationFromWords(words: Uint32Array, count: number): BitRelation {
+  const relation = new BitRelation(count);
+  relation.words.set(words);
+  return relation;
+}
+
+/**
+ * A labelling that respects ≺, from the relation alone: i ≺ j makes the past of j strictly larger
+ * than the past of i (it holds i and all of i's past, the relation being transitive), so sorting by
+ * the size of the past is a linear extension.
+ */
+function linearExtension(causal: BitRelation): Int32Array {
+  const pastSize = new Int32Array(causal.size);
+  causal.forEach((_i, j) => {
+    pastSize[j] += 1;
+  });
+  return Int32Array.from({ length: causal.size }, (_, i) => i).sort((a, b) => pastSize[a] - pastSize[b] || a - b);
+}
+
+/** The element list of a subregion on a set without coordinates (validation refuses diamonds there). */
+function listedElements(spec: SubregionSpec, count: number): Int32Array {
+  if (spec.kind !== 'elements') throw new EngineInputError('a causal set given by its relation needs the subregion as a list of elements');
+  const unique = Array.from(new Set(spec.indices)).sort((a, b) => a - b);
+  const missing = unique.find((i) => i >= count);
+  if (missing !== undefined) throw new EngineInputError(`subregion element ${missing} does not exist (the causal set has ${count} elements)`);
+  return Int32Array.from(unique);
+}
+
 function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend {
   if (choice === undefined || typeof choice === 'string') return getBackend(choice ?? 'auto');
   return choice;
@@ -236,7 +294,10 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     if (source.kind === 'sprinkling') {
       const s = sprinkle(sprinklingSpecSchema.parse(source.sprinkling));
       checkDenseSize(s.count, sizeLimit);
-      return { points: s.points, dimension: s.dimension, density: s.density as number | null, region: s.region as Region | null, provenance: s.provenance as Sprinkling['provenance'] | null };
+      return { points: s.points, dimension: s.dimension, n: s.count, density: s.density as number | null, region: s.region as Region | null, provenance: s.provenance as Sprinkling['provenance'] | null };
+    }
+    if (source.kind === 'order') {
+      return { points: new Float64Array(0), dimension: source.dimension, n: source.count, density: source.density ?? null, region: null, provenance: null };
     }
     const points = Float64Array.from(source.points);
     const region = source.region ? makeRegion(regionSpecSchema.parse(source.region)) : null;
@@ -250,20 +311,29 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     }
     const n = points.length / source.dimension;
     const density = source.density ?? (region ? n / region.volume : null);
-    return { points, dimension: source.dimension, density, region, provenance: null };
+    return { points, dimension: source.dimension, n, density, region, provenance: null };
   });
-  const { points, dimension, density, region } = placed;
-  const n = points.length / dimension;
+  const { points, dimension, density, region, n } = placed;
   const mass = request.mass ?? 0;
 
   const order = await stage('order', () => {
-    const causal = causalMatrix(points, dimension, region?.periodX);
+    const causal = source.kind === 'order' ? relationFromWords(source.causal, n) : causalMatrix(points, dimension, region?.periodX);
     const links = dimension === 4 ? linkMatrix(causal) : null;
     return { causal, links };
   });
 
   const k = await stage('green', () =>
-    retardedGreen({ points, dimension, causal: order.causal, links: order.links ?? undefined, density: density ?? undefined, mass, backend }),
+    retardedGreen({
+      points,
+      dimension,
+      causal: order.causal,
+      links: order.links ?? undefined,
+      density: density ?? undefined,
+      mass,
+      backend,
+      // without coordinates there is no time to sort by; the relation itself gives a linear extension
+      linearExtension: source.kind === 'order' && mass > 0 ? linearExtension(order.causal) : undefined,
+    }),
   );
 
   const { delta, spectrum } = await stage('spectrum', () => {
@@ -287,7 +357,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
   if (request.subregion) {
     const subregion = request.subregion;
     entropy = await stage('entropy', () => {
-      const elements = subregionElements(subregion, points, dimension, region?.periodX);
+      const elements = source.kind === 'order' ? listedElements(subregion, n) : subregionElements(subregion, points, dimension, region?.periodX);
       if (elements.length < 2) {
         throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
       }
