@@ -7,7 +7,7 @@
 //
 // Exports
 //   symmetricEigen(n, a, vectors, above?, algorithm?) -> { values, vectors }
-//       dsyevd (all pairs) or, with `above`, dsyevr (RANGE='V': eigenpairs with eigenvalue in
+//       dsyevd (all pairs; dsyevd_2stage when vectors is false) or, with `above`, dsyevr (RANGE='V': eigenpairs with eigenvalue in
 //       (above, Gershgorin bound]); only the lower triangle of a is read; values ascending; vectors
 //       n × values.length column-major, or null when vectors is false.
 //   multiply(m, n, k, a, transA, b, transB) -> c (m × n)            dgemm: C = op(A) op(B)
@@ -37,6 +37,9 @@ void dsyevr_(const char* jobz, const char* range, const char* uplo, const int* n
              const double* abstol, int* m, double* w, double* z, const int* ldz, int* isuppz,
              double* work, const int* lwork, int* iwork, const int* liwork, int* info, size_t jobz_len,
              size_t range_len, size_t uplo_len);
+void dsyevd_2stage_(const char* jobz, const char* uplo, const int* n, double* a, const int* lda, double* w,
+                    double* work, const int* lwork, int* iwork, const int* liwork, int* info, size_t jobz_len,
+                    size_t uplo_len);
 }
 
 namespace {
@@ -118,15 +121,16 @@ Napi::Value EigenAll(Napi::Env env, int n, const double* a, bool wantVectors) {
   const char uplo = 'L';
   int lda = std::max(1, n), info = 0, lwork = -1, liwork = -1, iwork_query = 0;
   double work_query = 0;
-  dsyevd_(&jobz, &uplo, &n, work_a, &lda, values.Data(), &work_query, &lwork, &iwork_query, &liwork,
-          &info, 1, 1);
+  // Eigenvalues only: the two-stage reduction (dense → band by BLAS3, band → tridiagonal) avoids most
+  // of the memory-bound half of dsytrd; LAPACK offers it only without vectors.
+  auto driver = wantVectors ? dsyevd_ : dsyevd_2stage_;
+  driver(&jobz, &uplo, &n, work_a, &lda, values.Data(), &work_query, &lwork, &iwork_query, &liwork, &info, 1, 1);
   CheckInfo(env, "dsyevd (workspace query)", info);
   lwork = static_cast<int>(work_query);
   liwork = std::max(1, iwork_query);
   std::vector<double> work(std::max(1, lwork));
   std::vector<int> iwork(liwork);
-  dsyevd_(&jobz, &uplo, &n, work_a, &lda, values.Data(), work.data(), &lwork, iwork.data(), &liwork, &info,
-          1, 1);
+  driver(&jobz, &uplo, &n, work_a, &lda, values.Data(), work.data(), &lwork, iwork.data(), &liwork, &info, 1, 1);
   CheckInfo(env, "dsyevd", info);
   auto result = Napi::Object::New(env);
   result.Set("values", values);
