@@ -51,6 +51,8 @@ export interface RunRow {
   eigenvalues: Buffer | null;
   generalizedEigenvalues: Buffer | null;
   subregionElements: Buffer | null;
+  /** a run on an imported relation list: its closed relation, gzip of the bit-packed rows */
+  relation: Buffer | null;
 }
 
 export interface CutRuleRow {
@@ -97,6 +99,7 @@ export const RunEntity = new EntitySchema<RunRow>({
     eigenvalues: { type: 'bytea', nullable: true },
     generalizedEigenvalues: { type: 'bytea', name: 'generalized_eigenvalues', nullable: true },
     subregionElements: { type: 'bytea', name: 'subregion_elements', nullable: true },
+    relation: { type: 'bytea', nullable: true },
   },
 });
 

@@ -170,3 +170,66 @@ describe('runs on imported causal sets: inputs', () => {
     expect(wrong.body.error.message).toMatch(/subregion tips must have 2 coordinates/);
   });
 });
+
+describe('a vacuum run on an uploaded relation list', () => {
+  it('gives the numbers of the same set given by coordinates (2D massless, no density needed)', async () => {
+    // the reference sprinkling's links, as a generator that knows only the order would write them
+    const { causalMatrix, linkMatrix } = await import('../../server/engine/order');
+    const rows = ['i,j'];
+    linkMatrix(causalMatrix(points, 2)).forEach((i, j) => rows.push(`${i},${j}`));
+    const id = await uploadCsv(ctx.app, researcher, rows.join('\n') + '\n', { name: 'diamond300 links', kind: 'relations', count: '300', dimension: '2' });
+    const elements = { kind: 'elements', indices: [0, 5, 9, 17, 23, 42, 57, 61, 88, 99, 120, 150, 151, 200, 222, 250, 299] } as const;
+    const run = await runToEnd(ctx.app, researcher, { causalSetId: id, truncation: { rule: 'sqrtN' }, subregion: elements });
+    expect(run.status).toBe('done');
+    expect(run).toMatchObject({ regionKind: 'imported', N: 300, dimension: 2 });
+    const direct = await computeVacuum({ source: { kind: 'points', points, dimension: 2, region }, truncation: { rule: 'sqrtN' }, subregion: elements });
+    expect(run.result!.relations).toBe(direct.relations);
+    expect(run.result!.modesKept).toBe(direct.modesKept);
+    const top = direct.eigenvalues[0];
+    direct.eigenvalues.forEach((expected, k) => expect(Math.abs(run.result!.eigenvalues[k] - expected)).toBeLessThan(1e-7 * top));
+    expect(Math.abs(run.result!.entropy!.S / direct.entropy!.S - 1)).toBeLessThan(1e-7);
+    // and numpy's spectrum for these points (fixtures/diamond300.ref.json): the order alone fixes it
+    reference.positive_eigs.forEach((expected, k) => expect(Math.abs(run.result!.eigenvalues[k] - expected)).toBeLessThan(1e-8 * expected + 1e-7 * top));
+
+    // the run keeps its own copy: re-analysis works after the set is deleted
+    expect((await request(ctx.app).delete(`/api/causal-sets/${id}`).set(auth(researcher))).status).toBe(204);
+    const again = await request(ctx.app).post(`/api/runs/${run.id}/reanalyse`).set(auth(researcher)).send({ truncation: { rule: 'none' } });
+    expect(again.status).toBe(202);
+    const child = await waitForRun(ctx.app, researcher, again.body.id as string);
+    expect(child.status).toBe('done');
+    expectSameNumbers(child.result!.eigenvalues, run.result!.eigenvalues, 0);
+    expect(child.result!.modesKept).toBe(150);
+  });
+
+  it('needs a density for a massive field or 4D, and element lists for subregions', async () => {
+    const id = await uploadCsv(ctx.app, researcher, '0,1\n1,2\n0,3\n', { name: 'small order', kind: 'relations', count: '4', dimension: '2' });
+    const massive = await request(ctx.app).post('/api/runs').set(auth(researcher)).send({ causalSetId: id, mass: 1 });
+    expect(massive.status).toBe(422);
+    expect(massive.body.error.message).toMatch(/a massive field needs a density/);
+    const diamond = await request(ctx.app)
+      .post('/api/runs')
+      .set(auth(researcher))
+      .send({ causalSetId: id, subregion: { kind: 'diamond', past: { t: 0, x: 0 }, future: { t: 1, x: 0 } } });
+    expect(diamond.status).toBe(422);
+    expect(diamond.body.error.message).toMatch(/give the subregion as a list of elements/);
+    const fourD = await uploadCsv(ctx.app, researcher, '0,1\n1,2\n', { name: '4D order', kind: 'relations', count: '3', dimension: '4' });
+    const noDensity = await request(ctx.app).post('/api/runs').set(auth(researcher)).send({ causalSetId: fourD });
+    expect(noDensity.status).toBe(422);
+    expect(noDensity.body.error.message).toMatch(/4D Green function needs a density/);
+  });
+
+  it('runs a massive 4D relation list with a density like its coordinates', async () => {
+    const { sprinkle } = await import('../../server/engine/sprinkle');
+    const { causalMatrix, linkMatrix } = await import('../../server/engine/order');
+    const s = sprinkle({ region: { kind: 'diamond4d', properTime: 2 }, process: 'fixed', count: 200, seed: 'api-4d-order', prng: 'arc4' });
+    const rows: string[] = [];
+    linkMatrix(causalMatrix(s.points, 4)).forEach((i, j) => rows.push(`${i},${j}`));
+    const id = await uploadCsv(ctx.app, researcher, rows.join('\n'), { name: '4D links', kind: 'relations', count: '200', dimension: '4', density: String(s.density) });
+    const run = await runToEnd(ctx.app, researcher, { causalSetId: id, mass: 1.2, truncation: { rule: 'none' } });
+    expect(run.status).toBe('done');
+    const direct = await computeVacuum({ source: { kind: 'points', points: s.points, dimension: 4, density: s.density }, mass: 1.2, truncation: { rule: 'none' } });
+    expect(run.result!.links).toBe(direct.links);
+    const top = direct.eigenvalues[0];
+    direct.eigenvalues.forEach((expected, k) => expect(Math.abs(run.result!.eigenvalues[k] - expected)).toBeLessThan(1e-7 * top));
+  });
+});

@@ -14,7 +14,7 @@ import { decodeFloat64, decodeInt32 } from '../../db/arrays';
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
-import { loadCausalSetRunInput, type CausalSetReference } from './causal-set-service';
+import { decodeRelationWords, loadCausalSetRunInput, type CausalSetReference } from './causal-set-service';
 import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
@@ -40,14 +40,28 @@ export interface StoredRunRequest {
   causalSet?: CausalSetReference;
 }
 
-/** The engine request for a stored run; `points` are the run's stored points when it reuses some. */
-export function toEngineRequest(request: StoredRunRequest, dimension: 2 | 4, points: Float64Array | null): Omit<VacuumRequest, 'backend'> {
+/**
+ * The engine request for a stored run; `points` are the run's stored points when it reuses some,
+ * `relation` the bit-packed closed relation of a run on an imported relation list.
+ */
+export function toEngineRequest(
+  request: StoredRunRequest,
+  dimension: 2 | 4,
+  points: Float64Array | null,
+  relation: Uint32Array | null = null,
+): Omit<VacuumRequest, 'backend'> {
   const settings = {
     mass: request.mass,
     truncation: request.truncation,
     subregion: request.subregion,
     doubleTruncation: request.doubleTruncation,
   };
+  if (request.causalSet?.kind === 'relations') {
+    const imported = request.causalSet;
+    if (!relation) throw new EngineInputError(`this run has lost the relation of the causal set "${imported.name}"`);
+    const density = imported.density !== null ? { density: imported.density } : {};
+    return { ...settings, source: { kind: 'order', causal: relation, count: imported.N, dimension, ...density } };
+  }
   if (request.causalSet) {
     const imported = request.causalSet;
     if (!points) throw new EngineInputError(`this run has lost the elements of the causal set "${imported.name}"`);
@@ -205,7 +219,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           doubleTruncation: request.doubleTruncation,
           causalSet: imported.reference,
         };
-        validateForEngine(toEngineRequest(stored, imported.dimension, imported.points));
+        validateForEngine(toEngineRequest(stored, imported.dimension, imported.points, imported.relationWords));
         return {
           id: await storeAndEnqueue({
             teamId: team.id,
@@ -218,6 +232,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
             truncationText: formatTruncationRule(request.truncation),
             parentRunId: null,
             points: imported.stored.points,
+            relation: imported.stored.relation,
           }),
         };
       }
@@ -280,7 +295,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
     async reanalyse(team: TeamContext, author: UserRow, id: string, body: unknown): Promise<{ id: string }> {
       const changes = reanalyseRunRequestSchema.parse(body);
       const parent = await doneRunWithArrays(team, id);
-      const arrays = await runs.loadRunArrays(m, team.id, parent.id, ['points']);
+      const arrays = await runs.loadRunArrays(m, team.id, parent.id, ['points', 'relation']);
       if (!arrays?.points) throw conflict('points_missing', 'The run has no stored points to re-analyse.');
       const base = parent.request as unknown as StoredRunRequest;
       const subregion = changes.subregion === null ? undefined : (changes.subregion ?? base.subregion);
@@ -296,7 +311,9 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         ...(base.causalSet ? { causalSet: base.causalSet } : {}),
         reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
       };
-      validateForEngine(toEngineRequest(stored, parent.dimension, decodeFloat64(arrays.points)));
+      validateForEngine(
+        toEngineRequest(stored, parent.dimension, decodeFloat64(arrays.points), arrays.relation ? decodeRelationWords(arrays.relation, parent.n!) : null),
+      );
       return {
         id: await storeAndEnqueue({
           teamId: team.id,
@@ -309,6 +326,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           truncationText: formatTruncationRule(stored.truncation),
           parentRunId: parent.id,
           points: arrays.points,
+          relation: arrays.relation,
         }),
       };
     },

@@ -4,11 +4,11 @@ import type { VacuumStage } from '@shared/vacuum';
 import { RunEntity, type RunRow, type RunSummaryRecord } from '../run-entities';
 
 /** A run with its author's name, as lists and pages show it (the long arrays are loaded only on demand). */
-export type RunWithAuthor = Omit<RunRow, 'points' | 'eigenvalues' | 'generalizedEigenvalues' | 'subregionElements'> & {
+export type RunWithAuthor = Omit<RunRow, 'points' | 'eigenvalues' | 'generalizedEigenvalues' | 'subregionElements' | 'relation'> & {
   authorName: string;
 };
 
-export type RunArrayColumn = 'points' | 'eigenvalues' | 'generalizedEigenvalues' | 'subregionElements';
+export type RunArrayColumn = 'points' | 'eigenvalues' | 'generalizedEigenvalues' | 'subregionElements' | 'relation';
 
 const summaryColumns = [
   'id', 'teamId', 'authorId', 'title', 'status', 'stage', 'percent', 'cancelRequested', 'request', 'dimension',
@@ -25,10 +25,10 @@ export async function changedRows(m: EntityManager, sql: string, parameters: unk
 export type NewRun = Pick<
   RunRow,
   'teamId' | 'authorId' | 'title' | 'request' | 'dimension' | 'regionKind' | 'requestedN' | 'truncationText' | 'parentRunId'
-> & { points?: Buffer | null };
+> & { points?: Buffer | null; relation?: Buffer | null };
 
 export async function insertRun(m: EntityManager, values: NewRun): Promise<string> {
-  const saved = await m.save(RunEntity, m.create(RunEntity, { ...values, status: 'queued', percent: 0, points: values.points ?? null }));
+  const saved = await m.save(RunEntity, m.create(RunEntity, { ...values, status: 'queued', percent: 0, points: values.points ?? null, relation: values.relation ?? null }));
   return saved.id;
 }
 

@@ -1,5 +1,6 @@
 import { UnrecoverableError, type Job } from 'bullmq';
 import { vacuumStages, type VacuumStage } from '../../../shared/vacuum';
+import { decodeRelationWords } from '../../api/services/causal-set-service';
 import { toEngineRequest, vacuumRunJobName, type StoredRunRequest } from '../../api/services/run-service';
 import { decodeFloat64, encodeFloat64, encodeInt32 } from '../../db/arrays';
 import { UserEntity } from '../../db/entities';
@@ -142,7 +143,8 @@ export const vacuumRunHandler: JobHandler = async (job: Job<{ runId: string }>, 
   const progress = progressWriter(context, job, runId, withEntropy);
   let result: VacuumResult;
   try {
-    const engineRequest = toEngineRequest(request, run.dimension, run.points ? decodeFloat64(run.points) : null);
+    const relation = run.relation && request.causalSet ? decodeRelationWords(run.relation, request.causalSet.N) : null;
+    const engineRequest = toEngineRequest(request, run.dimension, run.points ? decodeFloat64(run.points) : null, relation);
     result = await runInEngineThread(engineRequest, {
       onProgress: (stage, fraction) => progress.report(stage, fraction),
       poll: async () => {
