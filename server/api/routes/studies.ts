@@ -1,0 +1,46 @@
+import { Router } from 'express';
+import { studyExportQuerySchema } from '@shared/studies';
+import { requireAuth, requireTeam } from '../context';
+import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
+import type { AuthService } from '../services/auth-service';
+import type { StudyService } from '../services/study-service';
+import type { TeamService } from '../services/team-service';
+
+/** Scaling studies of the current team; other teams' ids answer 404 like missing ones. */
+export function studyRoutes(deps: { auth: AuthService; teams: TeamService; studies: StudyService }): Router {
+  const { auth, teams, studies } = deps;
+  const router = Router();
+  router.use('/studies', authenticate(auth), currentTeam(teams));
+
+  router.post('/studies', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await studies.create(requireTeam(req), requireAuth(req).user, req.body));
+  });
+
+  router.get('/studies', requirePermission('read'), async (req, res) => {
+    res.json(await studies.list(requireTeam(req)));
+  });
+
+  router.get('/studies/:id', requirePermission('read'), async (req, res) => {
+    res.json(await studies.get(requireTeam(req), req.params.id as string));
+  });
+
+  router.post('/studies/:id/cancel', requirePermission('compute'), async (req, res) => {
+    res.json(await studies.cancel(requireTeam(req), req.params.id as string));
+  });
+
+  router.delete('/studies/:id', requirePermission('compute'), async (req, res) => {
+    await studies.remove(requireTeam(req), req.params.id as string);
+    res.status(204).end();
+  });
+
+  router.get('/studies/:id/export', requirePermission('read'), async (req, res) => {
+    const { format } = studyExportQuerySchema.parse(req.query);
+    const { body, contentType, filename } = await studies.exportStudy(requireTeam(req), req.params.id as string, format);
+    // attachment() guesses a type from the extension, so the real one is set after it
+    res.attachment(filename);
+    res.set('Content-Type', contentType);
+    res.send(body);
+  });
+
+  return router;
+}

@@ -1,0 +1,306 @@
+import type { Queue } from 'bullmq';
+import type { DataSource } from 'typeorm';
+import { ZodError } from 'zod';
+import {
+  createStudyRequestSchema,
+  studyRuleKey,
+  type CreateStudyRequest,
+  type StudyDetail,
+  type StudyEntropy,
+  type StudyExportFormat,
+  type StudySpectrum,
+  type StudySummary,
+} from '@shared/studies';
+import { decodeFloat64 } from '../../db/arrays';
+import type { UserRow } from '../../db/entities';
+import * as studies from '../../db/repositories/studies';
+import type { StudyWithAuthor, StudyProgressCounts } from '../../db/repositories/studies';
+import type { StudyCellRow } from '../../db/study-entities';
+import { EngineInputError, validateVacuumRequest } from '../../engine/index';
+import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
+import {
+  aggregatesCsv,
+  bibtex,
+  latexTable,
+  methodsParagraph,
+  provenanceJson,
+  tidyCsv,
+  type StudyExportInput,
+} from '../../studies/exports';
+import { cellSprinkling, planCells, resolveSubregions, ruleLabels, StudyPlanError } from '../../studies/plan';
+import { studyCellJobId, studyCellJobName } from '../../worker/handlers/studyCell';
+import type { TeamContext } from '../context';
+import { conflict, HttpError, notFound } from '../errors';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** A plan problem is a field problem: answered like a zod validation error, with the field's path. */
+function planIssue(error: StudyPlanError): ZodError {
+  return new ZodError([{ code: 'custom', path: error.path.split('.').map((p) => (/^\d+$/.test(p) ? Number(p) : p)), message: error.message, input: undefined }]);
+}
+
+function percentOf(total: number, p: StudyProgressCounts): number {
+  const finished = p.done + p.failed + p.cancelled;
+  return total > 0 ? Math.round((1000 * (finished + p.runningPercent / 100)) / total) / 10 : 0;
+}
+
+export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCounts): StudySummary {
+  const request = row.request as unknown as CreateStudyRequest;
+  return {
+    id: row.id,
+    title: row.title,
+    status: row.status,
+    author: { id: row.authorId, name: row.authorName },
+    createdAt: row.createdAt.toISOString(),
+    startedAt: row.startedAt ? row.startedAt.toISOString() : null,
+    finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+    regionKind: row.regionKind,
+    counts: [...request.counts].sort((a, b) => a - b),
+    seedCount: request.seeds.length,
+    rules: request.rules.map((r) => studyRuleKey(r)),
+    subregionCount: row.subregions.length,
+    progress: {
+      done: progress.done,
+      failed: progress.failed,
+      cancelled: progress.cancelled,
+      total: row.cellsTotal,
+      percent: percentOf(row.cellsTotal, progress),
+    },
+  };
+}
+
+/** One row per computed entropy of the finished cells, in queue order. */
+export function entropiesOf(row: Pick<StudyWithAuthor, 'subregions'>, cells: StudyCellRow[]): StudyEntropy[] {
+  const fractions = new Map(row.subregions.map((s) => [s.key, s.fraction]));
+  const out: StudyEntropy[] = [];
+  for (const cell of cells) {
+    if (cell.status !== 'done' || !cell.result) continue;
+    const states = new Map(cell.result.states.map((s) => [s.rule, s]));
+    for (const e of cell.result.entropies) {
+      out.push({
+        cellId: cell.id,
+        N: cell.requestedN,
+        elements: cell.n!,
+        seed: cell.seed,
+        subregion: e.subregion,
+        fraction: fractions.get(e.subregion) ?? null,
+        rule: e.rule,
+        n: e.n,
+        S: e.S,
+        modesKept: e.modesKept,
+        cutoff: e.cutoff,
+        stateModesKept: states.get(e.rule)?.modesKept ?? 0,
+        stateCutoff: states.get(e.rule)?.cutoff ?? 0,
+      });
+    }
+  }
+  return out;
+}
+
+export type StudyService = ReturnType<typeof createStudyService>;
+
+export function createStudyService(deps: { dataSource: DataSource; computeQueue: Queue }) {
+  const { dataSource, computeQueue } = deps;
+  const m = dataSource.manager;
+
+  async function findOrThrow(team: TeamContext, id: string): Promise<StudyWithAuthor> {
+    const row = uuidPattern.test(id) ? await studies.findStudyInTeam(m, team.id, id.toLowerCase()) : null;
+    if (!row) throw notFound('Study not found.');
+    return row;
+  }
+
+  async function removeQueuedJobs(cellIds: string[]): Promise<void> {
+    // The cells are already cancelled, so a worker that takes a job anyway skips it; removal only tidies.
+    await Promise.all(
+      cellIds.map(async (cellId) => {
+        try {
+          await (await computeQueue.getJob(studyCellJobId(cellId)))?.remove();
+        } catch {
+          /* locked by a worker that is about to see the cancelled cell */
+        }
+      }),
+    );
+  }
+
+  async function spectraOf(row: StudyWithAuthor, cells: StudyCellRow[]): Promise<StudySpectrum[]> {
+    const firstPerN = new Map<number, StudyCellRow>();
+    for (const c of cells) if (c.status === 'done' && !firstPerN.has(c.requestedN)) firstPerN.set(c.requestedN, c);
+    const chosen = [...firstPerN.values()].sort((a, b) => a.requestedN - b.requestedN);
+    const stored = await studies.eigenvaluesOfCells(m, chosen.map((c) => c.id));
+    const request = row.request as unknown as CreateStudyRequest;
+    const cutting = new Set(request.rules.filter((r) => r.truncation.rule !== 'none').map((r) => studyRuleKey(r)));
+    return chosen
+      .filter((c) => stored.has(c.id))
+      .map((c) => ({
+        N: c.requestedN,
+        seed: c.seed,
+        elements: c.n!,
+        eigenvalues: Array.from(decodeFloat64(stored.get(c.id)!)),
+        cuts: (c.result?.states ?? []).filter((s) => cutting.has(s.rule)).map((s) => ({ rule: s.rule, cutoff: s.cutoff })),
+      }));
+  }
+
+  async function exportInput(row: StudyWithAuthor): Promise<StudyExportInput> {
+    const cells = await studies.cellsOfStudy(m, row.id);
+    const entropies = entropiesOf(row, cells);
+    const aggregates = aggregateEntropies(entropies);
+    return {
+      id: row.id,
+      title: row.title,
+      status: row.status,
+      author: row.authorName,
+      createdAt: row.createdAt.toISOString(),
+      finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+      request: row.request as unknown as CreateStudyRequest,
+      subregions: row.subregions,
+      entropies,
+      aggregates,
+      fits: fitAggregates(aggregates),
+      cells: cells.map((c) => ({
+        id: c.id,
+        N: c.requestedN,
+        seed: c.seed,
+        status: c.status,
+        elements: c.n,
+        backend: c.backend,
+        engineVersion: c.engineVersion,
+        startedAt: c.startedAt ? c.startedAt.toISOString() : null,
+        finishedAt: c.finishedAt ? c.finishedAt.toISOString() : null,
+        timings: c.result?.timings ?? null,
+        states: c.result?.states ?? null,
+        error: c.error,
+      })),
+    };
+  }
+
+  return {
+    async create(team: TeamContext, author: UserRow, body: unknown): Promise<{ id: string }> {
+      const request = createStudyRequestSchema.parse(body);
+      let subregions;
+      let cells;
+      try {
+        subregions = resolveSubregions(request);
+        cells = planCells(request, subregions);
+      } catch (error) {
+        if (error instanceof StudyPlanError) throw planIssue(error);
+        throw error;
+      }
+      for (const count of new Set(request.counts)) {
+        try {
+          validateVacuumRequest({ source: { kind: 'sprinkling', sprinkling: cellSprinkling(request, count, request.seeds[0]!) }, mass: request.mass });
+        } catch (error) {
+          if (error instanceof EngineInputError) {
+            const tooLarge = /exceeds the dense limit/.test(error.message);
+            throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `N = ${count}: ${error.message}`);
+          }
+          throw error;
+        }
+      }
+      const { id, cellIds } = await studies.insertStudyWithCells(
+        m,
+        {
+          teamId: team.id,
+          authorId: author.id,
+          title: request.title || null,
+          request: request as unknown as Record<string, unknown>,
+          subregions,
+          regionKind: request.region.kind,
+        },
+        cells.map((c) => ({ position: c.position, requestedN: c.count, seed: c.seed })),
+      );
+      try {
+        await computeQueue.addBulk(
+          cellIds.map((cellId) => ({
+            name: studyCellJobName,
+            data: { studyId: id, cellId },
+            opts: { jobId: studyCellJobId(cellId), attempts: 1, removeOnComplete: 5000, removeOnFail: 5000 },
+          })),
+        );
+      } catch (error) {
+        const reason = `The study could not be queued: ${(error as Error).message}`;
+        await studies.failStudy(m, id, reason);
+        await removeQueuedJobs(cellIds);
+        throw new HttpError(503, 'queue_unavailable', `${reason}. It is stored as failed; try again when the queue is back.`);
+      }
+      return { id };
+    },
+
+    async list(team: TeamContext): Promise<{ items: StudySummary[] }> {
+      const rows = await studies.listStudiesOfTeam(m, team.id);
+      const progress = await studies.progressOfStudies(m, rows.map((r) => r.id));
+      return { items: rows.map((r) => toStudySummary(r, progress.get(r.id)!)) };
+    },
+
+    async get(team: TeamContext, id: string): Promise<StudyDetail> {
+      const row = await findOrThrow(team, id);
+      const cells = await studies.cellsOfStudy(m, row.id);
+      const progress = (await studies.progressOfStudies(m, [row.id])).get(row.id)!;
+      const entropies = entropiesOf(row, cells);
+      const aggregates = aggregateEntropies(entropies);
+      const request = row.request as unknown as CreateStudyRequest;
+      const backends = [...new Set(cells.map((c) => c.backend).filter((b): b is string => b !== null))];
+      return {
+        ...toStudySummary(row, progress),
+        request: row.request,
+        error: row.error,
+        cancelRequested: row.cancelRequested,
+        subregions: row.subregions,
+        ruleLabels: ruleLabels(request),
+        cells: cells.map((c) => ({
+          id: c.id,
+          N: c.requestedN,
+          seed: c.seed,
+          status: c.status,
+          percent: c.percent,
+          elements: c.n,
+          error: c.error,
+          seconds: c.startedAt && c.finishedAt ? (c.finishedAt.getTime() - c.startedAt.getTime()) / 1000 : null,
+        })),
+        aggregates,
+        fits: fitAggregates(aggregates),
+        spectra: await spectraOf(row, cells),
+        engineVersion: cells.find((c) => c.engineVersion)?.engineVersion ?? null,
+        backends,
+      };
+    },
+
+    async cancel(team: TeamContext, id: string): Promise<StudyDetail> {
+      const row = await findOrThrow(team, id);
+      const queued = await studies.cancelStudy(m, team.id, row.id);
+      if (queued === null) throw conflict('study_finished', `The study is already ${row.status}; only queued or running studies can be cancelled.`);
+      await removeQueuedJobs(queued);
+      return this.get(team, id);
+    },
+
+    async remove(team: TeamContext, id: string): Promise<void> {
+      const row = await findOrThrow(team, id);
+      const queued = await studies.cancelStudy(m, team.id, row.id);
+      if (queued) await removeQueuedJobs(queued);
+      if (!(await studies.deleteStudy(m, team.id, row.id))) throw notFound('Study not found.');
+    },
+
+    /** One export of a study: body, content type and the attachment's file name. */
+    async exportStudy(team: TeamContext, id: string, format: StudyExportFormat): Promise<{ body: string; contentType: string; filename: string }> {
+      const row = await findOrThrow(team, id);
+      const input = await exportInput(row);
+      if (input.entropies.length === 0) {
+        throw conflict('study_not_ready', `The study is ${row.status} and no sprinkling has finished yet; exports need at least one.`);
+      }
+      const base = `tacet-study-${row.id.slice(0, 8)}`;
+      switch (format) {
+        case 'csv':
+          return { body: tidyCsv(input.entropies), contentType: 'text/csv; charset=utf-8', filename: `${base}-entropies.csv` };
+        case 'aggregates-csv':
+          return { body: aggregatesCsv(input.aggregates), contentType: 'text/csv; charset=utf-8', filename: `${base}-aggregates.csv` };
+        case 'latex':
+          return { body: latexTable(input), contentType: 'text/x-tex; charset=utf-8', filename: `${base}-table.tex` };
+        case 'json':
+          return { body: JSON.stringify(provenanceJson(input), null, 2) + '\n', contentType: 'application/json; charset=utf-8', filename: `${base}.json` };
+        case 'bibtex':
+          return { body: bibtex(input.request), contentType: 'text/x-bibtex; charset=utf-8', filename: `${base}-references.bib` };
+        case 'methods':
+          return { body: methodsParagraph(input), contentType: 'text/plain; charset=utf-8', filename: `${base}-methods.txt` };
+      }
+    },
+  };
+}

@@ -1,0 +1,259 @@
+import { z } from 'zod';
+import { eventSchema, formatTruncationRule, prngSchema, regionSpecSchema, truncationRuleSchema, type TruncationRule } from './vacuum';
+
+/**
+ * Scaling studies: a grid of N values × subregions × seeds × cut rules on one kind of region, with
+ * ensemble aggregates and fits of the entropy against ln √n and against n. Shared by the study form,
+ * the API, the worker and the exports, so a setting means the same thing everywhere.
+ */
+
+export const studyStatuses = ['queued', 'running', 'done', 'failed', 'cancelled'] as const;
+export const studyStatusSchema = z.enum(studyStatuses);
+export type StudyStatus = z.infer<typeof studyStatusSchema>;
+
+export const cellStatusSchema = z.enum(studyStatuses);
+export type CellStatus = z.infer<typeof cellStatusSchema>;
+
+/** Cells (one sprinkling each) a single study may hold: enough for a paper figure, bounded for a shared worker. */
+export const STUDY_MAX_CELLS = 400;
+/** A subregion expected to hold fewer elements gives no meaningful entropy; the form says so beside ℓ/L. */
+export const STUDY_MIN_SUBREGION_ELEMENTS = 8;
+
+/**
+ * How entropies are computed for one column of the study:
+ * - `truncation` cuts the SJ state of the whole region (shared/vacuum.ts rules);
+ * - `doubleTruncation` also drops the modes of the restricted iΔ_c below √n/(4π) (Sorkin–Yazdi 2018).
+ * Untruncated = { none, false }; the usual double truncation = { sqrtN, true }.
+ */
+export const studyRuleSchema = z.strictObject({
+  truncation: truncationRuleSchema,
+  doubleTruncation: z.boolean().default(false),
+});
+export type StudyRule = z.infer<typeof studyRuleSchema>;
+export type StudyRuleInput = z.input<typeof studyRuleSchema>;
+
+/** Stable short key of a rule, used in exports and aggregate rows: "none", "sqrtN+double", "lambda:0.5". */
+export function studyRuleKey(rule: { truncation: TruncationRule; doubleTruncation?: boolean }): string {
+  return `${formatTruncationRule(rule.truncation)}${rule.doubleTruncation ? '+double' : ''}`;
+}
+
+/** Human label of a rule for tables and legends. */
+export function studyRuleLabel(rule: { truncation: TruncationRule; doubleTruncation?: boolean }): string {
+  if (rule.truncation.rule === 'none' && !rule.doubleTruncation) return 'untruncated';
+  if (rule.truncation.rule === 'sqrtN' && rule.doubleTruncation) return 'double-truncated (√N/4π, √n/4π)';
+  const whole = rule.truncation.rule === 'none' ? 'untruncated state' : `state cut ${formatTruncationRule(rule.truncation)}`;
+  return rule.doubleTruncation ? `${whole}, restricted cut √n/4π` : whole;
+}
+
+const fraction = z
+  .number()
+  .refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'ℓ/L must lie strictly between 0 and 1' });
+
+const tipsDiamondSchema = z.strictObject({
+  label: z.string().trim().min(1).max(40).optional(),
+  past: eventSchema,
+  future: eventSchema,
+});
+
+/**
+ * Subregions, each a causal diamond:
+ * - `concentric`: sub-diamonds sharing the centre and axis of the region, with proper time ℓ = f·L for
+ *   each fraction f = ℓ/L (2D diamonds, cylinder diamonds and 4D diamonds);
+ * - `tips`: sub-diamonds given by their past and future tips.
+ */
+export const studySubregionsSchema = z.discriminatedUnion('kind', [
+  z.strictObject({
+    kind: z.literal('concentric'),
+    fractions: z
+      .array(fraction)
+      .min(1, { message: 'give at least one ℓ/L' })
+      .max(12, { message: 'at most 12 sizes' })
+      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/L values must differ' }),
+  }),
+  z.strictObject({
+    kind: z.literal('tips'),
+    diamonds: z.array(tipsDiamondSchema).min(1, { message: 'give at least one sub-diamond' }).max(12, { message: 'at most 12 sub-diamonds' }),
+  }),
+]);
+export type StudySubregions = z.infer<typeof studySubregionsSchema>;
+
+const seedSchema = z.union([z.string().trim().min(1).max(200), z.number().int()]).transform(String);
+
+/** Body of POST /api/studies. */
+export const createStudyRequestSchema = z
+  .strictObject({
+    title: z.string().trim().max(200).optional(),
+    region: regionSpecSchema.default({ kind: 'diamond2d', properTime: 2 }),
+    process: z.enum(['fixed', 'poisson']).default('fixed'),
+    prng: prngSchema.default('arc4'),
+    /** element counts (fixed-N) or expected counts (Poisson), one sprinkling per count and seed */
+    counts: z
+      .array(z.number().int().min(20, { message: 'N must be at least 20' }))
+      .min(1, { message: 'give at least one N' })
+      .max(12, { message: 'at most 12 values of N' })
+      .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' }),
+    seeds: z
+      .array(seedSchema)
+      .min(1, { message: 'give at least one seed' })
+      .max(64, { message: 'at most 64 seeds' })
+      .refine((s) => new Set(s).size === s.length, { message: 'seeds must differ' }),
+    subregions: studySubregionsSchema,
+    rules: z
+      .array(studyRuleSchema)
+      .min(1, { message: 'give at least one cut rule' })
+      .max(4, { message: 'at most 4 cut rules' })
+      .refine((r) => new Set(r.map((x) => studyRuleKey({ truncation: x.truncation, doubleTruncation: x.doubleTruncation ?? false }))).size === r.length, {
+        message: 'cut rules must differ',
+      }),
+    mass: z.number().refine((v) => Number.isFinite(v) && v >= 0, { message: 'mass must be ≥ 0' }).default(0),
+  })
+  .refine((r) => r.counts.length * r.seeds.length <= STUDY_MAX_CELLS, {
+    message: `a study holds at most ${STUDY_MAX_CELLS} sprinklings (N values × seeds)`,
+    path: ['seeds'],
+  });
+export type CreateStudyRequest = z.infer<typeof createStudyRequestSchema>;
+export type CreateStudyRequestInput = z.input<typeof createStudyRequestSchema>;
+
+/** A subregion as the worker and the exports see it: key, label, ℓ/L when concentric, tips. */
+export const resolvedSubregionSchema = z.object({
+  key: z.string(),
+  label: z.string(),
+  fraction: z.number().nullable(),
+  past: eventSchema,
+  future: eventSchema,
+});
+export type ResolvedSubregion = z.infer<typeof resolvedSubregionSchema>;
+
+/** One computed entropy: one (N, seed, subregion, rule). The tidy CSV has one row per entry. */
+export const studyEntropySchema = z.object({
+  cellId: z.string(),
+  /** the requested count; `elements` is the actual N (different for Poisson sprinklings) */
+  N: z.number().int(),
+  elements: z.number().int(),
+  seed: z.string(),
+  subregion: z.string(),
+  fraction: z.number().nullable(),
+  rule: z.string(),
+  /** elements in the subregion */
+  n: z.number().int(),
+  S: z.number(),
+  /** modes of the restricted iΔ kept (both signs) and the cut applied to them */
+  modesKept: z.number().int(),
+  cutoff: z.number(),
+  /** positive modes of the whole region's iΔ kept and the whole-region cut */
+  stateModesKept: z.number().int(),
+  stateCutoff: z.number(),
+});
+export type StudyEntropy = z.infer<typeof studyEntropySchema>;
+
+/** Ensemble over seeds for one (N, subregion, rule). */
+export const studyAggregateSchema = z.object({
+  N: z.number().int(),
+  subregion: z.string(),
+  fraction: z.number().nullable(),
+  rule: z.string(),
+  seeds: z.number().int(),
+  meanElements: z.number(),
+  meanN: z.number(),
+  meanS: z.number(),
+  /** sample standard deviation over seeds (n − 1 in the denominator); null for a single seed */
+  sdS: z.number().nullable(),
+  /** standard error of the mean, sdS/√seeds; null for a single seed */
+  seS: z.number().nullable(),
+});
+export type StudyAggregate = z.infer<typeof studyAggregateSchema>;
+
+/** Weighted least-squares straight line y = slope·x + intercept through the aggregates of one rule. */
+export const studyFitSchema = z.object({
+  rule: z.string(),
+  /** null: over every aggregate of the rule; otherwise one subregion's aggregates across N */
+  subregion: z.string().nullable(),
+  /** 'log': S against ln √n (slope = b); 'linear': S against n (the volume-law slope) */
+  model: z.enum(['log', 'linear']),
+  points: z.number().int(),
+  slope: z.number(),
+  slopeError: z.number().nullable(),
+  intercept: z.number(),
+  interceptError: z.number().nullable(),
+  rSquared: z.number().nullable(),
+  /** χ² per degree of freedom with the standard errors as σ; null when unweighted or too few points */
+  reducedChiSquared: z.number().nullable(),
+  /**
+   * 'inverse-variance': weights 1/SE², errors from those σ (absolute); 'unweighted': some point has no
+   * standard error (a single seed), errors from the scatter of the residuals
+   */
+  weighting: z.enum(['inverse-variance', 'unweighted']),
+});
+export type StudyFit = z.infer<typeof studyFitSchema>;
+
+export const studyCellSchema = z.object({
+  id: z.string(),
+  N: z.number().int(),
+  seed: z.string(),
+  status: cellStatusSchema,
+  percent: z.number(),
+  elements: z.number().int().nullable(),
+  error: z.string().nullable(),
+  seconds: z.number().nullable(),
+});
+export type StudyCell = z.infer<typeof studyCellSchema>;
+
+/** One row of the studies table. */
+export const studySummarySchema = z.object({
+  id: z.string(),
+  title: z.string().nullable(),
+  status: studyStatusSchema,
+  author: z.object({ id: z.string(), name: z.string() }),
+  createdAt: z.string(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  regionKind: z.string(),
+  counts: z.array(z.number().int()),
+  seedCount: z.number().int(),
+  rules: z.array(z.string()),
+  subregionCount: z.number().int(),
+  progress: z.object({
+    /** cells (sprinklings) finished, of `total` */
+    done: z.number().int(),
+    failed: z.number().int(),
+    cancelled: z.number().int(),
+    total: z.number().int(),
+    /** 0..100 including the share of the cells still computing */
+    percent: z.number(),
+  }),
+});
+export type StudySummary = z.infer<typeof studySummarySchema>;
+
+export const studyListResponseSchema = z.object({ items: z.array(studySummarySchema) });
+
+/** Positive eigenvalues of iΔ of one sprinkling per N (the first seed that finished), for the spectra plot. */
+export const studySpectrumSchema = z.object({
+  N: z.number().int(),
+  seed: z.string(),
+  elements: z.number().int(),
+  eigenvalues: z.array(z.number()),
+  /** whole-region cut of each rule that cuts the state, e.g. √N/(4π) */
+  cuts: z.array(z.object({ rule: z.string(), cutoff: z.number() })),
+});
+export type StudySpectrum = z.infer<typeof studySpectrumSchema>;
+
+/** GET /api/studies/:id */
+export const studyDetailSchema = studySummarySchema.extend({
+  /** the validated request */
+  request: z.unknown(),
+  error: z.string().nullable(),
+  cancelRequested: z.boolean(),
+  subregions: z.array(resolvedSubregionSchema),
+  ruleLabels: z.record(z.string(), z.string()),
+  cells: z.array(studyCellSchema),
+  aggregates: z.array(studyAggregateSchema),
+  fits: z.array(studyFitSchema),
+  spectra: z.array(studySpectrumSchema),
+  engineVersion: z.string().nullable(),
+  backends: z.array(z.string()),
+});
+export type StudyDetail = z.infer<typeof studyDetailSchema>;
+
+export const studyExportFormats = ['csv', 'aggregates-csv', 'latex', 'json', 'bibtex', 'methods'] as const;
+export const studyExportQuerySchema = z.strictObject({ format: z.enum(studyExportFormats) });
+export type StudyExportFormat = (typeof studyExportFormats)[number];
