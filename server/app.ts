@@ -11,6 +11,7 @@ import { healthRoutes } from './api/routes/health';
 import { invitationRoutes } from './api/routes/invitations';
 import { outboxRoutes } from './api/routes/outbox';
 import { runRoutes } from './api/routes/runs';
+import { studyRoutes } from './api/routes/studies';
 import { teamRoutes } from './api/routes/team';
 import { createAuthService } from './api/services/auth-service';
 import { createCausalSetService } from './api/services/causal-set-service';
@@ -19,6 +20,7 @@ import { createHealthService } from './api/services/health-service';
 import { createInvitationService } from './api/services/invitation-service';
 import { createOutboxService } from './api/services/outbox-service';
 import { createRunService } from './api/services/run-service';
+import { createStudyService } from './api/services/study-service';
 import { createTeamService } from './api/services/team-service';
 
 export type { AppDeps } from './api/context';
@@ -31,6 +33,7 @@ export function createApp(deps: AppDeps): Express {
   const teams = createTeamService({ dataSource });
   const outbox = createOutboxService({ dataSource });
   const runs = createRunService({ dataSource, computeQueue });
+  const studies = createStudyService({ dataSource, computeQueue });
   const cutRules = createCutRuleService({ dataSource });
   const causalSets = createCausalSetService({ dataSource });
   const health = createHealthService({ dataSource, redis, computeQueue, version: config.version });
@@ -51,6 +54,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(teamRoutes({ auth, teams, invitations }));
   api.use(invitationRoutes({ auth, invitations }));
   api.use(runRoutes({ auth, teams, runs }));
+  api.use(studyRoutes({ auth, teams, studies }));
   api.use(cutRuleRoutes({ auth, teams, cutRules }));
   api.use(causalSetRoutes({ auth, teams, causalSets }));
   if (config.mode === 'development') api.use(outboxRoutes({ auth, teams, outbox }));

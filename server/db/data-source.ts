@@ -2,10 +2,11 @@ import { DataSource } from 'typeorm';
 import { causalSetEntities } from './causal-set-entities';
 import { platformEntities } from './entities';
 import { runEntities } from './run-entities';
+import { studyEntities } from './study-entities';
 import { migrations } from './migrations/index';
 
 /** Every EntitySchema the API and the worker use; later features append theirs here. */
-const allEntities = [...platformEntities, ...runEntities, ...causalSetEntities];
+const allEntities = [...platformEntities, ...runEntities, ...causalSetEntities, ...studyEntities];
 
 export function createDataSource(databaseUrl: string): DataSource {
   return new DataSource({

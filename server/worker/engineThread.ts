@@ -39,19 +39,28 @@ const bootstrapUrl = new URL('./engineThread.bootstrap.mjs', import.meta.url);
  * else (including the thread dying, e.g. out of memory).
  */
 export function runInEngineThread(request: EngineThreadData['request'], options: EngineThreadOptions = {}): Promise<VacuumResult> {
+  return runInThread<VacuumResult>(null, { request }, options);
+}
+
+/**
+ * The same mechanism for another synchronous engine task: `body` is the file URL of a thread module
+ * that reads `workerData` (with `cancelFlag` added) and posts EngineThreadMessage-shaped messages;
+ * null is the vacuum body. Used by the scaling-study cells (server/studies/cellThread.worker.ts).
+ */
+export function runInThread<T>(body: string | null, data: Record<string, unknown>, options: EngineThreadOptions = {}): Promise<T> {
   const { pollMs = 500, cancelGraceMs = 5_000 } = options;
   const cancelFlag = new SharedArrayBuffer(4);
   const flag = new Int32Array(cancelFlag);
-  const thread = new Worker(bootstrapUrl, { workerData: { request, cancelFlag } satisfies EngineThreadData });
+  const thread = new Worker(bootstrapUrl, { workerData: { ...data, cancelFlag, ...(body ? { body } : {}) } });
 
-  return new Promise<VacuumResult>((resolve, reject) => {
+  return new Promise<T>((resolve, reject) => {
     let settled = false;
     let pollTimer: NodeJS.Timeout | undefined;
     let graceTimer: NodeJS.Timeout | undefined;
     let cancelStage: VacuumStage = 'sprinkle';
     let polling = false;
 
-    const finish = (outcome: { value: VacuumResult } | { error: Error }) => {
+    const finish = (outcome: { value: T } | { error: Error }) => {
       if (settled) return;
       settled = true;
       clearInterval(pollTimer);
@@ -61,12 +70,12 @@ export function runInEngineThread(request: EngineThreadData['request'], options:
       void thread.terminate();
     };
 
-    thread.on('message', (message: EngineThreadMessage) => {
+    thread.on('message', (message: EngineThreadMessage | { type: 'result'; result: T }) => {
       if (message.type === 'progress') {
         cancelStage = message.stage;
         options.onProgress?.(message.stage, message.fraction);
       } else if (message.type === 'result') {
-        finish({ value: message.result });
+        finish({ value: message.result as T });
       } else if (message.kind === 'cancelled') {
         finish({ error: new CancelledError(message.stage ?? cancelStage) });
       } else if (message.kind === 'input') {

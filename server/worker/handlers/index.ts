@@ -2,6 +2,7 @@ import type { Job } from 'bullmq';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../../config';
 import type { Mailer } from '../../mail/mailer';
+import { studyCellHandler, studyCellJobName } from './studyCell';
 import { vacuumRunHandler, vacuumRunJobName } from './vacuumRun';
 
 /** What a handler may use besides the job itself. */
@@ -24,4 +25,5 @@ export type JobHandler = (job: Job, context: WorkerContext) => Promise<unknown>;
  */
 export const jobHandlers: Record<string, JobHandler> = {
   [vacuumRunJobName]: vacuumRunHandler,
+  [studyCellJobName]: studyCellHandler,
 };
