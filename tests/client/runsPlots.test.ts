@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compareTraces, diamondBetween, pointsTraces, regionOutline, spectrumTraces } from '../../src/features/runs/lib/plotData';
+import { compareTraces, diamondBetween, logDecadeStep, pointsTraces, regionOutline, spectrumTraces } from '../../src/features/runs/lib/plotData';
 
 const colors = { data: 'ink', dataSoft: 'soft', reference: 'sage', cut: 'accent', accentDeep: 'deep', inkFaint: 'faint' };
 
@@ -85,5 +85,14 @@ describe('points plot data', () => {
     expect(inner.x).toEqual([0.4]);
     expect(inner.y).toEqual([-0.3]);
     expect(traces.some((t) => t.name === 'subregion boundary')).toBe(true);
+  });
+});
+
+describe('log axis ticks', () => {
+  it('labels every decade up to seven, then every second or third', () => {
+    expect(logDecadeStep([100, 1, 0.01])).toBe(1);
+    expect(logDecadeStep([100, 1e-9, 0])).toBe(2);
+    expect(logDecadeStep([1e3, 1e-13])).toBe(3);
+    expect(logDecadeStep([])).toBe(1);
   });
 });

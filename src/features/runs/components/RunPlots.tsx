@@ -2,7 +2,7 @@ import type { RunDetail, RunResult } from '@shared/runs';
 import { plotPalette } from '../../../lib/plotly';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useRunPoints } from '../api/runs';
-import { pointsTraces, spectrumTraces, tickFont } from '../lib/plotData';
+import { logDecadeStep, pointsTraces, spectrumTraces, tickFont } from '../lib/plotData';
 import { PlotFigure } from './PlotFigure';
 
 const axisTitle = (text: string) => ({ text, font: { size: 12 } });
@@ -15,7 +15,7 @@ export function SpectrumPlot({ run, result }: { run: RunDetail; result: RunResul
       data={spectrumTraces(result, plotPalette)}
       layout={{
         xaxis: { type: 'log', dtick: 1, title: axisTitle('rank k'), tickfont: tickFont, gridcolor: plotPalette.grid, linecolor: plotPalette.grid },
-        yaxis: { type: 'log', nticks: 8, title: axisTitle('λ_k  (positive eigenvalues of iΔ)'), tickfont: tickFont, gridcolor: plotPalette.grid, exponentformat: 'power' },
+        yaxis: { type: 'log', dtick: logDecadeStep([...result.eigenvalues, ...(result.continuum ?? []), result.cutoff]), title: axisTitle('λ_k  (positive eigenvalues of iΔ)'), tickfont: tickFont, gridcolor: plotPalette.grid, exponentformat: 'power' },
         legend: { x: 1, xanchor: 'right', y: 1, bgcolor: 'rgba(247,244,238,0.85)' },
       }}
       caption={

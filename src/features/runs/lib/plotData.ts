@@ -147,6 +147,24 @@ export function compareTraces(runs: CompareRun[], normalised: boolean, colors: P
   return traces;
 }
 
+/**
+ * Tick step of a log axis in decades: every decade for up to seven, every second beyond, so labels never
+ * crowd and Plotly's 2-and-5 minor labels (which read as data) never appear.
+ */
+export function logDecadeStep(values: number[]): number {
+  let min = Infinity;
+  let max = -Infinity;
+  for (const v of values) {
+    if (v > 0 && Number.isFinite(v)) {
+      if (v < min) min = v;
+      if (v > max) max = v;
+    }
+  }
+  if (!(max > min)) return 1;
+  const decades = Math.log10(max / min);
+  return decades > 14 ? 3 : decades > 7 ? 2 : 1;
+}
+
 /** Plotly's monospace tick font, for the layouts built in the components. */
 export const tickFont = { family: mono, size: 11 };
 

@@ -10,7 +10,7 @@ import { Checkbox } from '../components/Checkbox';
 import { Figure } from '../components/Figure';
 import { PlotFigure } from '../components/PlotFigure';
 import { StatusLabel } from '../components/StatusLabel';
-import { compareTraces, tickFont, type CompareRun } from '../lib/plotData';
+import { compareTraces, logDecadeStep, tickFont, type CompareRun } from '../lib/plotData';
 import { maxCompared, parseCompareIds, runLabel } from '../lib/runIds';
 
 const colors = tailwindConfig.theme.extend.colors;
@@ -73,7 +73,7 @@ export function ComparePage() {
               xaxis: { type: 'log', dtick: 1, title: { text: 'rank k' }, tickfont: tickFont, gridcolor: plotPalette.grid },
               yaxis: {
                 type: 'log',
-                nticks: 8,
+                dtick: logDecadeStep(compared.flatMap((r) => r.eigenvalues.map((v) => (normalised ? v / r.N : v)))),
                 title: { text: normalised ? 'λ_k / N' : 'λ_k' },
                 tickfont: tickFont,
                 gridcolor: plotPalette.grid,

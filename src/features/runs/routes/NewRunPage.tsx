@@ -80,8 +80,11 @@ function NewRunForm() {
       onSuccess: ({ id }) => navigate(`/runs/${id}`),
       onError: (error) => {
         if (isApiError(error)) {
-          errors.setFieldErrors(serverFieldErrors(error));
-          errors.setFormError(error.message);
+          const byField = serverFieldErrors(error);
+          errors.setFieldErrors(byField);
+          // A message already shown beside its field is not repeated above the button.
+          const shown = Object.values(byField).includes(error.message);
+          errors.setFormError(shown ? 'The server refused these settings; see the message beside the field.' : error.message);
         } else errors.fromServer(error);
       },
     });
