@@ -178,7 +178,7 @@ describe('a vacuum run on an uploaded relation list', () => {
     const rows = ['i,j'];
     linkMatrix(causalMatrix(points, 2)).forEach((i, j) => rows.push(`${i},${j}`));
     const id = await uploadCsv(ctx.app, researcher, rows.join('\n') + '\n', { name: 'diamond300 links', kind: 'relations', count: '300', dimension: '2' });
-    const elements = { kind: 'elements', indices: [0, 5, 9, 17, 23, 42, 57, 61, 88, 99, 120, 150, 151, 200, 222, 250, 299] } as const;
+    const elements = { kind: 'elements' as const, indices: [0, 5, 9, 17, 23, 42, 57, 61, 88, 99, 120, 150, 151, 200, 222, 250, 299] };
     const run = await runToEnd(ctx.app, researcher, { causalSetId: id, truncation: { rule: 'sqrtN' }, subregion: elements });
     expect(run.status).toBe('done');
     expect(run).toMatchObject({ regionKind: 'imported', N: 300, dimension: 2 });

@@ -43,7 +43,7 @@ describe('importing a causal set in the browser', () => {
     await page.waitForURL('**/causal-sets/import');
     // a file with a bad row: the server names the row and column and nothing is stored
     await page.getByLabel('CSV file').setInputFiles({ name: 'broken.csv', mimeType: 'text/csv', buffer: Buffer.from('t,x\n0,0\n0.2,oops\n0.3,0.1,0.4\n') });
-    await expect(page.getByLabel('Name').inputValue()).resolves.toBe('broken');
+    await expect.poll(() => page.getByLabel('Name').inputValue()).toBe('broken');
     await page.getByRole('button', { name: 'Import', exact: true }).click();
     const problems = page.getByRole('list', { name: 'Problems in the file' });
     await problems.waitFor();
@@ -72,7 +72,24 @@ describe('importing a causal set in the browser', () => {
     const saved = await download.path();
     expect(readFileSync(saved!).equals(readFileSync(fixture))).toBe(true);
 
-    await page.getByRole('link', { name: 'All causal sets' }).count();
+    // a run on the set starts from its page and opens the run
+    await page.getByLabel('Subregion for the entropy (optional)').fill('diamond:-0.7071,0:0.7071,0');
+    await page.getByRole('button', { name: 'Start the run' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+    const runId = page.url().split('/').pop()!;
+    const run = await running.context.dataSource.query('SELECT region_kind, requested_n, request FROM runs WHERE id = $1', [runId]);
+    expect(run[0]).toMatchObject({ region_kind: 'imported', requested_n: 300, request: { causalSet: { name: 'numpy diamond 300' }, subregion: { kind: 'diamond' } } });
+
+    // a relation list: the kind and the element count are read off the file
+    await page.goto(`${running.baseUrl}/causal-sets/import`);
+    await page.getByLabel('CSV file').setInputFiles({ name: 'chain-and-fork.csv', mimeType: 'text/csv', buffer: Buffer.from('i,j\n0,1\n1,2\n2,3\n0,4\n4,5\n1,5\n') });
+    await expect.poll(() => page.getByLabel('Element count N').inputValue()).toBe('6');
+    await page.getByRole('button', { name: 'Import', exact: true }).click();
+    await page.waitForURL(/\/causal-sets\/[0-9a-f-]{36}$/);
+    await page.getByRole('figure', { name: 'Layers' }).locator('.main-svg').first().waitFor();
+    await expect(page.getByRole('table', { name: 'Summary' }).textContent()).resolves.toContain('Height');
+    await shot(page, '05-relations');
+
     await page.goto(`${running.baseUrl}/causal-sets`);
     const table = page.getByRole('table', { name: 'Causal sets' });
     await table.waitFor();

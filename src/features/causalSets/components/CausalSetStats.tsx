@@ -28,9 +28,11 @@ export function CausalSetStats({ set }: { set: CausalSetSummary }) {
           <Row label="Dimension">
             <Figure value={set.dimension} />
           </Row>
-          <Row label="Volume V" note={describeRegion(set.region)}>
-            <Figure value={set.volume} />
-          </Row>
+          {set.region && (
+            <Row label="Volume V" note={describeRegion(set.region)}>
+              <Figure value={set.volume} />
+            </Row>
+          )}
           <Row label="Density ρ" note={set.density === null ? 'none given: massless 2D fields only' : set.region ? 'N / V' : 'as given'}>
             <Figure value={set.density} />
           </Row>

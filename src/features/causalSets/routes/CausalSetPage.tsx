@@ -65,7 +65,13 @@ function LayersFigure({ set }: { set: CausalSetDetail & { preview: { kind: 'rela
           hovertemplate: 'layer %{x}: %{y} elements<extra></extra>',
         },
       ]}
-      layout={{ showlegend: false, bargap: 0.15, xaxis: { title: { text: 'layer (longest chain from below)' } }, yaxis: { title: { text: 'elements' } } }}
+      layout={{
+        showlegend: false,
+        bargap: 0.15,
+        // whole numbers on both axes: one tick per layer while they fit, counts without fractions
+        xaxis: { title: { text: 'layer (longest chain from below)' }, tickformat: 'd', ...(sizes.length <= 40 ? { dtick: 1 } : {}) },
+        yaxis: { title: { text: 'elements' }, tickformat: 'd', rangemode: 'tozero', ...(Math.max(...sizes) <= 10 ? { dtick: 1 } : {}) },
+      }}
       caption={`Height ${set.stats.height}: the number of layers.`}
     />
   );
