@@ -8,6 +8,9 @@ import { ComparePage } from '../features/runs/routes/ComparePage';
 import { NewRunPage } from '../features/runs/routes/NewRunPage';
 import { RunPage } from '../features/runs/routes/RunPage';
 import { RunsPage } from '../features/runs/routes/RunsPage';
+import { NewStudyPage } from '../features/studies/routes/NewStudyPage';
+import { StudiesPage } from '../features/studies/routes/StudiesPage';
+import { StudyPage } from '../features/studies/routes/StudyPage';
 import { ResetConfirmPage } from '../features/auth/routes/ResetConfirmPage';
 import { ResetRequestPage } from '../features/auth/routes/ResetRequestPage';
 import { SignInPage } from '../features/auth/routes/SignInPage';
@@ -37,6 +40,9 @@ export const router = createBrowserRouter([
           { path: '/runs/new', element: <NewRunPage /> },
           { path: '/runs/compare', element: <ComparePage /> },
           { path: '/runs/:runId', element: <RunPage /> },
+          { path: '/studies', element: <StudiesPage /> },
+          { path: '/studies/new', element: <NewStudyPage /> },
+          { path: '/studies/:studyId', element: <StudyPage /> },
           { path: '/causal-sets', element: <CausalSetsPage /> },
           { path: '/causal-sets/import', element: <ImportCausalSetPage /> },
           { path: '/causal-sets/:causalSetId', element: <CausalSetPage /> },

@@ -1,0 +1,99 @@
+import type { CreateStudyRequestInput } from '@shared/studies';
+
+/** What the study form edits, as text where people type lists. */
+export interface StudyFormValues {
+  title: string;
+  properTime: string;
+  process: 'fixed' | 'poisson';
+  prng: 'arc4' | 'alea' | 'xor4096';
+  counts: string;
+  seedCount: string;
+  seedPrefix: string;
+  subregionKind: 'concentric' | 'tips';
+  fractions: string;
+  /** one sub-diamond per line: "t0,x0 t1,x1" */
+  tips: string;
+  untruncated: boolean;
+  doubleTruncated: boolean;
+  mass: string;
+}
+
+export const defaultStudyForm: StudyFormValues = {
+  title: '',
+  properTime: '2',
+  process: 'fixed',
+  prng: 'arc4',
+  counts: '200, 400, 800',
+  seedCount: '4',
+  seedPrefix: 'seed',
+  subregionKind: 'concentric',
+  fractions: '0.4, 0.5, 0.6',
+  tips: '-0.5,0 0.5,0',
+  untruncated: true,
+  doubleTruncated: true,
+  mass: '0',
+};
+
+/** "200, 400 800" → [200, 400, 800]; anything unreadable becomes NaN so the schema names the field. */
+export function parseNumberList(text: string): number[] {
+  return text
+    .split(/[\s,;]+/)
+    .filter((s) => s !== '')
+    .map((s) => Number(s));
+}
+
+/** Seeds "<prefix>-1" … "<prefix>-k": readable in exports, distinct, reproducible. */
+export function seedsFrom(prefix: string, count: number): string[] {
+  const base = prefix.trim() || 'seed';
+  return Array.from({ length: Math.max(0, Math.floor(count)) }, (_, k) => `${base}-${k + 1}`);
+}
+
+function parseTips(text: string) {
+  return text
+    .split('\n')
+    .map((line) => line.trim())
+    .filter((line) => line !== '')
+    .map((line) => {
+      const [past, future] = line.split(/\s+/);
+      const tip = (s: string | undefined) => {
+        const [t, x] = (s ?? '').split(',').map((v) => (v.trim() === '' ? Number.NaN : Number(v)));
+        return { t: t ?? Number.NaN, x: x ?? Number.NaN };
+      };
+      return { past: tip(past), future: tip(future) };
+    });
+}
+
+/** The POST body for the form's values (validated afterwards with the shared schema). */
+export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInput {
+  const rules: CreateStudyRequestInput['rules'] = [];
+  if (values.untruncated) rules.push({ truncation: { rule: 'none' }, doubleTruncation: false });
+  if (values.doubleTruncated) rules.push({ truncation: { rule: 'sqrtN' }, doubleTruncation: true });
+  return {
+    ...(values.title.trim() ? { title: values.title.trim() } : {}),
+    region: { kind: 'diamond2d', properTime: Number(values.properTime) },
+    process: values.process,
+    prng: values.prng,
+    counts: parseNumberList(values.counts),
+    seeds: seedsFrom(values.seedPrefix, Number(values.seedCount)),
+    subregions:
+      values.subregionKind === 'concentric'
+        ? { kind: 'concentric', fractions: parseNumberList(values.fractions) }
+        : { kind: 'tips', diamonds: parseTips(values.tips) },
+    rules,
+    mass: Number(values.mass),
+  };
+}
+
+/** Which form field a request path belongs to, for showing server and schema messages in place. */
+export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
+  if (path.startsWith('counts')) return 'counts';
+  if (path.startsWith('seeds')) return 'seedCount';
+  if (path.startsWith('subregions.fractions')) return 'fractions';
+  if (path.startsWith('subregions.diamonds')) return 'tips';
+  if (path.startsWith('subregions')) return 'subregionKind';
+  if (path.startsWith('rules')) return 'untruncated';
+  if (path.startsWith('region')) return 'properTime';
+  if (path.startsWith('mass')) return 'mass';
+  if (path.startsWith('title')) return 'title';
+  return 'form';
+}

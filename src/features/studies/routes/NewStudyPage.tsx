@@ -1,0 +1,143 @@
+import { useState, type FormEvent } from 'react';
+import { Link, useNavigate } from 'react-router';
+import { createStudyRequestSchema, STUDY_MAX_CELLS, STUDY_MIN_SUBREGION_ELEMENTS } from '@shared/studies';
+import { isApiError } from '../../../lib/apiClient';
+import { validate } from '../../../lib/forms';
+import { Button } from '../../../ui/Button';
+import { FormError, SelectField, TextField } from '../../../ui/Field';
+import { PageHeader, Section } from '../../../ui/Page';
+import { useCan } from '../../auth/api/me';
+import { Checkbox } from '../../runs/components/Checkbox';
+import { useCreateStudy } from '../api/studies';
+import { defaultStudyForm, formFieldOf, parseNumberList, studyRequestFrom, type StudyFormValues } from '../lib/studyForm';
+
+/** The study form: a grid of N × subregions × seeds × rules on a 2D causal diamond. */
+export function NewStudyPage() {
+  const [values, setValues] = useState<StudyFormValues>(defaultStudyForm);
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [formError, setFormError] = useState<string | null>(null);
+  const create = useCreateStudy();
+  const navigate = useNavigate();
+  const canCompute = useCan('compute');
+  const set = <K extends keyof StudyFormValues>(key: K, value: StudyFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));
+
+  const counts = parseNumberList(values.counts).filter(Number.isFinite);
+  const seedCount = Math.max(0, Math.floor(Number(values.seedCount) || 0));
+  const cells = counts.length * seedCount;
+
+  function place(issues: { path: string; message: string }[]) {
+    const next: Record<string, string> = {};
+    for (const issue of issues) {
+      const field = formFieldOf(issue.path);
+      if (!(field in next)) next[field] = issue.message;
+    }
+    setErrors(next);
+  }
+
+  async function submit(event: FormEvent) {
+    event.preventDefault();
+    setFormError(null);
+    const body = studyRequestFrom(values);
+    const checked = validate(createStudyRequestSchema, body);
+    if (!checked.ok) {
+      place(Object.entries(checked.errors).map(([path, message]) => ({ path, message })));
+      return;
+    }
+    setErrors({});
+    try {
+      const { id } = await create.mutateAsync(body);
+      navigate(`/studies/${id}`);
+    } catch (error) {
+      if (isApiError(error) && error.issues.length > 0) place(error.issues);
+      else if (isApiError(error) && error.code === 'too_large') setErrors({ counts: error.message });
+      setFormError(error instanceof Error ? error.message : 'The study could not be started.');
+    }
+  }
+
+  if (!canCompute) {
+    return (
+      <>
+        <PageHeader title="New study" />
+        <p className="text-sm text-ink-soft">Viewers read and export studies; ask an owner for the researcher role to start one.</p>
+      </>
+    );
+  }
+
+  return (
+    <>
+      <PageHeader
+        title="New study"
+        context="One sprinkling per N and seed serves every subregion and cut rule. Results arrive cell by cell."
+        actions={
+          <Link to="/studies" className="text-sm text-accent hover:underline">
+            All studies
+          </Link>
+        }
+      />
+      <form onSubmit={submit} noValidate className="flex max-w-3xl flex-col">
+        <Section title="Study">
+          <TextField label="Title" name="title" value={values.title} onChange={(e) => set('title', e.target.value)} error={errors.title} placeholder="e.g. area law in the 2D diamond" />
+        </Section>
+
+        <Section title="Causal sets">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint="2D causal diamond, tips at t = ±L/2" />
+            <SelectField label="Sprinkling" name="process" value={values.process} onChange={(e) => set('process', e.target.value as StudyFormValues['process'])}>
+              <option value="fixed">fixed N</option>
+              <option value="poisson">Poisson, mean N</option>
+            </SelectField>
+            <SelectField label="Generator" name="prng" value={values.prng} onChange={(e) => set('prng', e.target.value as StudyFormValues['prng'])}>
+              <option value="arc4">seedrandom arc4</option>
+              <option value="alea">seedrandom alea</option>
+              <option value="xor4096">seedrandom xor4096</option>
+            </SelectField>
+            <TextField label="N values" name="counts" className="font-mono" value={values.counts} onChange={(e) => set('counts', e.target.value)} error={errors.counts} hint="comma-separated, at least 20 each" />
+            <TextField label="Seeds per N" name="seedCount" inputMode="numeric" value={values.seedCount} onChange={(e) => set('seedCount', e.target.value)} error={errors.seedCount} hint="ensemble size; 3 or more give error bars" />
+            <TextField label="Seed prefix" name="seedPrefix" className="font-mono" value={values.seedPrefix} onChange={(e) => set('seedPrefix', e.target.value)} hint={`seeds ${values.seedPrefix || 'seed'}-1 … -${seedCount || 'k'}`} />
+          </div>
+          <p className="mt-3 text-xs text-ink-soft">
+            <span className="figures">{cells}</span> sprinkling{cells === 1 ? '' : 's'} (at most {STUDY_MAX_CELLS}). Each costs one dense eigendecomposition of N × N.
+          </p>
+        </Section>
+
+        <Section title="Subregions">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
+            <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
+              <option value="concentric">concentric, by ℓ/L</option>
+              <option value="tips">by tips</option>
+            </SelectField>
+            {values.subregionKind === 'concentric' ? (
+              <TextField label="ℓ/L values" name="fractions" className="font-mono" value={values.fractions} onChange={(e) => set('fractions', e.target.value)} error={errors.fractions} hint={`sub-diamonds sharing the centre, proper time ℓ = (ℓ/L)·L; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
+            ) : (
+              <div className="flex flex-col gap-1">
+                <label htmlFor="study-tips" className="text-xs tracking-wide text-ink-soft">
+                  Sub-diamonds, one per line: past tip t,x then future tip t,x
+                </label>
+                <textarea id="study-tips" name="tips" rows={3} value={values.tips} onChange={(e) => set('tips', e.target.value)} aria-invalid={Boolean(errors.tips)} className="border-0 border-b border-rule bg-transparent font-mono text-sm focus:border-accent focus:outline-none" />
+                {errors.tips && <p className="text-xs text-danger" role="alert">{errors.tips}</p>}
+              </div>
+            )}
+          </div>
+        </Section>
+
+        <Section title="Cut rules and field">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-[1fr_12rem]">
+            <div className="flex flex-col gap-3">
+              <Checkbox label="Untruncated" hint="only the numerical kernel of the restricted iΔ is dropped; expect a volume law" checked={values.untruncated} onChange={(v) => set('untruncated', v)} />
+              <Checkbox label="Double-truncated (√N/4π, then √n/4π)" hint="Sorkin–Yazdi 2018; expect S ≈ b ln √n + c with b near 1/3" checked={values.doubleTruncated} onChange={(v) => set('doubleTruncated', v)} />
+              {errors.untruncated && <p className="text-xs text-danger" role="alert">{errors.untruncated}</p>}
+            </div>
+            <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} hint="0 for the massless field" />
+          </div>
+        </Section>
+
+        <FormError message={formError} />
+        <div className="mt-2">
+          <Button type="submit" busy={create.isPending}>
+            Start study
+          </Button>
+        </div>
+      </form>
+    </>
+  );
+}

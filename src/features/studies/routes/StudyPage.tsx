@@ -1,0 +1,147 @@
+import { useState } from 'react';
+import { Link, useNavigate, useParams } from 'react-router';
+import type { StudyDetail, StudyExportFormat } from '@shared/studies';
+import { formatDateTime } from '../../../lib/format';
+import { Button } from '../../../ui/Button';
+import { PageHeader, Section } from '../../../ui/Page';
+import { ErrorState, Loading } from '../../../ui/States';
+import { useCan } from '../../auth/api/me';
+import { StatusLabel } from '../../runs/components/StatusLabel';
+import { downloadStudyExport, isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
+import { StudyCaution, StudyProgress } from '../components/StudyProgress';
+import { StudyPlots } from '../components/StudyPlots';
+import { AggregateTable, FitsTable } from '../components/StudyTables';
+
+const exportsList: { format: StudyExportFormat; label: string; note: string }[] = [
+  { format: 'csv', label: 'Entropies (CSV)', note: 'tidy: one row per N, seed, subregion and rule, 17 significant digits' },
+  { format: 'aggregates-csv', label: 'Aggregates (CSV)', note: 'mean n, mean S, deviation, standard error, seeds' },
+  { format: 'latex', label: 'Table (LaTeX)', note: 'booktabs, ⟨S⟩ ± SE per rule, fits, a caption with the parameters' },
+  { format: 'json', label: 'Provenance (JSON)', note: 'request, seeds, rules, engine version, backend, times, every number' },
+  { format: 'methods', label: 'Methods paragraph (text)', note: 'what was computed, with citations and cautions' },
+  { format: 'bibtex', label: 'References (BibTeX)', note: 'the published methods used' },
+];
+
+function Downloads({ study }: { study: StudyDetail }) {
+  const [busy, setBusy] = useState<string | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const ready = study.progress.done > 0;
+  async function get(format: StudyExportFormat) {
+    setBusy(format);
+    setError(null);
+    try {
+      await downloadStudyExport(study.id, format);
+    } catch (cause) {
+      setError(cause instanceof Error ? cause.message : String(cause));
+    } finally {
+      setBusy(null);
+    }
+  }
+  return (
+    <div className="flex flex-col gap-2" data-testid="study-downloads">
+      <ul className="flex flex-col text-sm">
+        {exportsList.map(({ format, label, note }) => (
+          <li key={format} className="flex items-baseline gap-4 border-b border-rule py-1.5">
+            <Button variant="quiet" busy={busy === format} disabled={!ready} onClick={() => get(format)}>
+              {label}
+            </Button>
+            <span className="text-xs text-ink-faint">{note}</span>
+          </li>
+        ))}
+      </ul>
+      <p className="text-xs text-ink-faint">
+        {ready ? 'Exports cover the sprinklings finished so far.' : 'Exports become available when the first sprinkling has finished.'} Each
+        figure has its own PNG and SVG download beneath it.
+      </p>
+      {error && (
+        <p role="alert" className="text-xs text-danger">
+          {error}
+        </p>
+      )}
+    </div>
+  );
+}
+
+export function StudyPage() {
+  const { studyId = '' } = useParams();
+  const study = useStudy(studyId);
+  const canCompute = useCan('compute');
+  const cancel = useCancelStudy(studyId);
+  const remove = useDeleteStudy(studyId);
+  const navigate = useNavigate();
+
+  if (study.isPending) return <Loading label="Loading the study" />;
+  if (study.isError) return <ErrorState error={study.error} onRetry={() => study.refetch()} />;
+  const s = study.data;
+  const subregionLabels = Object.fromEntries(s.subregions.map((x) => [x.key, x.label]));
+
+  return (
+    <>
+      <PageHeader
+        title={s.title || `Study ${s.id.slice(0, 8)}`}
+        context={
+          <span className="flex flex-wrap items-baseline gap-x-4">
+            <StatusLabel status={s.status} />
+            <span>
+              N ∈ <span className="figures">{'{'}{s.counts.join(', ')}{'}'}</span> × <span className="figures">{s.seedCount}</span> seeds ×{' '}
+              {s.subregions.length} subregion{s.subregions.length === 1 ? '' : 's'} × {s.rules.length} rule{s.rules.length === 1 ? '' : 's'}
+            </span>
+            <span>
+              {s.author.name}, {formatDateTime(s.createdAt)}
+            </span>
+          </span>
+        }
+        actions={
+          <>
+            <Link to="/studies" className="text-sm text-accent hover:underline">
+              All studies
+            </Link>
+            {canCompute && isStudyActive(s.status) && (
+              <Button variant="quiet" busy={cancel.isPending} onClick={() => cancel.mutate()}>
+                Cancel
+              </Button>
+            )}
+            {canCompute && (
+              <Button
+                variant="danger"
+                busy={remove.isPending}
+                onClick={async () => {
+                  if (!window.confirm('Delete this study and every result in it?')) return;
+                  await remove.mutateAsync();
+                  navigate('/studies');
+                }}
+              >
+                Delete
+              </Button>
+            )}
+          </>
+        }
+      />
+      <Section title="Progress">
+        <StudyProgress study={s} />
+      </Section>
+      <div className="mb-10">
+        <StudyCaution />
+      </div>
+      {s.aggregates.length > 0 && (
+        <>
+          <Section title="Ensemble means" aside="per N, subregion and rule">
+            <AggregateTable aggregates={s.aggregates} rules={s.rules} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
+          </Section>
+          <Section title="Fits">
+            {s.fits.length > 0 ? (
+              <FitsTable fits={s.fits} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
+            ) : (
+              <p className="text-sm text-ink-soft">Fits need at least two different subregion sizes per rule.</p>
+            )}
+          </Section>
+          <Section title="Figures">
+            <StudyPlots study={s} />
+          </Section>
+        </>
+      )}
+      <Section title="Downloads">
+        <Downloads study={s} />
+      </Section>
+    </>
+  );
+}
