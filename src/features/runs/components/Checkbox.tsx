@@ -6,7 +6,9 @@ export function Checkbox({
   onChange,
   hint,
   name,
+  disabled = false,
 }: {
+  disabled?: boolean;
   label: ReactNode;
   checked: boolean;
   onChange(checked: boolean): void;
@@ -14,12 +16,13 @@ export function Checkbox({
   name?: string;
 }) {
   return (
-    <label className="flex cursor-pointer items-start gap-2.5 text-sm">
+    <label className={`flex items-start gap-2.5 text-sm ${disabled ? 'cursor-not-allowed opacity-40' : 'cursor-pointer'}`}>
       <input
         type="checkbox"
         name={name}
-        className="mt-0.5 size-4 cursor-pointer accent-accent"
+        className="mt-0.5 size-4 cursor-[inherit] accent-accent"
         checked={checked}
+        disabled={disabled}
         onChange={(e) => onChange(e.target.checked)}
       />
       <span>

@@ -90,7 +90,8 @@ export function ComparePage() {
         )}
       </Section>
       <Section title="Runs">
-        <table className="w-full border-collapse text-sm" aria-label="Compared runs">
+        <div className="overflow-x-auto">
+          <table className="w-full border-collapse text-sm" aria-label="Compared runs">
           <thead>
             <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
               <th className="py-2 pr-4 font-normal">Run</th>
@@ -128,6 +129,7 @@ export function ComparePage() {
             ))}
           </tbody>
         </table>
+          </div>
       </Section>
     </>
   );

@@ -140,6 +140,7 @@ export function RunsPage() {
         </Empty>
       ) : (
         <>
+          <div className="overflow-x-auto">
           <table className="w-full border-collapse text-sm" aria-label="Runs">
             <thead>
               <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
@@ -162,6 +163,8 @@ export function RunsPage() {
                   <td className="py-2.5">
                     <Checkbox
                       label={<span className="sr-only">Compare {runLabel(run)}</span>}
+                      // Only finished runs have a spectrum to overlay.
+                      disabled={run.status !== 'done'}
                       checked={selected.includes(run.id)}
                       onChange={(on) => toggle(run.id, on)}
                     />
@@ -189,6 +192,7 @@ export function RunsPage() {
               ))}
             </tbody>
           </table>
+          </div>
           <div className="mt-4 flex items-center justify-between text-sm text-ink-soft">
             <span className="figures">
               {first}–{last} of {total}
