@@ -62,14 +62,8 @@ function fail(code: FileErrorCode, row: number | null, column: number | null, wh
   throw new CausalSetFileError(code, list.items);
 }
 
-interface Line {
-  /** line number in the file, from 1 */
-  row: number;
-  cells: string[];
-}
-
-/** Decodes the upload and splits it into non-blank, non-comment lines of trimmed cells. */
-function contentLines(bytes: Uint8Array | string): Line[] {
+/** Decodes the upload as UTF-8 text (a byte-order mark is dropped); empty, binary or non-UTF-8 files fail. */
+function decodeText(bytes: Uint8Array | string): string {
   let text: string;
   if (typeof bytes === 'string') {
     text = bytes;
@@ -82,16 +76,50 @@ function contentLines(bytes: Uint8Array | string): Line[] {
       fail('invalid_file', null, null, 'the file is not valid UTF-8 text; upload a CSV file');
     }
   }
-  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-  const lines: Line[] = [];
-  const raw = text.split(/\r\n|\n|\r/);
-  for (let k = 0; k < raw.length; k++) {
-    const line = raw[k].trim();
-    if (line === '' || line.startsWith('#')) continue;
-    lines.push({ row: k + 1, cells: line.split(',').map(unquote) });
+  return text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+}
+
+/**
+ * Calls `visit(row, line)` for every line that is neither blank nor a `#` note, with the line trimmed
+ * and its number in the file; stops early when `visit` returns false. Walks the text with indexOf
+ * instead of splitting it, so a relation list of millions of rows is not copied into an array first.
+ * Returns the number of lines visited.
+ */
+function forEachContentLine(text: string, visit: (row: number, line: string) => boolean | void): number {
+  let row = 0;
+  let visited = 0;
+  let start = 0;
+  while (start <= text.length) {
+    let end = text.indexOf('\n', start);
+    if (end === -1) end = text.length;
+    row += 1;
+    let line = text.slice(start, end);
+    // a lone \r ends a line too (old Mac files); \r\n leaves a \r that trim() removes
+    const cr = line.indexOf('\r');
+    if (cr !== -1 && cr < line.length - 1) {
+      const parts = line.split('\r');
+      for (let k = 0; k < parts.length; k++) {
+        const piece = parts[k].trim();
+        if (k > 0) row += 1;
+        if (piece === '' || piece.startsWith('#')) continue;
+        visited += 1;
+        if (visit(row, piece) === false) return visited;
+      }
+    } else {
+      line = line.trim();
+      if (line !== '' && !line.startsWith('#')) {
+        visited += 1;
+        if (visit(row, line) === false) return visited;
+      }
+    }
+    start = end + 1;
   }
-  if (lines.length === 0) fail('empty_file', null, null, 'the file is empty (no rows besides blank lines and # comments)');
-  return lines;
+  if (visited === 0) fail('empty_file', null, null, 'the file is empty (no rows besides blank lines and # comments)');
+  return visited;
+}
+
+function splitCells(line: string): string[] {
+  return line.split(',').map(unquote);
 }
 
 function unquote(cell: string): string {
@@ -145,41 +173,51 @@ export function parseCoordinatesCsv(
   bytes: Uint8Array | string,
   options: { region?: RegionSpec; dimension?: 2 | 4; limit: SizeLimit },
 ): ParsedCoordinates {
-  const lines = contentLines(bytes);
-  const [head, ...rows] = lines;
-  const names = head.cells.map((c) => c.toLowerCase());
+  const text = decodeText(bytes);
+  let firstLine: { row: number; line: string } | null = null;
+  const total = forEachContentLine(text, (row, line) => {
+    firstLine ??= { row, line };
+  });
+  const { row: headerRow, line: headerLine } = firstLine as unknown as { row: number; line: string };
+  const header = { row: headerRow, cells: splitCells(headerLine) };
+  const names = header.cells.map((c) => c.toLowerCase());
   const dimension = names.length === 2 && names.join(',') === 't,x' ? 2 : names.length === 4 && names.join(',') === 't,x,y,z' ? 4 : null;
   if (dimension === null) {
-    const looksNumeric = head.cells.every((c) => typeof readNumber(c) === 'number');
+    const looksNumeric = header.cells.every((c) => typeof readNumber(c) === 'number');
     fail(
       'invalid_file',
-      head.row,
+      header.row,
       null,
       looksNumeric
         ? `the header is missing: the first row must name the columns, t,x for 2D or t,x,y,z for 4D (it holds numbers)`
-        : `wrong header "${head.cells.join(',')}": the columns must be t,x for 2D or t,x,y,z for 4D, in that order`,
+        : `wrong header "${header.cells.join(',')}": the columns must be t,x for 2D or t,x,y,z for 4D, in that order`,
     );
   }
   if (options.dimension !== undefined && options.dimension !== dimension) {
-    fail('invalid_file', head.row, null, `the header t,${headers[dimension].slice(1).join(',')} is ${dimension}D but the form says ${options.dimension}D`);
+    fail('invalid_file', header.row, null, `the header t,${headers[dimension].slice(1).join(',')} is ${dimension}D but the form says ${options.dimension}D`);
   }
-  if (rows.length === 0) fail('empty_file', null, null, 'the file has a header but no elements');
-  checkElementCount(rows.length, options.limit.maxElements, options.limit.reason);
+  const n = total - 1;
+  if (n === 0) fail('empty_file', null, null, 'the file has a header but no elements');
+  checkElementCount(n, options.limit.maxElements, options.limit.reason);
 
   const region = options.region ? makeRegion(options.region) : null;
   if (region && region.dimension !== dimension) {
-    fail('invalid_file', head.row, null, `the header is ${dimension}D but the region ${options.region!.kind} is ${region.dimension}D`);
+    fail('invalid_file', header.row, null, `the header is ${dimension}D but the region ${options.region!.kind} is ${region.dimension}D`);
   }
   const columns = headers[dimension];
-  const points = new Float64Array(rows.length * dimension);
+  const points = new Float64Array(n * dimension);
   const problems = new ProblemList();
   const seen = new Map<string, number>();
   const event = new Float64Array(dimension);
-  for (let e = 0; e < rows.length && !problems.full; e++) {
-    const { row, cells } = rows[e];
+  let next = -1;
+  forEachContentLine(text, (row, line) => {
+    const e = next++;
+    if (e < 0) return true; // the header
+    if (problems.full) return false;
+    const cells = splitCells(line);
     if (cells.length !== dimension) {
       problems.add(row, null, `${cells.length} column${cells.length === 1 ? '' : 's'}, but the header ${columns.join(',')} has ${dimension}`);
-      continue;
+      return true;
     }
     let rowOk = true;
     for (let c = 0; c < dimension; c++) {
@@ -191,21 +229,22 @@ export function parseCoordinatesCsv(
         event[c] = value;
       }
     }
-    if (!rowOk) continue;
+    if (!rowOk) return true;
     points.set(event, e * dimension);
     const key = Array.from(event).join(',');
     const earlier = seen.get(key);
     if (earlier !== undefined) {
       problems.add(row, null, `duplicate point: (${formatEvent(columns, event)}) already appears in row ${earlier}`);
-      continue;
+      return true;
     }
     seen.set(key, row);
     if (region && !region.contains(event)) {
       problems.add(row, null, `the point (${formatEvent(columns, event)}) lies outside the stated region (${options.region!.kind})`);
     }
-  }
+    return true;
+  });
   problems.throwIfAny();
-  return { dimension, columns, n: rows.length, points };
+  return { dimension, columns, n, points };
 }
 
 function formatEvent(columns: string[], event: ArrayLike<number>): string {
@@ -227,25 +266,39 @@ export interface ParsedRelations {
 export function parseRelationList(bytes: Uint8Array | string, options: { count: number; limit: SizeLimit }): ParsedRelations {
   const { count } = options;
   checkElementCount(count, options.limit.maxElements, options.limit.reason);
-  const lines = contentLines(bytes);
-  let start = 0;
-  const first = lines[0];
-  if (first.cells.map((c) => c.toLowerCase()).join(',') === 'i,j') {
-    start = 1;
-  } else if (first.cells.some((c) => !/^[+-]?\d/.test(c) && !nonFinitePattern.test(c))) {
-    fail('invalid_file', first.row, null, `wrong header "${first.cells.join(',')}": a relation list has the header i,j or none`);
-  }
-  const pairs = lines.length - start;
-  const from = new Int32Array(pairs);
-  const to = new Int32Array(pairs);
-  const rowOf = new Int32Array(pairs);
+  const text = decodeText(bytes);
+  const from: number[] = [];
+  const to: number[] = [];
+  const rowOf: number[] = [];
   const problems = new ProblemList();
-  for (let p = 0; p < pairs && !problems.full; p++) {
-    const { row, cells } = lines[start + p];
-    rowOf[p] = row;
+  const plainPair = /^(\d{1,9}),(\d{1,9})$/;
+  let first = true;
+  forEachContentLine(text, (row, line) => {
+    if (first) {
+      first = false;
+      const cells = splitCells(line);
+      if (cells.map((c) => c.toLowerCase()).join(',') === 'i,j') return true;
+      if (cells.some((c) => !/^[+-]?\d/.test(c) && !nonFinitePattern.test(c))) {
+        fail('invalid_file', row, null, `wrong header "${cells.join(',')}": a relation list has the header i,j or none`);
+      }
+    }
+    if (problems.full) return false;
+    // the common row, digits,digits, without splitting it
+    const plain = plainPair.exec(line);
+    if (plain) {
+      const i = Number(plain[1]);
+      const j = Number(plain[2]);
+      if (i < count && j < count && i !== j) {
+        from.push(i);
+        to.push(j);
+        rowOf.push(row);
+        return true;
+      }
+    }
+    const cells = splitCells(line);
     if (cells.length !== 2) {
       problems.add(row, null, `${cells.length} column${cells.length === 1 ? '' : 's'}, but a relation row has 2 (i,j: i precedes j)`);
-      continue;
+      return true;
     }
     const ends: number[] = [];
     for (let c = 0; c < 2; c++) {
@@ -263,23 +316,25 @@ export function parseRelationList(bytes: Uint8Array | string, options: { count: 
       else what = `"${cell}" is not a number`;
       if (what) problems.add(row, c + 1, `(${name}) ${what}`);
     }
-    if (ends.length !== 2) continue;
+    if (ends.length !== 2) return true;
     if (ends[0] === ends[1]) {
       problems.add(row, null, `element ${ends[0]} cannot precede itself (a causal order is irreflexive)`);
-      continue;
+      return true;
     }
-    from[p] = ends[0];
-    to[p] = ends[1];
-  }
+    from.push(ends[0]);
+    to.push(ends[1]);
+    rowOf.push(row);
+    return true;
+  });
   problems.throwIfAny();
-  return { n: count, pairsListed: pairs, causal: transitiveClosure(count, from, to, rowOf) };
+  return { n: count, pairsListed: from.length, causal: transitiveClosure(count, Int32Array.from(from), Int32Array.from(to), Int32Array.from(rowOf)) };
 }
 
 /**
  * Transitive closure of the pairs from[p] ≺ to[p] on `count` elements, bit-packed. A topological order
  * comes first (Kahn 1962); if some elements never become free the pairs contain a cycle, reported with
  * the rows it is made of. Then, in reverse topological order, each element's future is the union of
- * its successors and their futures — one 32-bit word at a time.
+ * its successors and their futures — one 32-bit word at a time, skipping successors already inside.
  */
 export function transitiveClosure(count: number, from: Int32Array, to: Int32Array, rowOf?: Int32Array): BitRelation {
   const pairs = from.length;
@@ -305,6 +360,22 @@ export function transitiveClosure(count: number, from: Int32Array, to: Int32Arra
   }
   if (tail < count) throw cycleError(count, from, to, rowOf, indegree);
 
+  // Successors again, now each element's in topological order: the earliest successor has the largest
+  // future, and a later one already inside the row adds nothing (its row is closed and contained), so
+  // only about the links of each element cost a row union.
+  const rank = new Int32Array(count);
+  for (let q = 0; q < count; q++) rank[topo[q]] = q;
+  const byRankStart = new Int32Array(count + 1);
+  for (let p = 0; p < pairs; p++) byRankStart[rank[to[p]] + 1] += 1;
+  for (let q = 0; q < count; q++) byRankStart[q + 1] += byRankStart[q];
+  const pairsByTargetRank = new Int32Array(pairs);
+  for (let p = 0; p < pairs; p++) pairsByTargetRank[byRankStart[rank[to[p]]]++] = p;
+  fill.set(outStart.subarray(0, count));
+  for (let k = 0; k < pairs; k++) {
+    const p = pairsByTargetRank[k];
+    outPair[fill[from[p]]++] = p;
+  }
+
   const closed = new BitRelation(count);
   const w = closed.wordsPerRow;
   const words = closed.words;
@@ -313,9 +384,11 @@ export function transitiveClosure(count: number, from: Int32Array, to: Int32Arra
     const a = u * w;
     for (let k = outStart[u]; k < outStart[u + 1]; k++) {
       const v = to[outPair[k]];
+      const bit = 1 << (v & 31);
+      if (words[a + (v >>> 5)] & bit) continue;
       const b = v * w;
       for (let x = 0; x < w; x++) words[a + x] |= words[b + x];
-      words[a + (v >>> 5)] |= 1 << (v & 31);
+      words[a + (v >>> 5)] |= bit;
     }
   }
   return closed;
