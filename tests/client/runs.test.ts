@@ -12,6 +12,7 @@ import {
   defaultRunForm,
   denseLimitN,
   denseLimits,
+  initialReanalyseValues,
   insideFutureLightCone,
   reanalyseRequestFromForm,
   runRequestFromForm,
@@ -130,6 +131,20 @@ describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
       ok: true,
       request: { mass: 0, truncation: { rule: 'sqrtN' }, subregion: null, doubleTruncation: false },
     });
+  });
+
+  it('starts from the parent run’s own settings, so an untouched form reproduces them', () => {
+    const parent = {
+      mass: 0.5,
+      truncation: { rule: 'modes', count: 40 },
+      subregion: { kind: 'diamond', past: { t: -0.25, x: 0.1 }, future: { t: 0.75, x: 0.1 } },
+      doubleTruncation: true,
+    };
+    const values = initialReanalyseValues(parent);
+    expect(values.truncation).toEqual({ kind: 'modes', value: '40' });
+    expect(values.withSubregion).toBe(true);
+    expect(reanalyseRequestFromForm(values, 2)).toEqual({ ok: true, request: parent });
+    expect(initialReanalyseValues(null).truncation).toEqual({ kind: 'sqrtN', value: '' });
   });
 
   it('checks the light cone here too', () => {

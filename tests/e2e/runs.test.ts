@@ -112,6 +112,28 @@ describe('a vacuum run in the browser', () => {
     await row.waitFor();
     await expect(row.textContent()).resolves.toMatch(/Browser test diamond.*Done.*2D causal diamond.*300.*√N\/4π/s);
     await screenshot(page, 'runs-04-table');
+
+    // A second, smaller run without a subregion, to overlay on the first.
+    await page.getByRole('link', { name: 'New run' }).click();
+    await page.getByLabel('N (elements)').fill('150');
+    await page.getByLabel('Seed').fill('browser-test-2');
+    await page.getByLabel('Title').fill('Browser test N=150');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.waitForURL((url) => /\/runs\/[0-9a-f-]{36}$/.test(url.pathname) && !url.pathname.endsWith(runId));
+    const secondId = page.url().split('/').pop()!;
+    await page.getByRole('figure', { name: 'Spectrum' }).waitFor({ timeout: 90_000 });
+    await page.getByRole('link', { name: 'Runs', exact: true }).click();
+    await page.getByTestId(`run-${secondId}`).waitFor();
+    await page.getByRole('checkbox', { name: 'Compare Browser test diamond' }).check();
+    await page.getByRole('checkbox', { name: 'Compare Browser test N=150' }).check();
+    await page.getByRole('button', { name: /Compare/ }).click();
+    await page.waitForURL(`**/runs/compare?ids=${runId},${secondId}`);
+    const overlay = page.getByRole('figure', { name: 'Compared spectra' });
+    await overlay.locator('.scatterlayer .trace').first().waitFor();
+    // two runs and, normalised by N, one shared continuum curve
+    await expect(overlay.locator('.scatterlayer .trace').count()).resolves.toBe(3);
+    await expect(overlay.locator('.legend').textContent()).resolves.toMatch(/Browser test diamond \(N = 300\).*Browser test N=150 \(N = 150\).*continuum 1\/\(4x_k\)/s);
+    await screenshot(page, 'runs-05-compare');
     expect(pageErrors).toEqual([]);
     await page.context().close();
   });
@@ -126,7 +148,7 @@ describe('a vacuum run in the browser', () => {
     await page.getByRole('figure', { name: 'Spectrum' }).waitFor();
     await expect(page.getByRole('button', { name: /Delete|Cancel run|Re-analyse/ }).count()).resolves.toBe(0);
     await expect(page.getByRole('button', { name: 'Spectrum (CSV)' }).isVisible()).resolves.toBe(true);
-    await screenshot(page, 'runs-05-viewer');
+    await screenshot(page, 'runs-06-viewer');
 
     await page.goto(`${running.baseUrl}/runs/new`);
     await page.getByText(/Viewers read and export runs but do not start them/).waitFor();

@@ -1,45 +1,15 @@
 import { useState, type FormEvent } from 'react';
 import { useNavigate } from 'react-router';
 import type { RunDetail } from '@shared/runs';
-import type { TruncationRule } from '@shared/vacuum';
 import { isApiError } from '../../../lib/apiClient';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, TextField } from '../../../ui/Field';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
-import { defaultTruncation, truncationToForm } from '../../cutRules/lib/truncationForm';
 import { useReanalyseRun } from '../api/runs';
-import { defaultRunForm, reanalyseRequestFromForm, serverFieldErrors, type ReanalyseFormValues, type TipValues } from '../lib/runForm';
+import { initialReanalyseValues, reanalyseRequestFromForm, serverFieldErrors, type ReanalyseFormValues } from '../lib/runForm';
 import { SubregionFields } from './SubregionFields';
-
-interface StoredSettings {
-  mass?: number;
-  truncation?: TruncationRule;
-  doubleTruncation?: boolean;
-  subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
-}
-
-function tipValues(tip: Record<string, number> | undefined, fallback: TipValues): TipValues {
-  if (!tip) return fallback;
-  return { t: String(tip.t ?? ''), x: String(tip.x ?? ''), y: String(tip.y ?? '0'), z: String(tip.z ?? '0') };
-}
-
-/** Starts from the run's own settings, so only what is changed differs in the new run. */
-export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
-  const stored = (request ?? {}) as StoredSettings;
-  const defaults = defaultRunForm('');
-  const diamond = stored.subregion?.kind === 'diamond' ? stored.subregion : null;
-  return {
-    title: '',
-    mass: String(stored.mass ?? 0),
-    truncation: stored.truncation ? truncationToForm(stored.truncation) : { ...defaultTruncation },
-    withSubregion: diamond !== null,
-    past: tipValues(diamond?.past, defaults.past),
-    future: tipValues(diamond?.future, defaults.future),
-    doubleTruncation: stored.doubleTruncation ?? false,
-  };
-}
 
 export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2 | 4 }) {
   const [values, setValues] = useState(() => initialReanalyseValues(run.request));

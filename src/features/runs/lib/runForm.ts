@@ -1,5 +1,5 @@
 import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
-import type { PrngName, RegionKind } from '@shared/vacuum';
+import type { PrngName, RegionKind, TruncationRule } from '@shared/vacuum';
 import type { z } from 'zod';
 import type { FieldErrors } from '../../../lib/forms';
 import {
@@ -7,6 +7,7 @@ import {
   parseNumber,
   truncationFieldMessages,
   truncationFromForm,
+  truncationToForm,
   type TruncationFormValues,
 } from '../../cutRules/lib/truncationForm';
 
@@ -272,6 +273,34 @@ export interface ReanalyseFormValues {
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+}
+
+interface StoredSettings {
+  mass?: number;
+  truncation?: TruncationRule;
+  doubleTruncation?: boolean;
+  subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
+}
+
+function tipValues(tip: Record<string, number> | undefined, fallback: TipValues): TipValues {
+  if (!tip) return fallback;
+  return { t: String(tip.t ?? ''), x: String(tip.x ?? ''), y: String(tip.y ?? '0'), z: String(tip.z ?? '0') };
+}
+
+/** Starts from the run's own settings, so only what is changed differs in the new run. */
+export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
+  const stored = (request ?? {}) as StoredSettings;
+  const defaults = defaultRunForm('');
+  const diamond = stored.subregion?.kind === 'diamond' ? stored.subregion : null;
+  return {
+    title: '',
+    mass: String(stored.mass ?? 0),
+    truncation: stored.truncation ? truncationToForm(stored.truncation) : { ...defaultTruncation },
+    withSubregion: diamond !== null,
+    past: tipValues(diamond?.past, defaults.past),
+    future: tipValues(diamond?.future, defaults.future),
+    doubleTruncation: stored.doubleTruncation ?? false,
+  };
 }
 
 export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 4): Checked<ReanalyseRunRequest> {
