@@ -39,7 +39,7 @@ export function StudyPlots({ study }: { study: StudyDetail }) {
           fileName={`tacet-study-${id8}-S-vs-ln-sqrt-n`}
           data={logData}
           layout={{ xaxis: axisTitle('ln √n'), yaxis: axisTitle('S') }}
-          caption={`${study.ruleLabels[logRule] ?? logRule}: ensemble means with standard errors; dashed: weighted fit over all points.`}
+          caption={`${study.ruleLabels[logRule] ?? logRule}: ensemble means with standard errors; dashed: weighted fits across N, one per subregion.`}
         />
       </div>
       <div className="flex flex-col gap-2">

@@ -15,7 +15,8 @@ export interface SeriesOptions {
 
 /**
  * Ensemble means of one rule, one series per subregion, with standard-error bars, plus the fitted
- * line over all points of the rule in the accent colour (dashed for the fit across everything).
+ * lines as dashed accent lines: one per subregion across N, or one through all points when there is
+ * a single subregion.
  */
 export function scalingTraces({ aggregates, fits, rule, subregionLabels, model }: SeriesOptions): Record<string, unknown>[] {
   const rows = aggregates.filter((a) => a.rule === rule);
@@ -35,24 +36,29 @@ export function scalingTraces({ aggregates, fits, rule, subregionLabels, model }
       customdata: points.map((p) => p.N),
     };
   });
-  const fit = fits.find((f) => f.rule === rule && f.model === model && f.subregion === null);
-  if (fit && rows.length > 1) {
-    const xs = rows.map(x);
+  // With several subregions the line per subregion (across N, at fixed ℓ/L) is the ultraviolet
+  // scaling; one line through every point would mix in how S depends on ℓ/L.
+  const lines = subregions.length > 1 ? subregions.map((sub) => ({ sub, points: rows.filter((r) => r.subregion === sub) })) : [{ sub: null, points: rows }];
+  const slopeName = model === 'log' ? 'b' : 'a';
+  lines.forEach(({ sub, points }, k) => {
+    const fit = fits.find((f) => f.rule === rule && f.model === model && f.subregion === sub);
+    if (!fit || points.length < 2) return;
+    const xs = points.map(x);
     const lo = Math.min(...xs);
     const hi = Math.max(...xs);
     const pad = 0.04 * (hi - lo || 1);
     const ends = [lo - pad, hi + pad];
-    const slopeName = model === 'log' ? 'b' : 'a';
+    const where = sub === null ? '' : ` (${subregionLabels[sub] ?? sub})`;
     traces.push({
       type: 'scatter',
       mode: 'lines',
-      name: `fit: ${slopeName} = ${fit.slope.toPrecision(3)}${fit.slopeError !== null ? ` ± ${fit.slopeError.toPrecision(2)}` : ''}`,
+      name: `fit${where}: ${slopeName} = ${fit.slope.toPrecision(3)}${fit.slopeError !== null ? ` ± ${fit.slopeError.toPrecision(2)}` : ''}`,
       x: ends,
       y: ends.map((v) => fit.slope * v + fit.intercept),
-      line: { color: plotPalette.cut, width: 1.5, dash: 'dash' },
+      line: { color: plotPalette.cut, width: 1.5, dash: ['dash', 'dot', 'dashdot', 'longdash'][k % 4] },
       hoverinfo: 'skip',
     });
-  }
+  });
   return traces;
 }
 
