@@ -10,7 +10,7 @@ export default defineConfig({
   plugins: [react(), tailwindcss()],
   resolve: { alias: { '@shared': sharedDir } },
   build: { outDir: 'dist/client', emptyOutDir: true, chunkSizeWarningLimit: 6000 },
-  server: { proxy: { '/api': `http://127.0.0.1:${apiPort}` } },
+  server: { proxy: { '/api/': `http://127.0.0.1:${apiPort}` } },
   test: {
     include: ['tests/**/*.test.ts'],
     environment: 'node',

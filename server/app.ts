@@ -2,8 +2,14 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
+import helmet from 'helmet';
+import { sessionCookieName } from '@shared/auth';
 import type { AppDeps } from './api/context';
+import { issueCsrfCookie } from './api/middleware/csrf';
 import { apiNotFound, errorHandler } from './api/middleware/errors';
+import { requestLogger } from './api/middleware/requestLog';
+import { apiRoutes, buildOpenApiDocument } from './api/openapi';
+import { apiTokenRoutes } from './api/routes/apiTokens';
 import { authRoutes } from './api/routes/auth';
 import { causalSetRoutes } from './api/routes/causalSets';
 import { cutRuleRoutes } from './api/routes/cutRules';
@@ -13,6 +19,7 @@ import { outboxRoutes } from './api/routes/outbox';
 import { runRoutes } from './api/routes/runs';
 import { studyRoutes } from './api/routes/studies';
 import { teamRoutes } from './api/routes/team';
+import { createApiTokenService } from './api/services/api-token-service';
 import { createAuthService } from './api/services/auth-service';
 import { createCausalSetService } from './api/services/causal-set-service';
 import { createCutRuleService } from './api/services/cut-rule-service';
@@ -37,20 +44,52 @@ export function createApp(deps: AppDeps): Express {
   const cutRules = createCutRuleService({ dataSource });
   const causalSets = createCausalSetService({ dataSource });
   const health = createHealthService({ dataSource, redis, computeQueue, version: config.version });
+  const apiTokens = createApiTokenService({ dataSource });
+  const openApiDocument = buildOpenApiDocument({
+    version: config.version,
+    routes: apiRoutes.filter((route) => config.mode === 'development' || !route.developmentOnly),
+  });
 
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // Everything the client needs is served from here (no CDN). Plotly sets inline styles on its SVG
+  // and exports images through data:/blob: URLs; nothing needs inline scripts or eval.
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          workerSrc: ["'self'", 'blob:'],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          upgradeInsecureRequests: config.appUrl.startsWith('https:') ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.appUrl.startsWith('https:'),
+    }),
+  );
 
   const api = express.Router();
+  if (deps.requestLog) api.use(requestLogger(deps.requestLog));
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
+  api.use(issueCsrfCookie({ secure: config.appUrl.startsWith('https:'), sessionCookieName }));
   api.use((_req, res, next) => {
     res.set('Cache-Control', 'no-store');
     next();
   });
   api.use(healthRoutes({ health }));
+  api.get('/openapi.json', (_req, res) => res.json(openApiDocument));
   api.use(authRoutes({ config, auth }));
+  api.use(apiTokenRoutes({ auth, apiTokens }));
   api.use(teamRoutes({ auth, teams, invitations }));
   api.use(invitationRoutes({ auth, invitations }));
   api.use(runRoutes({ auth, teams, runs }));

@@ -12,7 +12,8 @@ await dataSource.initialize();
 const redis = createRedisConnection(config.redisUrl, 'client');
 const computeQueue = createComputeQueue(redis, config.queuePrefix);
 const clientDir = join(projectRoot, 'dist', 'client');
-const app = createApp({ config, dataSource, mailer: createMailer(dataSource), redis, computeQueue, clientDir });
+const requestLog = process.env.TACET_REQUEST_LOG === '1' ? (line: string) => console.log(line) : undefined;
+const app = createApp({ config, dataSource, mailer: createMailer(dataSource), redis, computeQueue, clientDir, requestLog });
 
 const server = app.listen(config.port, '127.0.0.1', () => {
   console.log(`[api] listening on http://127.0.0.1:${config.port} (${config.mode})`);

@@ -16,11 +16,16 @@ export interface AppDeps {
   computeQueue: Queue;
   /** built client (dist/client) to serve with an SPA fallback; omitted in API tests */
   clientDir?: string;
+  /** receives one redacted line per API request (server/main.ts passes console.log when TACET_REQUEST_LOG=1) */
+  requestLog?: (line: string) => void;
 }
 
 export interface AuthContext {
   user: UserRow;
-  sessionId: string;
+  /** the session behind a sign-in token; null when a personal API token was sent */
+  sessionId: string | null;
+  /** set when a personal API token was sent: the request acts only in that token's team */
+  apiToken?: { id: string; teamId: string };
 }
 
 export interface TeamContext {

@@ -3,10 +3,11 @@ import { causalSetEntities } from './causal-set-entities';
 import { platformEntities } from './entities';
 import { runEntities } from './run-entities';
 import { studyEntities } from './study-entities';
+import { tokenEntities } from './token-entities';
 import { migrations } from './migrations/index';
 
 /** Every EntitySchema the API and the worker use; later features append theirs here. */
-const allEntities = [...platformEntities, ...runEntities, ...causalSetEntities, ...studyEntities];
+const allEntities = [...platformEntities, ...runEntities, ...causalSetEntities, ...studyEntities, ...tokenEntities];
 
 export function createDataSource(databaseUrl: string): DataSource {
   return new DataSource({

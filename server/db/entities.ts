@@ -82,7 +82,7 @@ export const UserEntity = new EntitySchema<UserRow>({
     email: { type: 'text', unique: true },
     name: { type: 'text' },
     passwordHash: { type: 'text', name: 'password_hash' },
-    notifyOnRunDone: { type: 'boolean', name: 'notify_on_run_done', default: false },
+    notifyOnRunDone: { type: 'boolean', name: 'notify_on_run_done', default: true },
     createdAt,
   },
 });

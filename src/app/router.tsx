@@ -1,5 +1,6 @@
 import { createBrowserRouter, Navigate } from 'react-router';
 import { AccountPage } from '../features/account/routes/AccountPage';
+import { ApiDocsPage } from '../features/apiDocs/routes/ApiDocsPage';
 import { CausalSetPage } from '../features/causalSets/routes/CausalSetPage';
 import { CausalSetsPage } from '../features/causalSets/routes/CausalSetsPage';
 import { ImportCausalSetPage } from '../features/causalSets/routes/ImportCausalSetPage';
@@ -29,6 +30,8 @@ export const router = createBrowserRouter([
   { path: '/reset-password/:token', element: <ResetConfirmPage /> },
   // Public: the preview is shown before signing in or up.
   { path: '/invite/:token', element: <AcceptInvitationPage /> },
+  // Public, like /api/openapi.json it reads.
+  { path: '/api-docs', element: <ApiDocsPage /> },
   {
     element: <RequireAuth />,
     children: [

@@ -1,5 +1,5 @@
 import { apiErrorSchema } from '@shared/api';
-import { teamHeaderName } from '@shared/auth';
+import { csrfCookieName, csrfHeaderName, teamHeaderName } from '@shared/auth';
 import { getCurrentTeamId } from './currentTeam';
 
 export interface FieldIssue {
@@ -37,6 +37,17 @@ export function isApiError(error: unknown, status?: number): error is ApiError {
 
 type Method = 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
 
+/**
+ * The CSRF header for a write: the value of the readable CSRF cookie the server set at sign-in
+ * (double submit; the server refuses cookie-authenticated writes without it). Empty when there is none.
+ */
+export function csrfHeaders(): Record<string, string> {
+  if (typeof document === 'undefined') return {};
+  const prefix = `${csrfCookieName}=`;
+  const entry = document.cookie.split(';').map((part) => part.trim()).find((part) => part.startsWith(prefix));
+  return entry ? { [csrfHeaderName]: decodeURIComponent(entry.slice(prefix.length)) } : {};
+}
+
 interface RequestOptions {
   body?: unknown;
   signal?: AbortSignal;
@@ -49,6 +60,7 @@ async function request<T>(method: Method, path: string, options: RequestOptions 
   if (options.body !== undefined) headers['Content-Type'] = 'application/json';
   const teamId = options.withoutTeam ? null : getCurrentTeamId();
   if (teamId) headers[teamHeaderName] = teamId;
+  if (method !== 'GET') Object.assign(headers, csrfHeaders());
 
   let response: Response;
   try {

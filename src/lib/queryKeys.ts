@@ -4,6 +4,7 @@
  */
 export const queryKeys = {
   me: () => ['me'] as const,
+  apiTokens: () => ['me', 'api-tokens'] as const,
   invitationPreview: (token: string) => ['invitation-preview', token] as const,
 
   teamScope: (teamId: string) => ['team', teamId] as const,

@@ -22,7 +22,7 @@ describe('sign-up', () => {
       .send({ email: ' Alma.Voss@Tacet.TEST ', password: testPassword, name: 'Alma Voss' });
     expect(res.status).toBe(201);
     const body = sessionResponseSchema.parse(res.body);
-    expect(body.user).toMatchObject({ email: 'alma.voss@tacet.test', name: 'Alma Voss', notifyOnRunDone: false });
+    expect(body.user).toMatchObject({ email: 'alma.voss@tacet.test', name: 'Alma Voss', notifyOnRunDone: true });
     const cookie = String(res.headers['set-cookie']);
     expect(cookie).toContain(`${sessionCookieName}=${body.token}`);
     expect(cookie).toMatch(/HttpOnly/);

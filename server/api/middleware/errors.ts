@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import type { ApiError } from '@shared/api';
 import { HttpError } from '../errors';
+import { redactUrl } from './requestLog';
 
 function send(res: Parameters<RequestHandler>[1], status: number, error: ApiError['error']): void {
   res.status(status).json({ error } satisfies ApiError);
@@ -32,6 +33,6 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (typeof bodyError.status === 'number' && bodyError.status >= 400 && bodyError.status < 500) {
     return send(res, bodyError.status, { code: 'bad_request', message: 'The request could not be read.' });
   }
-  console.error(`[api] ${req.method} ${req.originalUrl} failed:`, err);
+  console.error(`[api] ${req.method} ${redactUrl(req.originalUrl)} failed:`, err);
   send(res, 500, { code: 'internal_error', message: 'Something went wrong on the server. The error has been logged.' });
 };

@@ -2,6 +2,7 @@ import { Router, type Response } from 'express';
 import {
   loginRequestSchema,
   passwordResetConfirmSchema,
+  csrfCookieName,
   passwordResetRequestSchema,
   sessionCookieName,
   signupRequestSchema,
@@ -10,6 +11,7 @@ import {
 import type { Config } from '../../config';
 import { requireAuth } from '../context';
 import { authenticate } from '../middleware/auth';
+import { setCsrfCookie } from '../middleware/csrf';
 import { loginRateLimit, passwordResetRateLimit } from '../middleware/rate-limit';
 import type { AuthService } from '../services/auth-service';
 
@@ -25,8 +27,10 @@ function cookieOptions(config: Config) {
 export function authRoutes(deps: { config: Config; auth: AuthService }): Router {
   const { config, auth } = deps;
   const router = Router();
-  const setSessionCookie = (res: Response, token: string) =>
+  const setSessionCookie = (res: Response, token: string) => {
     res.cookie(sessionCookieName, token, { ...cookieOptions(config), maxAge: config.sessionTtlSeconds * 1000 });
+    setCsrfCookie(res, cookieOptions(config).secure, config.sessionTtlSeconds * 1000);
+  };
 
   router.post('/auth/signup', async (req, res) => {
     const session = await auth.signup(signupRequestSchema.parse(req.body));
@@ -43,6 +47,7 @@ export function authRoutes(deps: { config: Config; auth: AuthService }): Router 
   router.post('/auth/logout', authenticate(auth), async (req, res) => {
     await auth.logout(requireAuth(req).sessionId);
     res.clearCookie(sessionCookieName, cookieOptions(config));
+    res.clearCookie(csrfCookieName, { ...cookieOptions(config), httpOnly: false });
     res.status(204).end();
   });
 

@@ -10,6 +10,7 @@ import * as users from '../../db/repositories/users';
 import type { Mailer } from '../../mail/mailer';
 import type { AuthContext } from '../context';
 import { badRequest, conflict, unauthorized } from '../errors';
+import { createApiTokenService, looksLikeApiToken } from './api-token-service';
 import type { InvitationService } from './invitation-service';
 import { toUser } from './serializers';
 import { hashLinkToken, newLinkToken } from './tokens';
@@ -32,6 +33,7 @@ export function createAuthService(deps: {
   const { config, dataSource, mailer, invitations } = deps;
   // Compared against when the e-mail is unknown, so a login takes as long whether or not the account exists.
   const decoyHash = bcrypt.hashSync('not-a-real-password', config.bcryptCost);
+  const apiTokens = createApiTokenService({ dataSource });
 
   async function issueSession(userId: string): Promise<string> {
     const expiresAt = new Date(Date.now() + config.sessionTtlSeconds * 1000);
@@ -74,12 +76,20 @@ export function createAuthService(deps: {
       return { token: await issueSession(user.id), user: toUser(user) };
     },
 
-    async logout(sessionId: string): Promise<void> {
-      await sessions.revokeSession(dataSource.manager, sessionId);
+    async logout(sessionId: string | null): Promise<void> {
+      // a personal API token is revoked on the Account page, not by signing out
+      if (sessionId) await sessions.revokeSession(dataSource.manager, sessionId);
     },
 
-    /** The signed-in user for a token, or null when it is malformed, expired or revoked. */
+    /**
+     * The signed-in user for a session JWT or a personal API token, or null when it is malformed,
+     * expired or revoked.
+     */
     async authenticate(token: string): Promise<AuthContext | null> {
+      if (looksLikeApiToken(token)) {
+        const found = await apiTokens.authenticate(token);
+        return found ? { user: found.user, sessionId: null, apiToken: { id: found.token.id, teamId: found.token.teamId } } : null;
+      }
       let payload: SessionTokenPayload;
       try {
         payload = jwt.verify(token, config.jwtSecret, { algorithms: ['HS256'] }) as SessionTokenPayload;

@@ -8,6 +8,7 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { Loading } from '../../../ui/States';
 import { useMe } from '../../auth/api/me';
 import { useUpdateMe } from '../api/account';
+import { ApiTokensSection } from '../components/ApiTokensSection';
 import { Switch } from '../components/Switch';
 
 export function AccountPage() {
@@ -33,6 +34,9 @@ export function AccountPage() {
             </li>
           ))}
         </ul>
+      </Section>
+      <Section title="API tokens">
+        <ApiTokensSection memberships={memberships} />
       </Section>
     </>
   );

@@ -2,7 +2,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiErrorSchema } from '@shared/api';
 import { teamHeaderName } from '@shared/auth';
 import { metadataToFormFields, type CausalSetDetail, type CausalSetListResponse, type CausalSetMetadata } from '@shared/causalSets';
-import { api, ApiError } from '../../../lib/apiClient';
+import { api, ApiError, csrfHeaders } from '../../../lib/apiClient';
 import { getCurrentTeamId } from '../../../lib/currentTeam';
 import { queryKeys } from '../../../lib/queryKeys';
 import { useCurrentTeamId } from '../../auth/api/me';
@@ -44,7 +44,7 @@ export async function uploadCausalSet(metadata: CausalSetMetadata, file: File): 
   form.append('file', file, file.name);
   let response: Response;
   try {
-    response = await fetch('/api/causal-sets', { method: 'POST', body: form, credentials: 'include', headers: { Accept: 'application/json', ...teamHeaders() } });
+    response = await fetch('/api/causal-sets', { method: 'POST', body: form, credentials: 'include', headers: { Accept: 'application/json', ...teamHeaders(), ...csrfHeaders() } });
   } catch {
     throw new ApiError(0, 'network', 'The server cannot be reached. Check your connection and try again.');
   }
