@@ -324,13 +324,36 @@ Napi::Value SetThreads(const Napi::CallbackInfo& info) {
   return Napi::Number::New(info.Env(), openblas_get_num_threads());
 }
 
+// node-addon-api turns a C++ exception into a JavaScript one; but in a worker thread that is being
+// terminated (a cancelled run) no JavaScript exception can be raised, node-addon-api then throws again
+// from its own handler and the whole process aborts. Deliver what can be delivered, drop the rest.
+template <Napi::Value (*Routine)(const Napi::CallbackInfo&)>
+Napi::Value Guarded(const Napi::CallbackInfo& info) {
+  Napi::Env env = info.Env();
+  try {
+    return Routine(info);
+  } catch (const Napi::Error& error) {
+    try {
+      error.ThrowAsJavaScriptException();
+    } catch (...) {
+    }
+  } catch (const std::exception& error) {
+    try {
+      Napi::Error::New(env, error.what()).ThrowAsJavaScriptException();
+    } catch (...) {
+    }
+  } catch (...) {
+  }
+  return Napi::Value();
+}
+
 Napi::Object Init(Napi::Env env, Napi::Object exports) {
-  exports.Set("setThreads", Napi::Function::New(env, SetThreads));
-  exports.Set("symmetricEigen", Napi::Function::New(env, SymmetricEigen));
-  exports.Set("multiply", Napi::Function::New(env, Multiply));
-  exports.Set("gram", Napi::Function::New(env, Gram));
-  exports.Set("solveTriangular", Napi::Function::New(env, SolveTriangular));
-  exports.Set("info", Napi::Function::New(env, Info));
+  exports.Set("setThreads", Napi::Function::New(env, Guarded<SetThreads>));
+  exports.Set("symmetricEigen", Napi::Function::New(env, Guarded<SymmetricEigen>));
+  exports.Set("multiply", Napi::Function::New(env, Guarded<Multiply>));
+  exports.Set("gram", Napi::Function::New(env, Guarded<Gram>));
+  exports.Set("solveTriangular", Napi::Function::New(env, Guarded<SolveTriangular>));
+  exports.Set("info", Napi::Function::New(env, Guarded<Info>));
   return exports;
 }
 
