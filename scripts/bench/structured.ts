@@ -24,10 +24,19 @@ export interface StructuredBenchRow {
   seconds: number;
   peakRssMB: number;
   S: number | null;
-  /** pairs kept above the cut, Lanczos steps and Δ products (spectrum rows) */
+  /** CPU seconds of the process (all threads) for the task: the machine is shared, wall time alone misleads */
+  cpuSeconds: number;
+  /** 1-minute load average at the end of the task, and the core count */
+  load: number;
+  cores: number;
+  /** pairs kept above the cut, block Lanczos steps, Δ products, Krylov dimension, block size (spectrum rows) */
   modesKept?: number;
   steps?: number;
   products?: number;
+  dimension?: number;
+  blockSize?: number;
+  /** wall seconds inside the spectrum task: Δ products, Gram–Schmidt, Ritz eigensolves, vectors */
+  parts?: { products: number; orthogonalisation: number; ritz: number; vectors: number };
 }
 
 const thisFile = fileURLToPath(import.meta.url);
@@ -49,14 +58,24 @@ async function childRows(n: number): Promise<StructuredBenchRow[]> {
   const { topSkewPairs } = await import('../../server/engine/structured/lanczos');
   const { factoredState, factoredTrace } = await import('../../server/engine/structured/factoredState');
   const { factoredEntropy } = await import('../../server/engine/structured/factoredEntropy');
+  const { availableParallelism, loadavg } = await import('node:os');
   const rows: StructuredBenchRow[] = [];
   let total = 0;
+  let totalCpu = 0;
+  const cpuNow = () => {
+    const u = process.cpuUsage();
+    return (u.user + u.system) / 1e6;
+  };
+  const machine = () => ({ load: Math.round(loadavg()[0] * 100) / 100, cores: availableParallelism() });
   const timed = <T>(task: StructuredBenchRow['task'], work: () => T, extra: (value: T) => Partial<StructuredBenchRow> = () => ({})): T => {
     const start = performance.now();
+    const cpuStart = cpuNow();
     const value = work();
     const seconds = (performance.now() - start) / 1000;
+    const cpuSeconds = cpuNow() - cpuStart;
     total += seconds;
-    rows.push({ task, engine: 'structured', N: n, seconds, peakRssMB: process.resourceUsage().maxRSS / 1024, S: null, ...extra(value) });
+    totalCpu += cpuSeconds;
+    rows.push({ task, engine: 'structured', N: n, seconds, cpuSeconds, ...machine(), peakRssMB: process.resourceUsage().maxRSS / 1024, S: null, ...extra(value) });
     return value;
   };
   const s = timed('sprinkle', () =>
@@ -73,10 +92,10 @@ async function childRows(n: number): Promise<StructuredBenchRow[]> {
         onProgress: (p) => {
           if (performance.now() - lastReport < 10_000) return;
           lastReport = performance.now();
-          process.stderr.write(`bench structured N = ${n}: ${p.steps} steps, ${p.converged}/${p.wanted} pairs converged\n`);
+          process.stderr.write(`bench structured N = ${n}: Krylov dimension ${p.dimension}, ${p.converged}/${p.wanted} pairs converged\n`);
         },
       }),
-    (p) => ({ modesKept: p.sigma.length, steps: p.steps, products: p.products }),
+    (p) => ({ modesKept: p.sigma.length, steps: p.steps, products: p.products, dimension: p.dimension, blockSize: p.blockSize, parts: p.seconds }),
   );
   const state = timed('state', () => {
     const state = factoredState(pairs, cut);
@@ -92,7 +111,7 @@ async function childRows(n: number): Promise<StructuredBenchRow[]> {
     },
     (e) => ({ S: e.S }),
   );
-  rows.push({ task: 'pipeline', engine: 'structured', N: n, seconds: total, peakRssMB: process.resourceUsage().maxRSS / 1024, S: entropy.S });
+  rows.push({ task: 'pipeline', engine: 'structured', N: n, seconds: total, cpuSeconds: totalCpu, ...machine(), peakRssMB: process.resourceUsage().maxRSS / 1024, S: entropy.S });
   return rows;
 }
 
