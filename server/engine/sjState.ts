@@ -8,7 +8,9 @@ import type { PauliJordanSpectrum } from './pauliJordan';
  * A = Bᵀ Δ B (r × r):
  *   Re W_c = ½ B diag(s) Bᵀ = ½ P|Δ|P,   Im W_c = ½ B A Bᵀ = ½ P Δ P,   P = B Bᵀ,
  * so W_c = B W̃ Bᵀ with the small Hermitian W̃ = ½(diag(s) + iA) (physics notes §4; Sorkin 2011;
- * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used.
+ * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used:
+ * W = ½(B diag(s) Bᵀ + iΔ), and nothing of size N × N beyond B is formed for the state (A and ΔB are
+ * then left null; `sjDiagnostics` forms what its checks need).
  */
 export interface SjState {
   size: number;
@@ -19,12 +21,12 @@ export interface SjState {
   cutoff: number;
   basis: DenseMatrix;
   sigma: Float64Array;
-  /** A = Bᵀ Δ B */
-  deltaInBasis: DenseMatrix;
+  /** A = Bᵀ Δ B; null when `complete` (the state then uses Δ itself) */
+  deltaInBasis: DenseMatrix | null;
   /** Δ of the whole causal set */
   delta: DenseMatrix;
-  /** Δ B (N × r), kept for the diagnostics */
-  deltaTimesBasis: DenseMatrix;
+  /** Δ B (N × r), kept for the diagnostics; null when `complete` */
+  deltaTimesBasis: DenseMatrix | null;
 }
 
 export interface SjDiagnostics {
@@ -34,7 +36,11 @@ export interface SjDiagnostics {
   smallestEigenvalue: number;
   /** 'exact': eigenvalues of W̃ from a symmetric solver; 'lower-bound': −½√‖s² − AᵀA‖_F, a rigorous bound */
   smallestEigenvalueMethod: 'exact' | 'lower-bound';
-  /** ‖W − W̄ − iΔ_c‖_F with iΔ_c = iΔP (P commutes with Δ), relative to ‖Δ‖_F */
+  /**
+   * ‖W − W̄ − iΔ_c‖_F with iΔ_c = iΔP (P commutes with Δ), relative to ‖Δ‖_F. Untruncated, P = I and
+   * Im W is ½Δ itself, so this is 0 to rounding; how far the computed B is from B Bᵀ = I is
+   * `basisOrthonormalityError`.
+   */
   commutatorError: number;
   /** ‖W W̄‖_F relative to ‖W‖_F² */
   orthogonalityError: number;
@@ -86,8 +92,9 @@ export function sjState(
     // through ΔᵀΔ a true zero comes out near √ε‖Δ‖: below the resolution the mode is the kernel, σ = 0
     sigma[c] = value > KERNEL_RESOLUTION * top ? value : 0;
   }
-  const deltaBasis = backend.multiply(delta, basis);
-  const deltaInBasis = backend.multiply(basis, deltaBasis, { transposeA: true });
+  // untruncated, the state is ½(B s Bᵀ + iΔ): A and ΔB (two N³ products) serve only the checks
+  const deltaBasis = complete ? null : backend.multiply(delta, basis);
+  const deltaInBasis = deltaBasis ? backend.multiply(basis, deltaBasis, { transposeA: true }) : null;
   return { size: n, complete, modesKept: Math.min(truncation.modesKept, spectrum.positive.length), cutoff: truncation.cutoff, basis, sigma, deltaInBasis, delta, deltaTimesBasis: deltaBasis };
 }
 
@@ -115,6 +122,7 @@ export function restrictedWightman(
     imaginary = denseMatrix(m, m);
     for (let b = 0; b < m; b++) for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + elements[b] * n];
   } else {
+    if (!state.deltaInBasis) throw new Error('a truncated SJ state needs A = BᵀΔB');
     const half = backend.multiply(rows, state.deltaInBasis);
     imaginary = backend.multiply(half, rows, { transposeB: true });
     for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
@@ -132,32 +140,76 @@ function frobenius(data: Float64Array): number {
 /** Largest 2r for which the smallest eigenvalue of W̃ is computed exactly (a 2r × 2r symmetric solve). */
 export const EXACT_POSITIVITY_LIMIT = 800;
 
+export interface SjDiagnosticsOptions {
+  /** largest 2r for the exact smallest eigenvalue (default EXACT_POSITIVITY_LIMIT); beyond it the bound */
+  exactPositivityLimit?: number;
+}
+
 /**
  * Checks of physics notes §4 on a state: W Hermitian and positive semidefinite, W − W̄ = iΔ_c,
- * W W̄ = 0, tr W = sum of the positive eigenvalues. All but the orthonormality check work in the kept
- * basis (cost O(r³) + O(N r²)) since W_c = B W̃ Bᵀ. The smallest eigenvalue of the Hermitian W̃ = X + iY
- * is that of the real symmetric [[X, −Y], [Y, X]] (each eigenvalue twice); beyond EXACT_POSITIVITY_LIMIT
- * it is bounded from below instead: W̃ = ½(|A| + iA) + ½(s − |A|) with the first term positive
- * semidefinite, and ‖s − |A|‖₂ ≤ √‖s² − AᵀA‖₂ for positive semidefinite square roots.
+ * W W̄ = 0, tr W = sum of the positive eigenvalues.
+ *
+ * Cost. Everything of the form B M Bᵀ is measured through M in the kept basis, since ‖B M Bᵀ‖_F = ‖M‖_F
+ * for orthonormal columns, up to ‖BᵀB − I‖_F, which is reported itself (`basisOrthonormalityError`,
+ * from the one Gram product H = BᵀB that also gives tr W_c and, untruncated, ‖B s Bᵀ‖_F exactly).
+ * Truncated (r ≪ N): O(N r²). Untruncated: ΔB and A = Bᵀ(ΔB) for the positivity and W W̄ checks, plus
+ * the two Gram products H and AᵀA (dsyrk on native); the Hermiticity, ‖W‖ and commutator checks use
+ * Δ itself, as the state does.
+ *
+ * Positivity. The smallest eigenvalue of the Hermitian W̃ = X + iY is that of the real symmetric
+ * [[X, −Y], [Y, X]] (each eigenvalue twice); beyond the exact limit it is bounded from below instead:
+ * W̃ = ½(|A| + iA) + ½(s − |A|) with the first term positive semidefinite, and
+ * ‖s − |A|‖₂ ≤ √‖s² − AᵀA‖₂ for positive semidefinite square roots.
  */
-export function sjDiagnostics(state: SjState, positive: Float64Array, backend: LinearAlgebraBackend = getBackend()): SjDiagnostics {
+export function sjDiagnostics(
+  state: SjState,
+  positive: Float64Array,
+  backend: LinearAlgebraBackend = getBackend(),
+  options: SjDiagnosticsOptions = {},
+): SjDiagnostics {
   const r = state.sigma.length;
   const n = state.size;
-  const a = state.deltaInBasis;
   const s = state.sigma;
+  const exactPositivityLimit = options.exactPositivityLimit ?? EXACT_POSITIVITY_LIMIT;
 
-  let antisymmetryDefect = 0;
-  for (let j = 0; j < r; j++) for (let i = 0; i < r; i++) antisymmetryDefect += (a.data[i + j * r] + a.data[j + i * r]) ** 2;
-  const normA = frobenius(a.data);
-  const normW = 0.5 * Math.sqrt(frobenius(s) ** 2 + normA ** 2);
-  const hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
+  // H = BᵀB: orthonormality, the column norms for tr W_c, and the exact ‖B s Bᵀ‖_F² = Σ s_i s_j H_ij²
+  const gram = backend.gram(state.basis);
+  let trace = 0;
+  for (let c = 0; c < r; c++) trace += 0.5 * s[c] * gram.data[c + c * r];
 
-  // W − W̄ − iΔP = i(BA − ΔB)Bᵀ, whose norm is ‖BA − ΔB‖_F for orthonormal B
-  const deltaB = state.deltaTimesBasis;
-  const bA = backend.multiply(state.basis, a);
-  let leak = 0;
-  for (let k = 0; k < deltaB.data.length; k++) leak += (bA.data[k] - deltaB.data[k]) ** 2;
-  const commutatorError = Math.sqrt(leak) / Math.max(frobenius(state.delta.data), Number.MIN_VALUE);
+  // the state's products are reused when truncated; untruncated they exist only for these checks
+  const deltaB = state.deltaTimesBasis ?? backend.multiply(state.delta, state.basis);
+  const a = state.deltaInBasis ?? backend.multiply(state.basis, deltaB, { transposeA: true });
+
+  let hermiticityError: number;
+  let commutatorError: number;
+  let normW: number;
+  const normDelta = frobenius(state.delta.data);
+  if (state.complete) {
+    // W = ½(B s Bᵀ + iΔ): Re W is symmetric by construction, so W − W† = i·½(Δ + Δᵀ)
+    let realNorm2 = 0;
+    for (let j = 0; j < r; j++) {
+      for (let i = 0; i < r; i++) realNorm2 += s[i] * s[j] * gram.data[i + j * r] ** 2;
+    }
+    let antisymmetryDefect = 0;
+    for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) antisymmetryDefect += (state.delta.data[i + j * n] + state.delta.data[j + i * n]) ** 2;
+    normW = 0.5 * Math.sqrt(realNorm2 + normDelta ** 2);
+    hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
+    // every mode kept: P = I, and W − W̄ = 2i·Im W = iΔ = iΔ_c entry by entry (Im W is ½Δ, and the
+    // factors ½ and 2 are exact in binary), so the defect is exactly zero; what the computed B lacks
+    // of B Bᵀ = I is basisOrthonormalityError
+    commutatorError = 0;
+  } else {
+    let antisymmetryDefect = 0;
+    for (let j = 0; j < r; j++) for (let i = 0; i < r; i++) antisymmetryDefect += (a.data[i + j * r] + a.data[j + i * r]) ** 2;
+    normW = 0.5 * Math.sqrt(frobenius(s) ** 2 + frobenius(a.data) ** 2);
+    hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
+    // W − W̄ − iΔP = i(BA − ΔB)Bᵀ, whose norm is ‖BA − ΔB‖_F for orthonormal B
+    const bA = backend.multiply(state.basis, a);
+    let leak = 0;
+    for (let k = 0; k < deltaB.data.length; k++) leak += (bA.data[k] - deltaB.data[k]) ** 2;
+    commutatorError = Math.sqrt(leak) / Math.max(normDelta, Number.MIN_VALUE);
+  }
 
   // 4 W̃ conj(W̃) = (s + iA)(s − iA) = s² + A² + i(As − sA)
   // A·A = −AᵀA for antisymmetric A (its symmetric part is the hermiticity error above); the Gram
@@ -176,7 +228,7 @@ export function sjDiagnostics(state: SjState, positive: Float64Array, backend: L
 
   let smallestEigenvalue: number;
   let smallestEigenvalueMethod: SjDiagnostics['smallestEigenvalueMethod'];
-  if (2 * r <= EXACT_POSITIVITY_LIMIT) {
+  if (2 * r <= exactPositivityLimit) {
     const m = 2 * r;
     const embedding = denseMatrix(m, m);
     for (let j = 0; j < r; j++) {
@@ -205,16 +257,9 @@ export function sjDiagnostics(state: SjState, positive: Float64Array, backend: L
     smallestEigenvalueMethod = 'lower-bound';
   }
 
-  let trace = 0;
-  for (let c = 0; c < r; c++) {
-    let norm2 = 0;
-    for (let i = 0; i < n; i++) norm2 += state.basis.data[i + c * n] ** 2;
-    trace += 0.5 * s[c] * norm2;
-  }
   let positiveEigenvalueSum = 0;
   for (let k = 0; k < state.modesKept; k++) if (positive[k] > KERNEL_RESOLUTION * positive[0]) positiveEigenvalueSum += positive[k];
 
-  const gram = backend.gram(state.basis);
   for (let c = 0; c < r; c++) gram.data[c + c * r] -= 1;
   const basisOrthonormalityError = frobenius(gram.data);
 
