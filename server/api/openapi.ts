@@ -15,7 +15,8 @@ import {
   updateMeRequestSchema,
   userSchema,
 } from '@shared/auth';
-import { causalSetDetailSchema, causalSetListResponseSchema, causalSetMetadataSchema, causalSetSummarySchema } from '@shared/causalSets';
+import { causalSetDetailSchema, causalSetListResponseSchema, causalSetMetadataSchema } from '@shared/causalSets';
+import { engineLimitsSchema } from '@shared/limits';
 import { permissions, roleSchema, type Permission } from '@shared/roles';
 import {
   createCutRuleRequestSchema,
@@ -74,6 +75,7 @@ const teamSchema = z.object({ id: z.string(), name: z.string(), role: roleSchema
  */
 export const apiRoutes: ApiRouteDescription[] = [
   { method: 'get', path: '/api/health', summary: 'Service health: database, queue, workers', tag: 'platform', access: 'public', status: 200, response: healthResponseSchema },
+  { method: 'get', path: '/api/limits', summary: 'Dense size limit the server accepts, per linear-algebra backend', tag: 'platform', access: 'public', status: 200, response: engineLimitsSchema },
   { method: 'get', path: '/api/openapi.json', summary: 'This description', tag: 'platform', access: 'public', status: 200, produces: 'application/json' },
 
   { method: 'post', path: '/api/auth/signup', summary: 'Create an account (and a team, or join an invitation)', tag: 'auth', access: 'public', status: 201, body: signupRequestSchema, response: sessionResponseSchema },
@@ -116,7 +118,7 @@ export const apiRoutes: ApiRouteDescription[] = [
   { method: 'delete', path: '/api/cut-rules/:id', summary: 'Delete a saved truncation rule', tag: 'cut rules', access: 'compute', status: 204 },
 
   { method: 'get', path: '/api/causal-sets', summary: 'Imported causal sets and the upload limits', tag: 'causal sets', access: 'read', status: 200, response: causalSetListResponseSchema },
-  { method: 'post', path: '/api/causal-sets', summary: 'Import a causal set file (multipart: metadata fields and "file")', tag: 'causal sets', access: 'compute', status: 201, multipart: causalSetMetadataSchema, response: causalSetSummarySchema },
+  { method: 'post', path: '/api/causal-sets', summary: 'Import a causal set file (multipart: metadata fields and "file")', tag: 'causal sets', access: 'compute', status: 201, multipart: causalSetMetadataSchema, response: idAnswer },
   { method: 'get', path: '/api/causal-sets/:id', summary: 'A causal set with its preview', tag: 'causal sets', access: 'read', status: 200, response: causalSetDetailSchema },
   { method: 'get', path: '/api/causal-sets/:id/file', summary: 'The file as uploaded', tag: 'causal sets', access: 'read', status: 200, produces: 'text/csv' },
   { method: 'delete', path: '/api/causal-sets/:id', summary: 'Delete a causal set (runs keep their copy)', tag: 'causal sets', access: 'compute', status: 204 },
