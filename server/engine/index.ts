@@ -19,6 +19,10 @@ import { makeRegion, type Region } from './regions';
 import { sjDiagnostics, sjState, type SjDiagnostics, type SjState } from './sjState';
 import { sprinkle, type Sprinkling } from './sprinkle';
 import { applyTruncation, type KneeFit } from './truncation';
+import { STRUCTURED_MAX_N_2D, type EngineName, type EngineRequest } from './structured/engineChoice';
+import { engineForRequest, structuredVacuum } from './structured/pipeline';
+
+export { engineRequests, type EngineName, type EngineRequest } from './structured/engineChoice';
 
 export const ENGINE_VERSION = 'tacet-engine 0.1.0';
 
@@ -79,8 +83,10 @@ export interface VacuumRequest {
   subregion?: SubregionSpec;
   doubleTruncation?: boolean;
   backend?: BackendPreference | LinearAlgebraBackend;
-  /** also return the SJ state (kept eigenvectors and Δ) for further use */
+  /** also return the SJ state (kept eigenvectors and Δ) for further use (dense engine only) */
   keepState?: boolean;
+  /** dense, structured (2D, modes above a cut only) or auto: the rule in structured/engineChoice.ts */
+  engine?: EngineRequest;
 }
 
 export interface VacuumHooks {
@@ -90,6 +96,9 @@ export interface VacuumHooks {
 
 export interface VacuumResult {
   engineVersion: string;
+  /** which engine ran, and why (structured: `eigenvalues` holds only the computed modes above the cut) */
+  engine: EngineName;
+  engineReason: string;
   backend: string;
   dimension: 2 | 4;
   N: number;
@@ -273,7 +282,9 @@ function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend 
  */
 export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks = {}): Promise<VacuumResult> {
   const backend = resolveBackend(request.backend);
-  const sizeLimit = denseSizeLimit(backend.name);
+  const denseLimit = denseSizeLimit(backend.name);
+  const choice = engineForRequest(request, denseLimit);
+  const sizeLimit = choice.engine === 'structured' ? STRUCTURED_MAX_N_2D : denseLimit;
   validateVacuumRequest(request, sizeLimit);
   const timings: Partial<Record<VacuumStage, number>> = {};
   const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
@@ -313,6 +324,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     const density = source.density ?? (region ? n / region.volume : null);
     return { points, dimension: source.dimension, n, density, region, provenance: null };
   });
+  if (choice.engine === 'structured') return structuredVacuum({ request, hooks, placed, stage, backend, choice, timings });
   const { points, dimension, density, region, n } = placed;
   const mass = request.mass ?? 0;
 
@@ -367,6 +379,8 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
 
   return {
     engineVersion: ENGINE_VERSION,
+    engine: 'dense',
+    engineReason: choice.reason,
     backend: backend.name,
     dimension,
     N: n,

@@ -15,6 +15,7 @@ import { chooseEngine, maxElements, STRUCTURED_MAX_N_2D } from '../../server/eng
 import { factoredEntropy } from '../../server/engine/structured/factoredEntropy';
 import { applyWightman, factoredState, factoredTrace } from '../../server/engine/structured/factoredState';
 import { topSkewPairs } from '../../server/engine/structured/lanczos';
+import { computeVacuum, EngineInputError } from '../../server/engine';
 
 function denseDelta(points: Float64Array, mass = 0, density?: number): DenseMatrix {
   return pauliJordan(retardedGreen({ points, dimension: 2, causal: causalMatrix(points, 2), mass, density }));
@@ -199,5 +200,64 @@ describe('engine choice rule', () => {
     expect(maxElements('structured', 2, sqrt, 3000)).toBe(STRUCTURED_MAX_N_2D);
     expect(maxElements('structured', 2, { rule: 'none' }, 3000)).toBe(0);
     expect(maxElements('dense', 2, sqrt, 3000)).toBe(3000);
+  });
+});
+
+describe('block products and the plain-JavaScript path', () => {
+  it('applyBlock equals apply column by column (massive, common practice for fast operators)', () => {
+    const s = diamond(400, 'block');
+    const op = pauliJordan2DFromPoints(s.points, { mass: 1.3, density: s.density });
+    const width = 5;
+    const input = Float64Array.from({ length: 400 * width }, (_, i) => Math.cos(0.37 * i));
+    const block = new Float64Array(400 * width);
+    op.applyBlock(input, block, width);
+    const one = new Float64Array(400);
+    for (let lane = 0; lane < width; lane++) {
+      op.apply(input.subarray(lane * 400, (lane + 1) * 400), one);
+      for (let r = 0; r < 400; r++) expect(block[lane * 400 + r]).toBe(one[r]);
+    }
+  });
+
+  it('the JavaScript kernels (no BLAS) and a block of 1 give the same pairs as BLAS blocks', () => {
+    const s = diamond(600, 'kernels');
+    const cut = sqrtNCutoff(600);
+    const blas = topSkewPairs(pauliJordan2DFromPoints(s.points), { cut });
+    const plain = topSkewPairs(pauliJordan2DFromPoints(s.points), { cut, backend: null, blockSize: 1 });
+    expect(plain.sigma.length).toBe(blas.sigma.length);
+    for (let i = 0; i < blas.sigma.length; i++) expect(Math.abs(plain.sigma[i] / blas.sigma[i] - 1)).toBeLessThan(1e-10);
+  });
+});
+
+describe('computeVacuum with either engine (issue 9: the engine is chosen by the rule and recorded)', () => {
+  const sprinkling = { region: { kind: 'diamond2d' as const, properTime: 2 * Math.SQRT2 }, process: 'fixed' as const, count: 900, seed: 'engines', prng: 'arc4' as const };
+  const request = { source: { kind: 'sprinkling' as const, sprinkling }, truncation: { rule: 'sqrtN' as const }, subregion: halfDiamond, doubleTruncation: true };
+  it('structured and dense agree on the eigenvalues above the cut (1e-8) and S (1e-6); the checks hold', async () => {
+    const dense = await computeVacuum({ ...request, engine: 'dense' });
+    const structured = await computeVacuum({ ...request, engine: 'structured' });
+    expect(dense.engine).toBe('dense');
+    expect(structured.engine).toBe('structured');
+    expect(structured.modesKept).toBe(dense.modesKept);
+    expect(structured.cutoff).toBe(dense.cutoff);
+    for (let i = 0; i < dense.modesKept; i++) expect(Math.abs(structured.eigenvalues[i] / dense.eigenvalues[i] - 1)).toBeLessThan(1e-8);
+    expect(structured.relations).toBe(dense.relations);
+    expect(Math.abs(structured.entropy!.S - dense.entropy!.S)).toBeLessThan(1e-6);
+    expect(Math.abs(structured.diagnostics.trace / structured.diagnostics.positiveEigenvalueSum - 1)).toBeLessThan(1e-10);
+    expect(structured.diagnostics.basisOrthonormalityError).toBeLessThan(1e-9);
+    expect(structured.diagnostics.orthogonalityError).toBeLessThan(1e-9);
+    expect(structured.diagnostics.commutatorError).toBeLessThan(1e-9);
+  });
+  it('modes:K keeps K modes with the dense engine’s cut between the K-th and the next', async () => {
+    const modes = { ...request, truncation: { rule: 'modes' as const, count: 12 }, subregion: undefined, doubleTruncation: false };
+    const dense = await computeVacuum({ ...modes, engine: 'dense' });
+    const structured = await computeVacuum({ ...modes, engine: 'structured' });
+    expect(structured.modesKept).toBe(12);
+    expect(Math.abs(structured.cutoff / dense.cutoff - 1)).toBeLessThan(1e-9);
+  });
+  it('auto takes structured from N = 1000 with a cut, dense otherwise; a refused engine says why', async () => {
+    const big = { ...request, source: { kind: 'sprinkling' as const, sprinkling: { ...sprinkling, count: 1200 } }, subregion: undefined, doubleTruncation: false };
+    expect((await computeVacuum(big)).engine).toBe('structured');
+    expect((await computeVacuum({ ...request, truncation: { rule: 'none' as const }, doubleTruncation: false })).engine).toBe('dense');
+    await expect(computeVacuum({ ...request, truncation: { rule: 'knee' as const }, engine: 'structured' })).rejects.toThrow(EngineInputError);
+    await expect(computeVacuum({ ...big, source: { kind: 'sprinkling' as const, sprinkling: { ...sprinkling, count: 9000 } }, engine: 'dense' })).rejects.toThrow(/dense limit/);
   });
 });

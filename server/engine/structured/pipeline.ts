@@ -1,0 +1,163 @@
+import type { SubregionSpec, TruncationRule, VacuumStage } from '../../../shared/vacuum';
+import { sprinklingSpecSchema } from '../../../shared/vacuum';
+import { subregionElements } from '../entropy';
+import { EngineInputError, ENGINE_VERSION, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../index';
+import type { LinearAlgebraBackend } from '../linalg/backend';
+import { makeRegion, type Region } from '../regions';
+import type { Sprinkling } from '../sprinkle';
+import { applyTruncation, sqrtNCutoff } from '../truncation';
+import { dominanceSweep, lightConeSweep, PauliJordan2D } from './dominance2d';
+import { chooseEngine, type EngineChoice } from './engineChoice';
+import { factoredEntropy } from './factoredEntropy';
+import { factoredDiagnostics, factoredState } from './factoredState';
+import { topSkewPairs } from './lanczos';
+
+/** What the engine choice needs to know before any work: the size (worst case for Poisson), the dimension, a periodic x. */
+export function requestShape(request: VacuumRequest): { N: number; dimension: 2 | 4; periodic: boolean } | null {
+  const source = request.source;
+  if (source.kind === 'order') return null;
+  if (source.kind === 'points') {
+    const d = source.dimension;
+    const periodic = source.region ? source.region.kind === 'cylinder2d' : false;
+    return { N: Math.floor(source.points.length / d), dimension: d, periodic };
+  }
+  const parsed = sprinklingSpecSchema.safeParse(source.sprinkling);
+  if (!parsed.success) return null;
+  const region = makeRegion(parsed.data.region);
+  const mean = parsed.data.count ?? (parsed.data.density as number) * region.volume;
+  const worst = parsed.data.process === 'fixed' ? mean : Math.ceil(mean + 5 * Math.sqrt(mean));
+  return { N: worst, dimension: region.dimension, periodic: region.periodX !== undefined };
+}
+
+/** The documented rule of engineChoice.ts applied to a request; a refused request is an input error. */
+export function engineForRequest(request: VacuumRequest, denseMaxN: number): EngineChoice {
+  if (request.source.kind === 'order') {
+    if (request.engine === 'structured') throw new EngineInputError('the structured engine needs coordinates (light-cone sweep); a causal set given by its order runs on the dense engine');
+    return { engine: 'dense', reason: 'a causal set given by its order alone has no coordinates for the structured engine' };
+  }
+  const shape = requestShape(request);
+  // an unparsable request is left to validateVacuumRequest, which says what is wrong
+  if (!shape) return { engine: 'dense', reason: 'the request is checked by the dense validation' };
+  const truncation: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
+  try {
+    return chooseEngine({ N: shape.N, dimension: shape.dimension, truncation, requested: request.engine, denseMaxN, periodic: shape.periodic });
+  } catch (error) {
+    throw new EngineInputError((error as Error).message);
+  }
+}
+
+export interface PlacedPoints {
+  points: Float64Array;
+  n: number;
+  dimension: 2 | 4;
+  density: number | null;
+  region: Region | null;
+  provenance: Sprinkling['provenance'] | null;
+}
+
+type Stage = <T>(name: VacuumStage, work: () => T) => Promise<T>;
+
+/**
+ * The structured pipeline for 2D (issue 9): light-cone sweep order, Δ as an operator, the pairs above
+ * the cut by block skew Lanczos, the truncated state as N × k factors, its checks, and the entropy
+ * from the subregion's rows. `eigenvalues` in the result are the computed ones only (those above the cut,
+ * one more for modes:K), never the whole spectrum.
+ */
+export async function structuredVacuum(input: {
+  request: VacuumRequest;
+  hooks: VacuumHooks;
+  placed: PlacedPoints;
+  stage: Stage;
+  backend: LinearAlgebraBackend;
+  choice: EngineChoice;
+  timings: VacuumResult['timings'];
+}): Promise<VacuumResult> {
+  const { request, hooks, placed, stage, backend, choice } = input;
+  const { points, dimension, density, region } = placed;
+  if (dimension !== 2) throw new EngineInputError('the structured engine is 2D only');
+  const n = points.length / 2;
+  const mass = request.mass ?? 0;
+  const truncationRule: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
+
+  const { sweep, relations } = await stage('order', () => {
+    const t = new Float64Array(n);
+    const x = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      t[i] = points[2 * i];
+      x[i] = points[2 * i + 1];
+    }
+    const sweep = lightConeSweep(t, x);
+    // relations = Σ_x (Cᵀ1)_x, one dominance sweep
+    const sums = new Float64Array(n);
+    dominanceSweep(sweep, new Float64Array(n).fill(1), sums, 0, false);
+    let relations = 0;
+    for (let i = 0; i < n; i++) relations += sums[i];
+    return { sweep, relations };
+  });
+
+  const operator = await stage('green', () => new PauliJordan2D(sweep, { mass, density: density ?? undefined }));
+
+  const pairs = await stage('spectrum', () => {
+    const options =
+      truncationRule.rule === 'modes'
+        ? { count: Math.min(truncationRule.count + 1, Math.floor(n / 2)) }
+        : { cut: truncationRule.rule === 'lambda' ? truncationRule.cut : sqrtNCutoff(n) };
+    if (truncationRule.rule === 'modes' && truncationRule.count > Math.floor(n / 2)) {
+      throw new EngineInputError(`modes:${truncationRule.count} asks for more than the ${Math.floor(n / 2)} pairs ${n} elements can have`);
+    }
+    return topSkewPairs(operator, {
+      ...options,
+      backend,
+      expectedPairs: truncationRule.rule === 'modes' ? truncationRule.count : 2 * Math.sqrt(n),
+      onProgress: (p) => hooks.onProgress?.('spectrum', p.wanted > 0 ? Math.min(0.99, p.converged / (p.wanted + 3)) : 0),
+    });
+  });
+
+  const { truncation, state, diagnostics } = await stage('state', () => {
+    let truncation;
+    try {
+      truncation = applyTruncation(pairs.sigma, n, truncationRule);
+    } catch (error) {
+      throw new EngineInputError((error as Error).message);
+    }
+    const keep = truncation.modesKept;
+    const kept = { ...pairs, sigma: pairs.sigma.subarray(0, keep), a: pairs.a.slice(0, keep), b: pairs.b.slice(0, keep) };
+    const state = factoredState(kept, truncation.cutoff);
+    return { truncation, state, diagnostics: factoredDiagnostics(state, pairs.relativeResiduals.subarray(0, keep), backend) };
+  });
+
+  let entropy: VacuumResult['entropy'] = null;
+  if (request.subregion) {
+    const subregion: SubregionSpec = request.subregion;
+    entropy = await stage('entropy', () => {
+      const elements = subregionElements(subregion, points, 2, region?.periodX);
+      if (elements.length < 2) throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
+      return { ...factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, backend }), elements };
+    });
+  }
+
+  return {
+    engineVersion: ENGINE_VERSION,
+    engine: 'structured',
+    engineReason: choice.reason,
+    backend: backend.name,
+    dimension: 2,
+    N: n,
+    points,
+    density,
+    volume: region?.volume ?? null,
+    region: region?.spec ?? null,
+    sprinkling: placed.provenance,
+    mass,
+    relations,
+    links: null,
+    eigenvalues: Float64Array.from(pairs.sigma),
+    truncation: truncationRule,
+    cutoff: truncation.cutoff,
+    modesKept: truncation.modesKept,
+    knee: null,
+    diagnostics,
+    entropy,
+    timings: input.timings,
+  };
+}
