@@ -14,6 +14,7 @@ import { authRoutes } from './api/routes/auth';
 import { causalSetRoutes } from './api/routes/causalSets';
 import { cutRuleRoutes } from './api/routes/cutRules';
 import { healthRoutes } from './api/routes/health';
+import { limitsRoutes } from './api/routes/limits';
 import { invitationRoutes } from './api/routes/invitations';
 import { outboxRoutes } from './api/routes/outbox';
 import { runRoutes } from './api/routes/runs';
@@ -87,6 +88,7 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
   api.use(healthRoutes({ health }));
+  api.use(limitsRoutes());
   api.get('/openapi.json', (_req, res) => res.json(openApiDocument));
   api.use(authRoutes({ config, auth }));
   api.use(apiTokenRoutes({ auth, apiTokens }));

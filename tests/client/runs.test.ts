@@ -76,6 +76,13 @@ describe('new-run form → POST /api/runs body', () => {
     if (!checked.ok) expect(checked.errors['sprinkling.count']).toContain(`dense limit of ${denseLimitN}`);
   });
 
+  it('applies the server’s own limit once GET /api/limits has said it', () => {
+    const checked = runRequestFromForm(form({ count: '3001' }), DENSE_SIZE_LIMITS['ml-matrix']);
+    expect(checked.ok).toBe(false);
+    if (!checked.ok) expect(checked.errors['sprinkling.count']).toContain(`dense limit of ${DENSE_SIZE_LIMITS['ml-matrix']}`);
+    expect(runRequestFromForm(form({ count: '3000' }), DENSE_SIZE_LIMITS['ml-matrix']).ok).toBe(true);
+  });
+
   it('states the same dense limits as the engine', () => {
     expect(denseLimits).toEqual(DENSE_SIZE_LIMITS);
     expect(denseLimitN).toBe(Math.max(...Object.values(DENSE_SIZE_LIMITS)));

@@ -13,8 +13,9 @@ import {
 
 /**
  * Largest N the server's dense engine accepts, per linear-algebra backend (server/engine
- * DENSE_SIZE_LIMITS; a unit test keeps the two equal). Which backend a server runs is not known here, so
- * the form refuses only what no server takes and states both; the server's 422 has the last word.
+ * DENSE_SIZE_LIMITS; a unit test keeps the two equal). Until GET /api/limits says which backend the
+ * server runs, the form refuses only what no server takes and states both; the server's 422 has the
+ * last word.
  */
 export const denseLimits = { native: 6000, 'ml-matrix': 3000 } as const;
 export const denseLimitN = Math.max(...Object.values(denseLimits));
@@ -227,9 +228,10 @@ export type Checked<T> = { ok: true; request: T } | { ok: false; errors: FieldEr
 
 /**
  * Maps the form to a POST /api/runs body and validates it with the shared schema, so the form refuses
- * what the server would refuse, with a message beside the field at fault.
+ * what the server would refuse, with a message beside the field at fault. `maxN` is the server's dense
+ * limit when known (GET /api/limits).
  */
-export function runRequestFromForm(v: RunFormValues): Checked<CreateRunRequest> {
+export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN): Checked<CreateRunRequest> {
   const reader = new NumberReader();
   const dimension = regionDimension(v.regionKind);
   const sprinkling: Record<string, unknown> = {
@@ -253,11 +255,11 @@ export function runRequestFromForm(v: RunFormValues): Checked<CreateRunRequest> 
   const parsed = createRunRequestSchema.safeParse(candidate);
   const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
   const count = sprinkling.count;
-  if (typeof count === 'number' && Number.isInteger(count) && (count < 2 || count > denseLimitN) && !errors['sprinkling.count']) {
+  if (typeof count === 'number' && Number.isInteger(count) && (count < 2 || count > maxN) && !errors['sprinkling.count']) {
     errors['sprinkling.count'] =
       count < 2
         ? 'A causal set needs at least 2 elements.'
-        : `N = ${count} is above the dense limit of ${denseLimitN} elements: the engine holds about 7 N×N float64 matrices in memory at once (≈ ${((7 * 8 * count * count) / 1e9).toFixed(1)} GB here).`;
+        : `N = ${count} is above the dense limit of ${maxN} elements: the engine holds about 7 N×N float64 matrices in memory at once (≈ ${((7 * 8 * count * count) / 1e9).toFixed(1)} GB here).`;
   }
   Object.assign(errors, subregionLightConeError(candidate.subregion));
   if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };

@@ -9,6 +9,7 @@ import { Empty } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
+import { useEngineLimits } from '../api/limits';
 import { useCreateRun } from '../api/runs';
 import { SubregionFields } from '../components/SubregionFields';
 import {
@@ -59,6 +60,7 @@ function NewRunForm() {
   const errors = useFormErrors();
   const createRun = useCreateRun();
   const cutRules = useCutRules();
+  const limits = useEngineLimits().data;
   const navigate = useNavigate();
   const fe = errors.fieldErrors;
   const dimension = regionDimension(values.regionKind);
@@ -70,7 +72,7 @@ function NewRunForm() {
   function submit(event: FormEvent) {
     event.preventDefault();
     errors.clear();
-    const checked = runRequestFromForm(values);
+    const checked = runRequestFromForm(values, limits?.maxN);
     if (!checked.ok) {
       errors.setFieldErrors(checked.errors);
       errors.setFormError('Some settings need a look; see the messages beside the fields.');
@@ -159,9 +161,26 @@ function NewRunForm() {
           title="Sprinkling"
           note={
             <>
-              The dense engine takes at most <span className="figures">{denseLimits.native}</span> elements with the native
-              backend, <span className="figures">{denseLimits['ml-matrix']}</span> without: it holds about seven N×N matrices at
-              once.
+              {limits ? (
+                <>
+                  This server’s dense engine takes at most <span className="figures">{limits.maxN}</span> elements
+                  {limits.backend === 'native' ? (
+                    ' (native LAPACK backend)'
+                  ) : (
+                    <>
+                      {' '}
+                      (JavaScript backend; the native one takes <span className="figures">{limits.byBackend.native}</span>)
+                    </>
+                  )}
+                  : it holds about seven N×N matrices at once.
+                </>
+              ) : (
+                <>
+                  The dense engine takes at most <span className="figures">{denseLimits.native}</span> elements with the
+                  native backend, <span className="figures">{denseLimits['ml-matrix']}</span> without: it holds about seven
+                  N×N matrices at once.
+                </>
+              )}
             </>
           }
         >
@@ -199,7 +218,7 @@ function NewRunForm() {
                 value={values.count}
                 onChange={(e) => set('count', e.target.value)}
                 error={fe['sprinkling.count']}
-                hint={`2 to ${denseLimitN}.`}
+                hint={`2 to ${limits?.maxN ?? denseLimitN}.`}
               />
             ) : (
               <TextField
