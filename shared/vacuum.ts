@@ -202,6 +202,11 @@ export const vacuumSettingsSchema = z.strictObject({
   subregion: subregionSpecSchema.optional(),
   /** truncate the restricted state again at √n/(4π) before the entropy (Sorkin–Yazdi 2018) */
   doubleTruncation: z.boolean().default(false),
+  /**
+   * dense (N×N matrices, N ≤ 6000), structured (2D non-periodic with sqrtN, lambda or modes: only the
+   * modes above the cut, N ≤ 100 000) or auto (the rule in server/engine/structured/engineChoice.ts)
+   */
+  engine: z.enum(['auto', 'dense', 'structured']).optional(),
 });
 export type VacuumSettings = z.infer<typeof vacuumSettingsSchema>;
 export type VacuumSettingsInput = z.input<typeof vacuumSettingsSchema>;

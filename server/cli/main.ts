@@ -10,7 +10,7 @@ import {
   type RegionKind,
   type RegionSpec,
 } from '../../shared/vacuum';
-import { computeVacuum, EngineInputError, type VacuumRequest, type VacuumResult } from '../engine/index';
+import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type VacuumRequest, type VacuumResult } from '../engine/index';
 import { sprinkle } from '../engine/sprinkle';
 import { ZodError } from 'zod';
 
@@ -40,6 +40,9 @@ needs the density: --density, or --region with its size so the volume is known (
 --poisson: N ~ Poisson(ρV) with mean --n (or with --density RHO instead of --n).
 --double: double truncation (Sorkin–Yazdi); the whole-region rule defaults to sqrtN.
 --backend auto|native|ml-matrix selects the dense linear algebra.
+--engine auto|dense|structured: dense diagonalises N×N matrices (N ≤ 6000 native, 3000 ml-matrix);
+  structured (2D, non-periodic, truncation sqrtN, lambda:X or modes:K) computes only the modes above
+  the cut and accepts N up to 100000; auto [default] takes structured from N = 1000 when it can.
 exit codes: 0 success, 2 bad input, 1 failure.
 `;
 
@@ -59,6 +62,7 @@ const computeOptions = {
   density: { type: 'string' },
   truncation: { type: 'string' },
   backend: { type: 'string' },
+  engine: { type: 'string' },
   json: { type: 'boolean' },
   help: { type: 'boolean', short: 'h' },
 } as const satisfies ParseArgsConfig['options'];
@@ -239,7 +243,10 @@ function vacuumRequest(values: Record<string, string | boolean | undefined>): Va
   }
   const backend = (values.backend as string | undefined) ?? 'auto';
   if (!['auto', 'native', 'ml-matrix'].includes(backend)) throw new UsageError(`--backend must be auto, native or ml-matrix, got "${backend}"`);
+  const engine = (values.engine as string | undefined) ?? 'auto';
+  if (!(engineRequests as readonly string[]).includes(engine)) throw new UsageError(`--engine must be auto, dense or structured, got "${engine}"`);
   return {
+    engine: engine as EngineRequest,
     source: { kind: 'points', points, dimension, density, region: region ?? undefined },
     mass,
     truncation,
@@ -254,6 +261,7 @@ function progressHooks(io: Io) {
 function common(result: VacuumResult) {
   return {
     engineVersion: result.engineVersion,
+    engine: result.engine,
     backend: result.backend,
     N: result.N,
     dimension: result.dimension,
@@ -283,7 +291,7 @@ async function runVacuum(args: string[], io: Io): Promise<void> {
   const d = result.diagnostics;
   io.stdout(
     [
-      `N = ${out.N} (${out.dimension}D), density ${out.density ?? 'unknown'}, mass ${out.mass}, backend ${out.backend}`,
+      `N = ${out.N} (${out.dimension}D), density ${out.density ?? 'unknown'}, mass ${out.mass}, engine ${out.engine}, backend ${out.backend}`,
       `largest eigenvalues of iΔ: ${out.eigenvalues.slice(0, 5).map((v) => v.toPrecision(6)).join(', ')}`,
       `truncation ${out.truncation}: λ_c = ${out.cutoff.toPrecision(6)}, ${out.modesKept} of ${out.eigenvalues.length} positive modes kept`,
       `checks: ‖W−W†‖ ${d.hermiticityError.toExponential(1)}, min eig W ${d.smallestEigenvalue.toExponential(2)} (${d.smallestEigenvalueMethod}), ‖W−W̄−iΔc‖ ${d.commutatorError.toExponential(1)}, ‖WW̄‖ ${d.orthogonalityError.toExponential(1)}, tr W ${d.trace.toPrecision(8)}`,

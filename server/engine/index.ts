@@ -164,12 +164,17 @@ export function checkDenseSize(n: number, maxN: number = DENSE_SIZE_LIMIT.maxN):
   if (n < 2) throw new EngineInputError(`a causal set needs at least 2 elements, got ${n}`);
 }
 
+/** The size limit of the engine the rule picks for a request (structured: STRUCTURED_MAX_N_2D). */
+function sizeLimitFor(request: VacuumRequest): number {
+  return engineForRequest(request, DENSE_SIZE_LIMIT.maxN).engine === 'structured' ? STRUCTURED_MAX_N_2D : DENSE_SIZE_LIMIT.maxN;
+}
+
 /**
  * Validates a request before any work: schemas, consistency (density for massive or 4D fields,
  * subregion dimension) and the dense size limit — for Poisson sprinklings the expected N plus five
  * standard deviations. Throws EngineInputError with a message for the user.
  */
-export function validateVacuumRequest(request: VacuumRequest, maxN: number = DENSE_SIZE_LIMIT.maxN): void {
+export function validateVacuumRequest(request: VacuumRequest, maxN: number = sizeLimitFor(request)): void {
   const fail = (message: string): never => {
     throw new EngineInputError(message);
   };

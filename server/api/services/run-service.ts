@@ -38,6 +38,8 @@ export interface StoredRunRequest {
   reusedPoints?: { runId: string; N: number; density: number | null };
   /** an imported causal set; its elements are copied into the run's row */
   causalSet?: CausalSetReference;
+  /** dense, structured or auto (absent: auto) */
+  engine?: 'auto' | 'dense' | 'structured';
 }
 
 /**
@@ -55,6 +57,7 @@ export function toEngineRequest(
     truncation: request.truncation,
     subregion: request.subregion,
     doubleTruncation: request.doubleTruncation,
+    ...(request.engine ? { engine: request.engine } : {}),
   };
   if (request.causalSet?.kind === 'relations') {
     const imported = request.causalSet;
