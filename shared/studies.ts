@@ -55,11 +55,21 @@ const tipsDiamondSchema = z.strictObject({
   future: eventSchema,
 });
 
+/** A subregion of an imported causal set given by its element labels (0-based, as in the file). */
+const elementListSchema = z.strictObject({
+  label: z.string().trim().min(1).max(40).optional(),
+  indices: z
+    .array(z.number().int({ message: 'element labels are whole numbers' }).min(0, { message: 'element labels start at 0' }))
+    .min(2, { message: 'a subregion needs at least 2 elements' })
+    .refine((i) => new Set(i).size === i.length, { message: 'each element may be listed once' }),
+});
+
 /**
- * Subregions, each a causal diamond:
+ * Subregions, each a causal diamond or, on imported causal sets, a list of elements:
  * - `concentric`: sub-diamonds sharing the centre and axis of the region, with proper time ℓ = f·L for
  *   each fraction f = ℓ/L (2D diamonds, cylinder diamonds and 4D diamonds);
- * - `tips`: sub-diamonds given by their past and future tips.
+ * - `tips`: sub-diamonds given by their past and future tips;
+ * - `elements`: element lists, for imported causal sets (the only choice for a relation list).
  */
 export const studySubregionsSchema = z.discriminatedUnion('kind', [
   z.strictObject({
@@ -74,53 +84,124 @@ export const studySubregionsSchema = z.discriminatedUnion('kind', [
     kind: z.literal('tips'),
     diamonds: z.array(tipsDiamondSchema).min(1, { message: 'give at least one sub-diamond' }).max(12, { message: 'at most 12 sub-diamonds' }),
   }),
+  z.strictObject({
+    kind: z.literal('elements'),
+    lists: z
+      .array(elementListSchema)
+      .min(1, { message: 'give at least one element list' })
+      .max(12, { message: 'at most 12 element lists' }),
+  }),
 ]);
 export type StudySubregions = z.infer<typeof studySubregionsSchema>;
 
 const seedSchema = z.union([z.string().trim().min(1).max(200), z.number().int()]).transform(String);
 
-/** Body of POST /api/studies. */
-export const createStudyRequestSchema = z
+const seedsSchema = z
+  .array(seedSchema)
+  .min(1, { message: 'give at least one seed' })
+  .max(64, { message: 'at most 64 seeds' })
+  .refine((s) => new Set(s).size === s.length, { message: 'seeds must differ' });
+
+const countsSchema = z
+  .array(z.number().int().min(20, { message: 'N must be at least 20' }))
+  .min(1, { message: 'give at least one N' })
+  .max(12, { message: 'at most 12 values of N' })
+  .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' });
+
+const rulesSchema = z
+  .array(studyRuleSchema)
+  .min(1, { message: 'give at least one cut rule' })
+  .max(4, { message: 'at most 4 cut rules' })
+  .refine((r) => new Set(r.map((x) => studyRuleKey({ truncation: x.truncation, doubleTruncation: x.doubleTruncation ?? false }))).size === r.length, {
+    message: 'cut rules must differ',
+  });
+
+const massSchema = z.number().refine((v) => Number.isFinite(v) && v >= 0, { message: 'mass must be ≥ 0' }).default(0);
+
+/** A study over sprinklings of ours: one sprinkling per (N, seed). */
+export const sprinkledStudyRequestSchema = z
   .strictObject({
+    source: z.literal('sprinkled'),
     title: z.string().trim().max(200).optional(),
     region: regionSpecSchema.default({ kind: 'diamond2d', properTime: 2 }),
     process: z.enum(['fixed', 'poisson']).default('fixed'),
     prng: prngSchema.default('arc4'),
     /** element counts (fixed-N) or expected counts (Poisson), one sprinkling per count and seed */
-    counts: z
-      .array(z.number().int().min(20, { message: 'N must be at least 20' }))
-      .min(1, { message: 'give at least one N' })
-      .max(12, { message: 'at most 12 values of N' })
-      .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' }),
-    seeds: z
-      .array(seedSchema)
-      .min(1, { message: 'give at least one seed' })
-      .max(64, { message: 'at most 64 seeds' })
-      .refine((s) => new Set(s).size === s.length, { message: 'seeds must differ' }),
+    counts: countsSchema,
+    seeds: seedsSchema,
     subregions: studySubregionsSchema,
-    rules: z
-      .array(studyRuleSchema)
-      .min(1, { message: 'give at least one cut rule' })
-      .max(4, { message: 'at most 4 cut rules' })
-      .refine((r) => new Set(r.map((x) => studyRuleKey({ truncation: x.truncation, doubleTruncation: x.doubleTruncation ?? false }))).size === r.length, {
-        message: 'cut rules must differ',
-      }),
-    mass: z.number().refine((v) => Number.isFinite(v) && v >= 0, { message: 'mass must be ≥ 0' }).default(0),
+    rules: rulesSchema,
+    mass: massSchema,
+  })
+  .refine((r) => r.subregions.kind !== 'elements', {
+    message: 'element lists are for imported causal sets; give concentric sub-diamonds or tips for sprinklings',
+    path: ['subregions', 'kind'],
   })
   .refine((r) => r.counts.length * r.seeds.length <= STUDY_MAX_CELLS, {
     message: `a study holds at most ${STUDY_MAX_CELLS} sprinklings (N values × seeds)`,
     path: ['seeds'],
   });
-export type CreateStudyRequest = z.infer<typeof createStudyRequestSchema>;
-export type CreateStudyRequestInput = z.input<typeof createStudyRequestSchema>;
+
+/**
+ * A study over imported causal sets (shared/causalSets.ts): each set plays the part of one (N, seed)
+ * sprinkling with its own N, so sets of equal N form the ensemble of that N.
+ */
+export const importedStudyRequestSchema = z.strictObject({
+  source: z.literal('imported'),
+  title: z.string().trim().max(200).optional(),
+  causalSetIds: z
+    .array(z.uuid({ message: 'not a causal set id' }))
+    .min(1, { message: 'pick at least one causal set' })
+    .max(STUDY_MAX_CELLS, { message: `a study holds at most ${STUDY_MAX_CELLS} causal sets` })
+    .refine((ids) => new Set(ids.map((id) => id.toLowerCase())).size === ids.length, { message: 'each causal set may be picked once' }),
+  subregions: studySubregionsSchema,
+  rules: rulesSchema,
+  mass: massSchema,
+});
+
+const studyRequestUnion = z.discriminatedUnion('source', [sprinkledStudyRequestSchema, importedStudyRequestSchema]);
+
+/**
+ * Body of POST /api/studies: `source` "sprinkled" (the default when absent, as before imported sets
+ * existed) or "imported".
+ */
+export const createStudyRequestSchema = z.preprocess(
+  (body) => (body !== null && typeof body === 'object' && !Array.isArray(body) && !('source' in body) ? { ...body, source: 'sprinkled' } : body),
+  studyRequestUnion,
+);
+export type CreateStudyRequest = z.infer<typeof studyRequestUnion>;
+export type CreateStudyRequestInput = z.input<typeof studyRequestUnion>;
+export type SprinkledStudyRequest = z.infer<typeof sprinkledStudyRequestSchema>;
+export type ImportedStudyRequest = z.infer<typeof importedStudyRequestSchema>;
+export type StudySource = CreateStudyRequest['source'];
+
+/**
+ * An imported causal set as a study keeps it: enough to name it in exports and to check the file
+ * (SHA-256) against the one a reader has.
+ */
+export const studyCausalSetSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  fileName: z.string(),
+  checksum: z.string(),
+  kind: z.enum(['coordinates', 'relations']),
+  dimension: z.union([z.literal(2), z.literal(4)]),
+  N: z.number().int(),
+  region: regionSpecSchema.nullable(),
+  density: z.number().nullable(),
+});
+export type StudyCausalSet = z.infer<typeof studyCausalSetSchema>;
 
 /** A subregion as the worker and the exports see it: key, label, ℓ/L when concentric, tips. */
 export const resolvedSubregionSchema = z.object({
   key: z.string(),
   label: z.string(),
   fraction: z.number().nullable(),
-  past: eventSchema,
-  future: eventSchema,
+  /** tips of a sub-diamond; null for an element list */
+  past: eventSchema.nullable(),
+  future: eventSchema.nullable(),
+  /** the element labels of an element-list subregion */
+  elements: z.array(z.number().int()).optional(),
 });
 export type ResolvedSubregion = z.infer<typeof resolvedSubregionSchema>;
 
@@ -207,8 +288,13 @@ export const studySummarySchema = z.object({
   createdAt: z.string(),
   startedAt: z.string().nullable(),
   finishedAt: z.string().nullable(),
+  /** sprinklings of ours, or imported causal sets standing in for them */
+  source: z.enum(['sprinkled', 'imported']),
+  /** the region kind, or "imported" */
   regionKind: z.string(),
+  /** distinct N values (for an imported study, those of its sets) */
   counts: z.array(z.number().int()),
+  /** seeds per N; for an imported study the number of causal sets */
   seedCount: z.number().int(),
   rules: z.array(z.string()),
   subregionCount: z.number().int(),
@@ -244,6 +330,8 @@ export const studyDetailSchema = studySummarySchema.extend({
   error: z.string().nullable(),
   cancelRequested: z.boolean(),
   subregions: z.array(resolvedSubregionSchema),
+  /** the imported causal sets of an imported study, in cell order (a cell's seed is the set's id); empty otherwise */
+  causalSets: z.array(studyCausalSetSchema),
   ruleLabels: z.record(z.string(), z.string()),
   cells: z.array(studyCellSchema),
   aggregates: z.array(studyAggregateSchema),

@@ -1,5 +1,5 @@
 import { EntitySchema } from 'typeorm';
-import type { CellStatus, ResolvedSubregion, StudyStatus } from '@shared/studies';
+import type { CellStatus, ResolvedSubregion, StudyCausalSet, StudyStatus } from '@shared/studies';
 
 /**
  * Scaling studies (issue 5). Like ./entities.ts: EntitySchemas only, the tables are made by the
@@ -16,6 +16,8 @@ export interface StudyRow {
   /** the validated CreateStudyRequest */
   request: Record<string, unknown>;
   subregions: ResolvedSubregion[];
+  /** the imported causal sets of a study over them (cell seeds are their ids); null for sprinklings */
+  causalSets: StudyCausalSet[] | null;
   regionKind: string;
   cellsTotal: number;
   error: string | null;
@@ -44,6 +46,8 @@ export interface StudyCellRow {
   n: number | null;
   result: StudyCellRecord | null;
   eigenvalues: Buffer | null;
+  /** the cell's copy of its imported causal set's stored elements; not selected unless asked for */
+  elements?: Buffer | null;
   error: string | null;
   engineVersion: string | null;
   backend: string | null;
@@ -65,6 +69,7 @@ export const StudyEntity = new EntitySchema<StudyRow>({
     cancelRequested: { type: 'boolean', name: 'cancel_requested', default: false },
     request: { type: 'jsonb' },
     subregions: { type: 'jsonb' },
+    causalSets: { type: 'jsonb', name: 'causal_sets', nullable: true },
     regionKind: { type: 'text', name: 'region_kind' },
     cellsTotal: { type: 'integer', name: 'cells_total' },
     error: { type: 'text', nullable: true },
@@ -88,6 +93,7 @@ export const StudyCellEntity = new EntitySchema<StudyCellRow>({
     n: { type: 'integer', nullable: true },
     result: { type: 'jsonb', nullable: true },
     eigenvalues: { type: 'bytea', nullable: true },
+    elements: { type: 'bytea', nullable: true, select: false },
     error: { type: 'text', nullable: true },
     engineVersion: { type: 'text', name: 'engine_version', nullable: true },
     backend: { type: 'text', nullable: true },

@@ -1,6 +1,6 @@
 import type { ResolvedSubregion, StudyRule } from '../../shared/studies';
 import { studyRuleKey } from '../../shared/studies';
-import type { SprinklingSpecInput, VacuumStage } from '../../shared/vacuum';
+import type { RegionSpec, SprinklingSpecInput, VacuumStage } from '../../shared/vacuum';
 import { sprinklingSpecSchema } from '../../shared/vacuum';
 import { entanglementEntropy, subregionElements } from '../engine/entropy';
 import { retardedGreen } from '../engine/green';
@@ -11,19 +11,31 @@ import {
   ENGINE_VERSION,
   EngineInputError,
   validateVacuumRequest,
+  type PointSource,
   type VacuumHooks,
 } from '../engine/index';
 import { getBackend, type BackendPreference } from '../engine/linalg';
-import { causalMatrix, linkMatrix } from '../engine/order';
+import { BitRelation, causalMatrix, linkMatrix } from '../engine/order';
+import { makeRegion, type Region } from '../engine/regions';
 import { pauliJordan, pauliJordanSpectrum } from '../engine/pauliJordan';
 import { sjState } from '../engine/sjState';
 import { sprinkle } from '../engine/sprinkle';
 import { applyTruncation } from '../engine/truncation';
 import { engineSubregion } from './plan';
 
-/** Everything one sprinkling of a study needs: the points, the field and what to compute on them. */
+/**
+ * An imported causal set as one cell computes on it: its coordinates (with the region it was imported
+ * with, or its density), or its closed relation bit-packed like BitRelation (⌈N/32⌉ words per row).
+ */
+export type ImportedCellSource =
+  | { kind: 'points'; points: Float64Array; dimension: 2 | 4; region: RegionSpec | null; density: number | null }
+  | { kind: 'order'; causal: Uint32Array; count: number; dimension: 2 | 4; density: number | null };
+
+/** Everything one cell of a study needs: the points (a sprinkling or an imported set), the field and what to compute on them. */
 export interface StudyCellSpec {
-  sprinkling: SprinklingSpecInput;
+  /** exactly one of `sprinkling` and `imported` */
+  sprinkling?: SprinklingSpecInput;
+  imported?: ImportedCellSource;
   mass: number;
   subregions: ResolvedSubregion[];
   rules: StudyRule[];
@@ -65,7 +77,8 @@ export interface StudyCellResult {
  */
 export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks = {}): Promise<StudyCellResult> {
   const backend = getBackend(spec.backend ?? 'auto');
-  validateVacuumRequest({ source: { kind: 'sprinkling', sprinkling: spec.sprinkling }, mass: spec.mass }, DENSE_SIZE_LIMIT.maxN);
+  if ((spec.sprinkling === undefined) === (spec.imported === undefined)) throw new EngineInputError('a study cell needs exactly one of a sprinkling and an imported causal set');
+  validateVacuumRequest({ source: cellPointSource(spec), mass: spec.mass }, DENSE_SIZE_LIMIT.maxN);
   const timings: Partial<Record<VacuumStage, number>> = {};
   const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
     if (hooks.shouldCancel?.()) throw new CancelledError(name);
@@ -80,19 +93,30 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
     return value;
   };
 
-  const placed = await stage('sprinkle', () => {
+  const placed = await stage('sprinkle', (): PlacedCell => {
+    if (spec.imported) return placeImported(spec.imported);
     const s = sprinkle(sprinklingSpecSchema.parse(spec.sprinkling));
     checkDenseSize(s.count, DENSE_SIZE_LIMIT.maxN);
-    return s;
+    return { points: s.points, dimension: s.dimension, count: s.count, density: s.density, region: s.region, relation: null, provenance: s.provenance };
   });
   const { points, dimension, region } = placed;
   const size = placed.count;
   const order = await stage('order', () => {
-    const causal = causalMatrix(points, dimension, region.periodX);
+    const causal = placed.relation ?? causalMatrix(points, dimension, region?.periodX);
     return { causal, links: dimension === 4 ? linkMatrix(causal) : undefined };
   });
   const k = await stage('green', () =>
-    retardedGreen({ points, dimension, causal: order.causal, links: order.links, density: placed.density, mass: spec.mass, backend }),
+    retardedGreen({
+      points,
+      dimension,
+      causal: order.causal,
+      links: order.links,
+      density: placed.density ?? undefined,
+      mass: spec.mass,
+      backend,
+      // without coordinates there is no time to sort by; the relation itself gives a linear extension
+      linearExtension: placed.relation && spec.mass > 0 ? linearExtension(placed.relation) : undefined,
+    }),
   );
   const { delta, spectrum } = await stage('spectrum', () => {
     const delta = pauliJordan(k);
@@ -116,9 +140,9 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
   const entropies: StudyCellEntropy[] = [];
   const total = spec.subregions.length * states.length;
   for (const subregion of spec.subregions) {
-    const elements = subregionElements(engineSubregion(subregion), points, dimension, region.periodX);
+    const elements = placed.relation ? listedElements(subregion, size) : subregionElements(engineSubregion(subregion), points, dimension, region?.periodX);
     if (elements.length < 2) {
-      throw new EngineInputError(`${subregion.label} holds ${elements.length} element(s) in this sprinkling; the entropy needs at least 2`);
+      throw new EngineInputError(`${subregion.label} holds ${elements.length} element(s) in this ${spec.imported ? 'causal set' : 'sprinkling'}; the entropy needs at least 2`);
     }
     for (const { rule, key, state } of states) {
       if (hooks.shouldCancel?.()) throw new CancelledError('entropy');
@@ -140,4 +164,67 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
     sprinkling: placed.provenance,
     timings,
   };
+}
+
+interface PlacedCell {
+  points: Float64Array;
+  dimension: 2 | 4;
+  count: number;
+  density: number | null;
+  region: Region | null;
+  /** the closed relation of a set without coordinates */
+  relation: BitRelation | null;
+  provenance: StudyCellResult['sprinkling'];
+}
+
+/** The engine's view of the cell's elements, for validateVacuumRequest. */
+function cellPointSource(spec: StudyCellSpec): PointSource {
+  const imported = spec.imported;
+  if (!imported) return { kind: 'sprinkling', sprinkling: spec.sprinkling! };
+  const density = imported.density !== null ? { density: imported.density } : {};
+  if (imported.kind === 'order') return { kind: 'order', causal: imported.causal, count: imported.count, dimension: imported.dimension, ...density };
+  // with the region, ρ = N/V and a cylinder's periodic x come from it, as for a run on the same set
+  return { kind: 'points', points: imported.points, dimension: imported.dimension, ...(imported.region ? { region: imported.region } : density) };
+}
+
+/** An imported set in place of a sprinkling: coordinates checked against their region, or the relation as given. */
+function placeImported(imported: ImportedCellSource): PlacedCell {
+  if (imported.kind === 'order') {
+    checkDenseSize(imported.count, DENSE_SIZE_LIMIT.maxN);
+    const relation = new BitRelation(imported.count);
+    relation.words.set(imported.causal);
+    return { points: new Float64Array(0), dimension: imported.dimension, count: imported.count, density: imported.density, region: null, relation, provenance: null };
+  }
+  const d = imported.dimension;
+  const count = imported.points.length / d;
+  checkDenseSize(count, DENSE_SIZE_LIMIT.maxN);
+  const region = imported.region ? makeRegion(imported.region) : null;
+  if (region) {
+    for (let i = 0; i < count; i++) {
+      if (!region.contains(imported.points.subarray(i * d, (i + 1) * d))) throw new EngineInputError(`element ${i} lies outside the ${region.spec.kind} region`);
+    }
+  }
+  const density = region ? count / region.volume : imported.density;
+  return { points: imported.points, dimension: d, count, density, region, relation: null, provenance: null };
+}
+
+/**
+ * A labelling that respects ≺ from the relation alone: i ≺ j makes the past of j strictly larger than
+ * the past of i (transitivity), so sorting by past size is a linear extension. The same rule as the
+ * engine's order source (server/engine/index.ts), which keeps its copy private.
+ */
+function linearExtension(causal: BitRelation): Int32Array {
+  const pastSize = new Int32Array(causal.size);
+  causal.forEach((_i, j) => {
+    pastSize[j] += 1;
+  });
+  return Int32Array.from({ length: causal.size }, (_, i) => i).sort((a, b) => pastSize[a]! - pastSize[b]! || a - b);
+}
+
+/** The element list of a subregion on a set without coordinates (a diamond needs coordinates). */
+function listedElements(subregion: ResolvedSubregion, count: number): Int32Array {
+  if (!subregion.elements) throw new EngineInputError(`${subregion.label}: a causal set given by its relation needs the subregion as a list of elements`);
+  const missing = subregion.elements.find((i) => i >= count);
+  if (missing !== undefined) throw new EngineInputError(`${subregion.label}: element ${missing} does not exist (the causal set has ${count} elements)`);
+  return Int32Array.from(new Set(subregion.elements)).sort();
 }

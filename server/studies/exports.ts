@@ -1,4 +1,4 @@
-import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyEntropy, StudyFit, StudyStatus } from '../../shared/studies';
+import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyStatus } from '../../shared/studies';
 import { studyRuleKey, studyRuleLabel } from '../../shared/studies';
 import type { RegionSpec } from '../../shared/vacuum';
 
@@ -11,6 +11,8 @@ export interface StudyExportInput {
   createdAt: string;
   finishedAt: string | null;
   request: CreateStudyRequest;
+  /** the imported causal sets of a study over them, in cell order; empty for sprinklings */
+  causalSets: StudyCausalSet[];
   subregions: ResolvedSubregion[];
   entropies: StudyEntropy[];
   aggregates: StudyAggregate[];
@@ -123,6 +125,11 @@ function seedList(seeds: string[]): string {
   return seeds.length > 6 ? `${shown}, \\dots` : shown;
 }
 
+function importedSetList(sets: StudyCausalSet[]): string {
+  const shown = sets.slice(0, 4).map((c) => `${escapeLatex(c.name)}, \\texttt{${escapeLatex(c.fileName)}}, SHA-256 \\texttt{${c.checksum.slice(0, 12)}}\\dots`).join('; ');
+  return sets.length > 4 ? `${shown}; \\dots` : shown;
+}
+
 const subregionLatex = (s: ResolvedSubregion) => (s.fraction !== null ? `${s.fraction}` : escapeLatex(s.label));
 
 /**
@@ -141,12 +148,16 @@ export function latexTable(input: StudyExportInput): string {
   lines.push('% Needs \\usepackage{booktabs} in the preamble.');
   lines.push('\\begin{table}[htbp]');
   lines.push('  \\centering');
+  const what = concentric ? 'concentric sub-diamonds of size $\\ell/L$' : input.subregions.every((s) => s.elements) ? 'listed subsets of elements' : 'sub-diamonds';
   const caption = [
     input.title ? `${escapeLatex(input.title)}. ` : '',
-    `Spacetime entanglement entropy $S$ of ${concentric ? 'concentric sub-diamonds of size $\\ell/L$' : 'sub-diamonds'} in ${regionText(request.region)}, `,
-    `${request.process === 'fixed' ? 'fixed-$N$' : 'Poisson'} sprinklings (PRNG seedrandom ${escapeLatex(request.prng)}) with $N \\in \\{${[...request.counts].sort((a, b) => a - b).join(', ')}\\}$, `,
-    `${request.seeds.length} seed${request.seeds.length === 1 ? '' : 's'} per $N$ (${seedList(request.seeds)}), field mass $m = ${request.mass}$. `,
-    `Means over seeds with their standard errors; $\\langle n \\rangle$ is the mean number of elements in the subregion. `,
+    request.source === 'sprinkled'
+      ? `Spacetime entanglement entropy $S$ of ${what} in ${regionText(request.region)}, ` +
+        `${request.process === 'fixed' ? 'fixed-$N$' : 'Poisson'} sprinklings (PRNG seedrandom ${escapeLatex(request.prng)}) with $N \\in \\{${[...request.counts].sort((a, b) => a - b).join(', ')}\\}$, ` +
+        `${request.seeds.length} seed${request.seeds.length === 1 ? '' : 's'} per $N$ (${seedList(request.seeds)}), field mass $m = ${request.mass}$. `
+      : `Spacetime entanglement entropy $S$ of ${what} of ${input.causalSets.length} imported causal set${input.causalSets.length === 1 ? '' : 's'} ` +
+        `(${importedSetList(input.causalSets)}) with $N \\in \\{${[...new Set(input.causalSets.map((c) => c.N))].sort((a, b) => a - b).join(', ')}\\}$, field mass $m = ${request.mass}$. `,
+    `Means over ${request.source === 'sprinkled' ? 'seeds' : 'the causal sets of each $N$'} with their standard errors; $\\langle n \\rangle$ is the mean number of elements in the subregion. `,
     `Rules: ${request.rules.map((r) => `${latexRule(studyRuleKey(r))} (${escapeLatex(studyRuleLabel(r))})`).join('; ')}.`,
   ].join('');
   lines.push(`  \\caption{${caption}}`);
@@ -369,12 +380,15 @@ function regionPlain(region: RegionSpec): string {
  */
 export function methodsParagraph(input: StudyExportInput): string {
   const { request } = input;
-  const counts = [...request.counts].sort((a, b) => a - b);
   const subregions = request.subregions;
   const sizes =
     subregions.kind === 'concentric'
       ? `concentric sub-diamonds with ℓ/L ∈ {${subregions.fractions.join(', ')}}`
-      : `${input.subregions.length} sub-diamond(s) given by their tips`;
+      : subregions.kind === 'tips'
+        ? `${input.subregions.length} sub-diamond(s) given by their tips`
+        : `${input.subregions.length} subregion(s) given as lists of elements`;
+  const ensemble = request.source === 'sprinkled' ? request.seeds.length : input.causalSets.length;
+  const unit = request.source === 'sprinkled' ? 'sprinkling' : 'causal set';
   const ruleTexts = request.rules.map((r) => {
     if (r.truncation.rule === 'none' && !r.doubleTruncation) return 'without truncation (only the numerical kernel of the restricted Pauli–Jordan operator, below 10⁻⁶ of its largest eigenvalue, is dropped)';
     const whole = r.truncation.rule === 'sqrtN' ? `truncating the SJ state of the whole region at λ_c = √N/(4π) ${cite('sorkin2018')}` : `truncating the SJ state of the whole region with the rule ${studyRuleKey({ truncation: r.truncation })}`;
@@ -383,12 +397,20 @@ export function methodsParagraph(input: StudyExportInput): string {
   const versions = [...new Set(input.cells.map((c) => c.engineVersion).filter((v): v is string => v !== null))];
   const backends = [...new Set(input.cells.map((c) => c.backend).filter((v): v is string => v !== null))];
   const mass = request.mass > 0 ? `a free scalar field of mass m = ${request.mass}, with the massive retarded Green function K_m = K(I + (m²/ρ)K)⁻¹` : 'a massless free scalar field';
+  const sets = input.causalSets;
+  const setCounts = [...new Set(sets.map((c) => c.N))].sort((a, b) => a - b);
+  const origin =
+    request.source === 'sprinkled'
+      ? `We sprinkled ${request.process === 'fixed' ? 'exactly N points (the fixed-N variant of the Poisson process)' : 'points by a Poisson process of expected number N'} ${cite('bombelli1987')} into ${regionPlain(request.region)}, for N ∈ {${[...request.counts].sort((a, b) => a - b).join(', ')}} and ${request.seeds.length} independent seed${request.seeds.length === 1 ? '' : 's'} per N (pseudo-random generator seedrandom ${request.prng}; every seed is listed in the JSON export, so each sprinkling can be reproduced exactly).`
+      : `We used ${sets.length} causal set${sets.length === 1 ? '' : 's'} generated outside Tacet and imported as ${[...new Set(sets.map((c) => (c.kind === 'coordinates' ? 'coordinate files' : 'relation lists')))].join(' and ')}, with N ∈ {${setCounts.join(', ')}} (${sets
+          .map((c) => `${c.name}: ${c.fileName}, N = ${c.N}${c.region ? `, in ${regionPlain(c.region)}` : c.density !== null ? `, ρ = ${c.density}` : ''}`)
+          .join('; ')}); the JSON export lists the SHA-256 checksum of every file, so each input can be checked.`;
   const text = [
-    `We sprinkled ${request.process === 'fixed' ? 'exactly N points (the fixed-N variant of the Poisson process)' : 'points by a Poisson process of expected number N'} ${cite('bombelli1987')} into ${regionPlain(request.region)}, for N ∈ {${counts.join(', ')}} and ${request.seeds.length} independent seed${request.seeds.length === 1 ? '' : 's'} per N (pseudo-random generator seedrandom ${request.prng}; every seed is listed in the JSON export, so each sprinkling can be reproduced exactly).`,
+    origin,
     `On each causal set we built the retarded Green function of ${mass} ${cite('johnston2008', 'johnston2009')}, the Pauli–Jordan operator iΔ = i(K − Kᵀ), and the Sorkin–Johnston state as the positive spectral part of iΔ ${cite('sorkin2011', 'afshordi2012')}, from one real symmetric eigendecomposition of ΔᵀΔ.`,
     `For ${sizes} we computed Sorkin's spacetime entanglement entropy S = Σ μ ln|μ| from the generalised eigenvalue problem W_O v = μ iΔ_O v restricted to the subregion ${cite('sorkin2012', 'saravani2014')}, ${ruleTexts.join('; and ')}.`,
-    `For each N, subregion and rule we report the mean over seeds of S and of the number n of elements in the subregion, with the standard error of the mean, and fit by weighted least squares (weights 1/σ² from the standard errors) S = b ln √n + c and S = a n + c′. In the continuum a free boson gives b = 1/3 ${cite('calabrese2004')}; on causal sets this is recovered only after double truncation, while the untruncated entropy follows a spacetime volume law ${cite('saravani2014', 'sorkin2018')}.`,
-    `Cautions: these are finite causal sets, so finite-size and finite-density effects bias the fitted coefficients, most at small n; the truncation rule is a modelling choice that changes the numbers, and a different cut gives a different b; and the quoted values are ensemble means over ${request.seeds.length} sprinkling${request.seeds.length === 1 ? '' : 's'} per point, whose single realisations scatter by a few tenths.`,
+    `For each N, subregion and rule we report the mean over ${request.source === 'sprinkled' ? 'seeds' : 'the causal sets of that N'} of S and of the number n of elements in the subregion, with the standard error of the mean, and fit by weighted least squares (weights 1/σ² from the standard errors) S = b ln √n + c and S = a n + c′. In the continuum a free boson gives b = 1/3 ${cite('calabrese2004')}; on causal sets this is recovered only after double truncation, while the untruncated entropy follows a spacetime volume law ${cite('saravani2014', 'sorkin2018')}.`,
+    `Cautions: these are finite causal sets, so finite-size and finite-density effects bias the fitted coefficients, most at small n; the truncation rule is a modelling choice that changes the numbers, and a different cut gives a different b; and the quoted values are ensemble means over ${ensemble} ${unit}${ensemble === 1 ? '' : 's'} in all, whose single realisations scatter by a few tenths.`,
     `Computed with ${versions.join(', ') || 'the Tacet engine'} (linear algebra: ${backends.join(', ') || 'not recorded'}); study ${input.id}.`,
   ];
   return text.join(' ') + '\n';
@@ -408,14 +430,17 @@ export function provenanceJson(input: StudyExportInput, exportedAt: Date = new D
       finishedAt: input.finishedAt,
     },
     request: input.request,
-    seeds: input.request.seeds,
+    source: input.request.source,
+    seeds: input.request.source === 'sprinkled' ? input.request.seeds : null,
+    /** the imported sets in cell order: a cell's seed is its set's id */
+    causalSets: input.request.source === 'imported' ? input.causalSets : null,
     rules: input.request.rules.map((r) => ({ key: studyRuleKey(r), label: studyRuleLabel(r), truncation: r.truncation, doubleTruncation: r.doubleTruncation })),
     subregions: input.subregions,
     engine: {
       versions: [...new Set(input.cells.map((c) => c.engineVersion).filter((v) => v !== null))],
       backends: [...new Set(input.cells.map((c) => c.backend).filter((v) => v !== null))],
-      prng: `seedrandom.${input.request.prng}`,
-      process: input.request.process,
+      prng: input.request.source === 'sprinkled' ? `seedrandom.${input.request.prng}` : null,
+      process: input.request.source === 'sprinkled' ? input.request.process : 'imported',
     },
     cells: input.cells,
     entropies: input.entropies,

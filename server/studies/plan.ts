@@ -1,7 +1,8 @@
-import type { CreateStudyRequest, ResolvedSubregion } from '../../shared/studies';
+import type { CreateStudyRequest, ImportedStudyRequest, ResolvedSubregion, SprinkledStudyRequest, StudyCausalSet } from '../../shared/studies';
 import { STUDY_MIN_SUBREGION_ELEMENTS, studyRuleKey, studyRuleLabel } from '../../shared/studies';
 import type { Event, RegionSpec, SprinklingSpecInput, SubregionSpec } from '../../shared/vacuum';
-import { makeRegion } from '../engine/regions';
+import { subregionElements } from '../engine/entropy';
+import { makeRegion, type Region } from '../engine/regions';
 
 /** A study request that cannot be computed as asked; the message is meant for the user. */
 export class StudyPlanError extends Error {
@@ -58,11 +59,32 @@ export function diamondVolume(tips: Tips): number {
 
 const formatFraction = (f: number) => String(Number(f.toPrecision(6)));
 
+function tipsProblem(d: Tips, dimension: 2 | 4, region: Region | null): string | null {
+  if (('y' in d.past ? 4 : 2) !== dimension || ('y' in d.future ? 4 : 2) !== dimension) {
+    return `the tips must have ${dimension === 2 ? 't, x' : 't, x, y, z'} coordinates like the ${region ? 'region' : 'points'}`;
+  }
+  if (diamondVolume(d) === 0) return 'the future tip must lie strictly inside the future light cone of the past tip';
+  if (region) {
+    // tips nudged inwards along the axis, so a tip on the region's boundary still counts as inside
+    const inner = concentricTips(d, 1 - 1e-9);
+    if (!region.contains(coordinates(inner.past)) || !region.contains(coordinates(inner.future))) return 'both tips must lie in the region';
+  }
+  return null;
+}
+
+function tipsSubregions(subregions: Extract<CreateStudyRequest['subregions'], { kind: 'tips' }>, dimension: 2 | 4, region: Region | null): ResolvedSubregion[] {
+  return subregions.diamonds.map((d, k) => {
+    const problem = tipsProblem(d, dimension, region);
+    if (problem) throw new StudyPlanError(problem, `subregions.diamonds.${k}`);
+    return { key: `d${k + 1}`, label: d.label ?? `sub-diamond ${k + 1}`, fraction: null, past: d.past, future: d.future };
+  });
+}
+
 /**
  * The study's subregions with stable keys: `l/L=0.5` for concentric ones (in the order given), `d1`,
  * `d2`, … for diamonds by tips. Throws StudyPlanError when they do not fit the region.
  */
-export function resolveSubregions(request: Pick<CreateStudyRequest, 'region' | 'subregions'>): ResolvedSubregion[] {
+export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' | 'subregions'>): ResolvedSubregion[] {
   const region = makeRegion(request.region);
   const subregions = request.subregions;
   if (subregions.kind === 'concentric') {
@@ -70,30 +92,77 @@ export function resolveSubregions(request: Pick<CreateStudyRequest, 'region' | '
     if (!tips) throw new StudyPlanError('concentric sub-diamonds need a diamond region; give sub-diamonds by their tips for a slab', 'subregions.kind');
     return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/L = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
   }
-  return subregions.diamonds.map((d, k) => {
-    const path = `subregions.diamonds.${k}`;
-    const dimension = 'y' in d.past ? 4 : 2;
-    if (dimension !== region.dimension || ('y' in d.future ? 4 : 2) !== dimension) {
-      throw new StudyPlanError(`the tips must have ${region.dimension === 2 ? 't, x' : 't, x, y, z'} coordinates like the region`, path);
+  if (subregions.kind === 'elements') throw new StudyPlanError('element lists are for imported causal sets', 'subregions.kind');
+  return tipsSubregions(subregions, region.dimension, region);
+}
+
+/** An imported causal set as planning sees it: its reference and, for a coordinates file, its points. */
+export interface PlannedCausalSet {
+  reference: StudyCausalSet;
+  /** flat coordinates; null for a relation list */
+  points: Float64Array | null;
+}
+
+const sameRegion = (a: RegionSpec | null, b: RegionSpec | null) => a !== null && b !== null && JSON.stringify(a) === JSON.stringify(b);
+
+/**
+ * Subregions of a study over imported causal sets. Concentric sub-diamonds need every set to be
+ * coordinates imported with the same diamond region (ℓ/L is relative to it); sub-diamonds by tips
+ * need coordinates of one dimension (checked against the region when the sets share one); element
+ * lists (keys `e1`, `e2`, …) fit any set with enough elements and are the only choice for relation lists.
+ */
+export function resolveImportedSubregions(request: Pick<ImportedStudyRequest, 'subregions'>, sets: PlannedCausalSet[]): ResolvedSubregion[] {
+  const subregions = request.subregions;
+  const dimension = sets[0]!.reference.dimension;
+  const other = sets.find((s) => s.reference.dimension !== dimension);
+  if (other) throw new StudyPlanError(`the causal sets mix ${dimension}D and ${other.reference.dimension}D ("${other.reference.name}"); a study takes one dimension`, 'causalSetIds');
+  if (subregions.kind === 'elements') {
+    const smallest = sets.reduce((best, s) => (s.reference.N < best.reference.N ? s : best), sets[0]!);
+    return subregions.lists.map((list, k) => {
+      const indices = [...list.indices].sort((a, b) => a - b);
+      const beyond = indices.find((i) => i >= smallest.reference.N);
+      if (beyond !== undefined) {
+        throw new StudyPlanError(
+          `element ${beyond} does not exist in "${smallest.reference.name}", which has ${smallest.reference.N} elements (labels 0 to ${smallest.reference.N - 1})`,
+          `subregions.lists.${k}.indices`,
+        );
+      }
+      return { key: `e${k + 1}`, label: list.label ?? `elements ${k + 1}`, fraction: null, past: null, future: null, elements: indices };
+    });
+  }
+  const relational = sets.find((s) => s.reference.kind !== 'coordinates' || !s.points);
+  if (relational) {
+    throw new StudyPlanError(
+      `"${relational.reference.name}" is a relation list without coordinates; give the subregions as element lists`,
+      'subregions.kind',
+    );
+  }
+  const common = sets.every((s) => sameRegion(s.reference.region, sets[0]!.reference.region)) ? sets[0]!.reference.region : null;
+  if (subregions.kind === 'concentric') {
+    const without = sets.find((s) => s.reference.region === null);
+    if (without) {
+      throw new StudyPlanError(
+        `concentric sub-diamonds need the region the points lie in; "${without.reference.name}" was imported with a density only: give tips or element lists`,
+        'subregions.kind',
+      );
     }
-    if (diamondVolume(d) === 0) throw new StudyPlanError('the future tip must lie strictly inside the future light cone of the past tip', path);
-    // tips nudged inwards along the axis, so a tip on the region's boundary still counts as inside
-    const inner = concentricTips(d, 1 - 1e-9);
-    if (!region.contains(coordinates(inner.past)) || !region.contains(coordinates(inner.future))) {
-      throw new StudyPlanError('both tips must lie in the region', path);
-    }
-    return { key: `d${k + 1}`, label: d.label ?? `sub-diamond ${k + 1}`, fraction: null, past: d.past, future: d.future };
-  });
+    if (!common) throw new StudyPlanError('concentric sub-diamonds need every causal set imported with the same region; give tips or element lists', 'subregions.kind');
+    return resolveSubregions({ region: common, subregions });
+  }
+  return tipsSubregions(subregions, dimension, common ? makeRegion(common) : null);
 }
 
 /** The subregion as the engine takes it. */
 export function engineSubregion(subregion: ResolvedSubregion): SubregionSpec {
+  if (subregion.elements) return { kind: 'elements', indices: subregion.elements };
+  if (!subregion.past || !subregion.future) throw new Error(`subregion ${subregion.key} has neither tips nor elements`);
   return { kind: 'diamond', past: subregion.past, future: subregion.future };
 }
 
 /** Expected elements of a subregion at N elements in the region: N × (volume ratio). */
-export function expectedSubregionElements(request: Pick<CreateStudyRequest, 'region'>, subregion: ResolvedSubregion, count: number): number {
-  return (count * diamondVolume(subregion)) / makeRegion(request.region).volume;
+export function expectedSubregionElements(request: Pick<SprinkledStudyRequest, 'region'>, subregion: ResolvedSubregion, count: number): number {
+  if (!subregion.past || !subregion.future) throw new Error(`subregion ${subregion.key} is not a diamond`);
+  return (count * diamondVolume({ past: subregion.past, future: subregion.future })) / makeRegion(request.region).volume;
 }
 
 /** One sprinkling of the study: requested count and seed, in the order the jobs are queued. */
@@ -108,7 +177,7 @@ export interface PlannedCell {
  * arrive early and partial aggregates cover every N soon. Checks each subregion holds at least
  * STUDY_MIN_SUBREGION_ELEMENTS elements on average at the smallest N.
  */
-export function planCells(request: CreateStudyRequest, subregions: ResolvedSubregion[]): PlannedCell[] {
+export function planCells(request: SprinkledStudyRequest, subregions: ResolvedSubregion[]): PlannedCell[] {
   const counts = [...request.counts].sort((a, b) => a - b);
   const smallest = counts[0]!;
   subregions.forEach((s, k) => {
@@ -126,8 +195,33 @@ export function planCells(request: CreateStudyRequest, subregions: ResolvedSubre
   return cells;
 }
 
+/**
+ * The cells of a study over imported causal sets: one per set, its seed the set's id, smallest N
+ * first (sets of equal N in the order picked). Checks that every diamond subregion holds at least
+ * STUDY_MIN_SUBREGION_ELEMENTS elements in every set, counting them on the set's own points.
+ */
+export function planImportedCells(sets: PlannedCausalSet[], subregions: ResolvedSubregion[]): PlannedCell[] {
+  const ordered = sets.map((s, k) => ({ s, k })).sort((a, b) => a.s.reference.N - b.s.reference.N || a.k - b.k);
+  for (const { s } of ordered) {
+    if (!s.points) continue;
+    const periodX = s.reference.region ? makeRegion(s.reference.region).periodX : undefined;
+    subregions.forEach((sub, k) => {
+      if (sub.elements) return;
+      const held = subregionElements(engineSubregion(sub), s.points!, s.reference.dimension, periodX).length;
+      if (held < STUDY_MIN_SUBREGION_ELEMENTS) {
+        const path = sub.fraction !== null ? `subregions.fractions.${k}` : `subregions.diamonds.${k}`;
+        throw new StudyPlanError(
+          `${sub.label} holds ${held} element${held === 1 ? '' : 's'} of "${s.reference.name}" (N = ${s.reference.N}); at least ${STUDY_MIN_SUBREGION_ELEMENTS} are needed for an entropy`,
+          path,
+        );
+      }
+    });
+  }
+  return ordered.map(({ s }, position) => ({ position, count: s.reference.N, seed: s.reference.id }));
+}
+
 /** The sprinkling of one cell. */
-export function cellSprinkling(request: Pick<CreateStudyRequest, 'region' | 'process' | 'prng'>, count: number, seed: string): SprinklingSpecInput {
+export function cellSprinkling(request: Pick<SprinkledStudyRequest, 'region' | 'process' | 'prng'>, count: number, seed: string): SprinklingSpecInput {
   return { region: request.region, process: request.process, count, seed, prng: request.prng };
 }
 

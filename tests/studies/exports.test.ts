@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { createStudyRequestSchema, type StudyEntropy } from '@shared/studies';
+import { createStudyRequestSchema, type SprinkledStudyRequest, type StudyEntropy } from '@shared/studies';
 import { aggregateEntropies, fitAggregates } from '../../server/studies/aggregate';
 import {
   aggregatesCsv,
@@ -22,7 +22,7 @@ const request = createStudyRequestSchema.parse({
   seeds: ['a,1', 'b'],
   subregions: { kind: 'concentric', fractions: [0.5] },
   rules: [{ truncation: { rule: 'none' } }, { truncation: { rule: 'sqrtN' }, doubleTruncation: true }],
-});
+}) as SprinkledStudyRequest;
 
 function input(): StudyExportInput {
   const entropies: StudyEntropy[] = [];
@@ -41,7 +41,7 @@ function input(): StudyExportInput {
   const aggregates = aggregateEntropies(entropies);
   return {
     id: '0123abcd-0000-4000-8000-000000000000', title: request.title!, status: 'done', author: 'Tomas Okafor',
-    createdAt: '2026-01-01T00:00:00.000Z', finishedAt: '2026-01-01T00:01:00.000Z', request,
+    createdAt: '2026-01-01T00:00:00.000Z', finishedAt: '2026-01-01T00:01:00.000Z', request, causalSets: [],
     subregions: resolveSubregions(request), entropies, aggregates, fits: fitAggregates(aggregates),
     cells: [{ id: '200-a,1', N: 200, seed: 'a,1', status: 'done', elements: 200, backend: 'native', engineVersion: 'tacet-engine 0.1.0', startedAt: null, finishedAt: null, timings: { spectrum: 0.1 }, states: [], error: null }],
   };

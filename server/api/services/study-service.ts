@@ -1,22 +1,29 @@
 import type { Queue } from 'bullmq';
 import type { DataSource } from 'typeorm';
+import { gunzipSync } from 'node:zlib';
+import { In, type EntityManager } from 'typeorm';
 import { ZodError } from 'zod';
 import {
   createStudyRequestSchema,
   studyRuleKey,
   type CreateStudyRequest,
+  type ImportedStudyRequest,
+  type StudyCausalSet,
   type StudyDetail,
   type StudyEntropy,
   type StudyExportFormat,
   type StudySpectrum,
   type StudySummary,
 } from '@shared/studies';
+import { unpackPoints } from '../../causalSets/parse';
 import { decodeFloat64 } from '../../db/arrays';
+import { CausalSetEntity } from '../../db/causal-set-entities';
 import type { UserRow } from '../../db/entities';
 import * as studies from '../../db/repositories/studies';
 import type { StudyWithAuthor, StudyProgressCounts } from '../../db/repositories/studies';
 import type { StudyCellRow } from '../../db/study-entities';
 import { EngineInputError, validateVacuumRequest } from '../../engine/index';
+import { decodeRelationWords } from './causal-set-service';
 import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
 import {
   aggregatesCsv,
@@ -27,7 +34,16 @@ import {
   tidyCsv,
   type StudyExportInput,
 } from '../../studies/exports';
-import { cellSprinkling, planCells, resolveSubregions, ruleLabels, StudyPlanError } from '../../studies/plan';
+import {
+  cellSprinkling,
+  planCells,
+  planImportedCells,
+  resolveImportedSubregions,
+  resolveSubregions,
+  ruleLabels,
+  StudyPlanError,
+  type PlannedCausalSet,
+} from '../../studies/plan';
 import { studyCellJobId, studyCellJobName } from '../../worker/handlers/studyCell';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
@@ -44,8 +60,21 @@ function percentOf(total: number, p: StudyProgressCounts): number {
   return total > 0 ? Math.round((1000 * (finished + p.runningPercent / 100)) / total) / 10 : 0;
 }
 
+/** A stored request from before `source` existed is a study over sprinklings. */
+function storedRequest(row: Pick<StudyWithAuthor, 'request'>): CreateStudyRequest {
+  const request = row.request as Record<string, unknown>;
+  return ('source' in request ? request : { ...request, source: 'sprinkled' }) as unknown as CreateStudyRequest;
+}
+
+function countsAndSeeds(row: Pick<StudyWithAuthor, 'request' | 'causalSets'>): { counts: number[]; seedCount: number } {
+  const request = storedRequest(row);
+  if (request.source === 'sprinkled') return { counts: [...request.counts].sort((a, b) => a - b), seedCount: request.seeds.length };
+  const sets = row.causalSets ?? [];
+  return { counts: [...new Set(sets.map((s) => s.N))].sort((a, b) => a - b), seedCount: sets.length };
+}
+
 export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCounts): StudySummary {
-  const request = row.request as unknown as CreateStudyRequest;
+  const request = storedRequest(row);
   return {
     id: row.id,
     title: row.title,
@@ -54,9 +83,9 @@ export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCoun
     createdAt: row.createdAt.toISOString(),
     startedAt: row.startedAt ? row.startedAt.toISOString() : null,
     finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
+    source: request.source,
     regionKind: row.regionKind,
-    counts: [...request.counts].sort((a, b) => a - b),
-    seedCount: request.seeds.length,
+    ...countsAndSeeds(row),
     rules: request.rules.map((r) => studyRuleKey(r)),
     subregionCount: row.subregions.length,
     progress: {
@@ -97,6 +126,60 @@ export function entropiesOf(row: Pick<StudyWithAuthor, 'subregions'>, cells: Stu
   return out;
 }
 
+/** EngineInputError → 422 with the cell it is about; the dense limit gets its own code. */
+function engineCheck(what: string, request: Parameters<typeof validateVacuumRequest>[0]): void {
+  try {
+    validateVacuumRequest(request);
+  } catch (error) {
+    if (error instanceof EngineInputError) {
+      const tooLarge = /exceeds the dense limit/.test(error.message);
+      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `${what}: ${error.message}`);
+    }
+    throw error;
+  }
+}
+
+interface LoadedStudySet {
+  reference: StudyCausalSet;
+  /** the stored elements as causal_sets keeps them; each cell takes a copy */
+  elements: Buffer;
+  points: Float64Array | null;
+  relationWords: Uint32Array | null;
+}
+
+/** The picked causal sets of the team in the order picked; an id the team does not have is a field error. */
+async function loadStudySets(m: EntityManager, teamId: string, ids: string[]): Promise<LoadedStudySet[]> {
+  const keys = ids.map((id) => id.toLowerCase());
+  const rows = await m.find(CausalSetEntity, {
+    where: { teamId, id: In(keys) },
+    select: { id: true, name: true, kind: true, dimension: true, n: true, region: true, density: true, fileName: true, checksum: true, elements: true },
+  });
+  const byId = new Map(rows.map((r) => [r.id, r]));
+  return keys.map((id, k) => {
+    const row = byId.get(id);
+    if (!row) {
+      throw new ZodError([{ code: 'custom', path: ['causalSetIds', k], message: `no imported causal set ${ids[k]} exists in this team`, input: undefined }]);
+    }
+    const reference: StudyCausalSet = {
+      id: row.id,
+      name: row.name,
+      fileName: row.fileName,
+      checksum: row.checksum,
+      kind: row.kind,
+      dimension: row.dimension,
+      N: row.n,
+      region: row.region,
+      density: row.density,
+    };
+    return {
+      reference,
+      elements: row.elements,
+      points: row.kind === 'coordinates' ? unpackPoints(gunzipSync(row.elements)) : null,
+      relationWords: row.kind === 'relations' ? decodeRelationWords(row.elements, row.n) : null,
+    };
+  });
+}
+
 export type StudyService = ReturnType<typeof createStudyService>;
 
 export function createStudyService(deps: { dataSource: DataSource; computeQueue: Queue }) {
@@ -127,7 +210,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     for (const c of cells) if (c.status === 'done' && !firstPerN.has(c.requestedN)) firstPerN.set(c.requestedN, c);
     const chosen = [...firstPerN.values()].sort((a, b) => a.requestedN - b.requestedN);
     const stored = await studies.eigenvaluesOfCells(m, chosen.map((c) => c.id));
-    const request = row.request as unknown as CreateStudyRequest;
+    const request = storedRequest(row);
     const cutting = new Set(request.rules.filter((r) => r.truncation.rule !== 'none').map((r) => studyRuleKey(r)));
     return chosen
       .filter((c) => stored.has(c.id))
@@ -151,7 +234,8 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       author: row.authorName,
       createdAt: row.createdAt.toISOString(),
       finishedAt: row.finishedAt ? row.finishedAt.toISOString() : null,
-      request: row.request as unknown as CreateStudyRequest,
+      request: storedRequest(row),
+      causalSets: row.causalSets ?? [],
       subregions: row.subregions,
       entropies,
       aggregates,
@@ -173,41 +257,79 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     };
   }
 
+  async function insertSprinkled(team: TeamContext, author: UserRow, request: Extract<CreateStudyRequest, { source: 'sprinkled' }>) {
+    let subregions;
+    let cells;
+    try {
+      subregions = resolveSubregions(request);
+      cells = planCells(request, subregions);
+    } catch (error) {
+      if (error instanceof StudyPlanError) throw planIssue(error);
+      throw error;
+    }
+    for (const count of new Set(request.counts)) {
+      engineCheck(`N = ${count}`, { source: { kind: 'sprinkling', sprinkling: cellSprinkling(request, count, request.seeds[0]!) }, mass: request.mass });
+    }
+    return studies.insertStudyWithCells(
+      m,
+      {
+        teamId: team.id,
+        authorId: author.id,
+        title: request.title || null,
+        request: request as unknown as Record<string, unknown>,
+        subregions,
+        regionKind: request.region.kind,
+      },
+      cells.map((c) => ({ position: c.position, requestedN: c.count, seed: c.seed })),
+    );
+  }
+
+  /**
+   * A study over imported causal sets of the team: every set is loaded and checked like a run on it
+   * would be, and each cell gets its own copy of its set's stored elements.
+   */
+  async function insertImported(team: TeamContext, author: UserRow, request: ImportedStudyRequest) {
+    const loaded = await loadStudySets(m, team.id, request.causalSetIds);
+    const planned: PlannedCausalSet[] = loaded.map((l) => ({ reference: l.reference, points: l.points }));
+    let subregions;
+    let cells;
+    try {
+      subregions = resolveImportedSubregions(request, planned);
+      cells = planImportedCells(planned, subregions);
+    } catch (error) {
+      if (error instanceof StudyPlanError) throw planIssue(error);
+      throw error;
+    }
+    for (const l of loaded) {
+      const r = l.reference;
+      const density = r.density !== null ? { density: r.density } : {};
+      const source =
+        r.kind === 'relations'
+          ? { kind: 'order' as const, causal: l.relationWords!, count: r.N, dimension: r.dimension, ...density }
+          : { kind: 'points' as const, points: l.points!, dimension: r.dimension, ...(r.region ? { region: r.region } : density) };
+      engineCheck(`"${r.name}"`, { source, mass: request.mass });
+    }
+    const byId = new Map(loaded.map((l) => [l.reference.id, l]));
+    const ordered = cells.map((c) => byId.get(c.seed)!);
+    return studies.insertStudyWithCells(
+      m,
+      {
+        teamId: team.id,
+        authorId: author.id,
+        title: request.title || null,
+        request: { ...request, causalSetIds: request.causalSetIds.map((id) => id.toLowerCase()) } as unknown as Record<string, unknown>,
+        subregions,
+        regionKind: 'imported',
+        causalSets: ordered.map((l) => l.reference),
+      },
+      cells.map((c, k) => ({ position: c.position, requestedN: c.count, seed: c.seed, elements: ordered[k]!.elements })),
+    );
+  }
+
   return {
     async create(team: TeamContext, author: UserRow, body: unknown): Promise<{ id: string }> {
       const request = createStudyRequestSchema.parse(body);
-      let subregions;
-      let cells;
-      try {
-        subregions = resolveSubregions(request);
-        cells = planCells(request, subregions);
-      } catch (error) {
-        if (error instanceof StudyPlanError) throw planIssue(error);
-        throw error;
-      }
-      for (const count of new Set(request.counts)) {
-        try {
-          validateVacuumRequest({ source: { kind: 'sprinkling', sprinkling: cellSprinkling(request, count, request.seeds[0]!) }, mass: request.mass });
-        } catch (error) {
-          if (error instanceof EngineInputError) {
-            const tooLarge = /exceeds the dense limit/.test(error.message);
-            throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `N = ${count}: ${error.message}`);
-          }
-          throw error;
-        }
-      }
-      const { id, cellIds } = await studies.insertStudyWithCells(
-        m,
-        {
-          teamId: team.id,
-          authorId: author.id,
-          title: request.title || null,
-          request: request as unknown as Record<string, unknown>,
-          subregions,
-          regionKind: request.region.kind,
-        },
-        cells.map((c) => ({ position: c.position, requestedN: c.count, seed: c.seed })),
-      );
+      const { id, cellIds } = request.source === 'imported' ? await insertImported(team, author, request) : await insertSprinkled(team, author, request);
       try {
         await computeQueue.addBulk(
           cellIds.map((cellId) => ({
@@ -237,7 +359,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       const progress = (await studies.progressOfStudies(m, [row.id])).get(row.id)!;
       const entropies = entropiesOf(row, cells);
       const aggregates = aggregateEntropies(entropies);
-      const request = row.request as unknown as CreateStudyRequest;
+      const request = storedRequest(row);
       const backends = [...new Set(cells.map((c) => c.backend).filter((b): b is string => b !== null))];
       return {
         ...toStudySummary(row, progress),
@@ -245,6 +367,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
         error: row.error,
         cancelRequested: row.cancelRequested,
         subregions: row.subregions,
+        causalSets: row.causalSets ?? [],
         ruleLabels: ruleLabels(request),
         cells: cells.map((c) => ({
           id: c.id,

@@ -5,6 +5,7 @@ import { Studies1764892800000 } from './1764892800000-studies';
 import { RunRelations1764979200000 } from './1764979200000-run-relations';
 import { NotifyDefaultOn1765065600000 } from './1765065600000-notify-default-on';
 import { ApiTokens1765152000000 } from './1765152000000-api-tokens';
+import { StudyCausalSets1765238400000 } from './1765238400000-study-causal-sets';
 
 /**
  * Every migration, oldest first. Add new ones at the end; never edit one that has shipped.
@@ -18,4 +19,5 @@ export const migrations = [
   RunRelations1764979200000,
   NotifyDefaultOn1765065600000,
   ApiTokens1765152000000,
+  StudyCausalSets1765238400000,
 ];

@@ -14,13 +14,13 @@ export interface StudyProgressCounts {
   runningPercent: number;
 }
 
-export type NewStudy = Pick<StudyRow, 'teamId' | 'authorId' | 'title' | 'request' | 'subregions' | 'regionKind'>;
+export type NewStudy = Pick<StudyRow, 'teamId' | 'authorId' | 'title' | 'request' | 'subregions' | 'regionKind'> & Partial<Pick<StudyRow, 'causalSets'>>;
 
 /** The study and its cells in one transaction, so no half-planned study is ever visible. */
 export async function insertStudyWithCells(
   m: EntityManager,
   values: NewStudy,
-  cells: { position: number; requestedN: number; seed: string }[],
+  cells: { position: number; requestedN: number; seed: string; elements?: Buffer | null }[],
 ): Promise<{ id: string; cellIds: string[] }> {
   return m.transaction(async (t) => {
     const study = await t.save(StudyEntity, t.create(StudyEntity, { ...values, status: 'queued', cellsTotal: cells.length }));
@@ -46,6 +46,7 @@ async function withAuthorWhere(m: EntityManager, where: string, parameters: unkn
     cancelRequested: r.cancel_requested as boolean,
     request: r.request as Record<string, unknown>,
     subregions: r.subregions as StudyRow['subregions'],
+    causalSets: (r.causal_sets as StudyRow['causalSets']) ?? null,
     regionKind: r.region_kind as string,
     cellsTotal: r.cells_total as number,
     error: r.error as string | null,
@@ -160,6 +161,12 @@ export async function claimCell(m: EntityManager, cellId: string): Promise<{ cel
   await m.query(`UPDATE studies SET status = 'running', started_at = COALESCE(started_at, now()) WHERE id = $1 AND status = 'queued'`, [cell.studyId]);
   const study = await m.findOneBy(StudyEntity, { id: cell.studyId });
   return study ? { cell, study } : null;
+}
+
+/** A cell's copy of its imported causal set's elements (null for a sprinkled cell). */
+export async function cellElements(m: EntityManager, cellId: string): Promise<Buffer | null> {
+  const rows: { elements: Buffer | null }[] = await m.query(`SELECT elements FROM study_cells WHERE id = $1`, [cellId]);
+  return rows[0]?.elements ?? null;
 }
 
 /** The cell as the worker sees it while computing: gone (study deleted), asked to stop, or carry on. */

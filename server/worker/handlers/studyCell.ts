@@ -1,11 +1,14 @@
+import { gunzipSync } from 'node:zlib';
 import { UnrecoverableError, type Job } from 'bullmq';
-import { createStudyRequestSchema } from '../../../shared/studies';
+import { createStudyRequestSchema, type StudyCausalSet } from '../../../shared/studies';
 import type { VacuumStage } from '../../../shared/vacuum';
 import { encodeFloat64 } from '../../db/arrays';
 import { UserEntity } from '../../db/entities';
 import * as studies from '../../db/repositories/studies';
 import { CancelledError, ENGINE_VERSION, EngineInputError } from '../../engine/index';
-import type { StudyCellResult, StudyCellSpec } from '../../studies/cell';
+import { decodeRelationWords } from '../../api/services/causal-set-service';
+import { unpackPoints } from '../../causalSets/parse';
+import type { ImportedCellSource, StudyCellResult, StudyCellSpec } from '../../studies/cell';
 import { cellSprinkling } from '../../studies/plan';
 import { AbandonedError, runInThread } from '../engineThread';
 import type { JobHandler, WorkerContext } from './index';
@@ -59,6 +62,23 @@ async function closeStudy(context: WorkerContext, studyId: string): Promise<void
   if (status) await notifyAuthor(context, studyId, status);
 }
 
+/** The cell's copy of its imported causal set, decoded as the engine takes it. */
+async function importedSource(
+  context: WorkerContext,
+  sets: StudyCausalSet[] | null,
+  cellId: string,
+  setId: string,
+): Promise<ImportedCellSource> {
+  const set = sets?.find((s) => s.id === setId);
+  if (!set) throw new Error(`the study no longer names the causal set ${setId} of this cell`);
+  const stored = await studies.cellElements(context.dataSource.manager, cellId);
+  if (!stored) throw new Error(`this cell has lost its copy of the causal set "${set.name}"`);
+  if (set.kind === 'relations') {
+    return { kind: 'order', causal: decodeRelationWords(stored, set.N), count: set.N, dimension: set.dimension, density: set.density };
+  }
+  return { kind: 'points', points: unpackPoints(gunzipSync(stored)), dimension: set.dimension, region: set.region, density: set.density };
+}
+
 /**
  * Job `study-cell` { studyId, cellId }: one sprinkling of a study, every subregion and rule on it,
  * computed in an engine thread. Results are stored per cell; the last cell closes the study. A cell
@@ -74,8 +94,18 @@ export const studyCellHandler: JobHandler = async (job: Job<{ studyId: string; c
     return { cellId, skipped: true };
   }
   const request = createStudyRequestSchema.parse(claimed.study.request);
+  let imported: ImportedCellSource | undefined;
+  if (request.source === 'imported') {
+    try {
+      imported = await importedSource(context, claimed.study.causalSets, claimed.cell.id, claimed.cell.seed);
+    } catch (error) {
+      const message = (error as Error).message;
+      if (await studies.markCellFailed(m, cellId, message, ENGINE_VERSION)) await closeStudy(context, studyId);
+      throw new UnrecoverableError(message);
+    }
+  }
   const spec: StudyCellSpec = {
-    sprinkling: cellSprinkling(request, claimed.cell.requestedN, claimed.cell.seed),
+    ...(request.source === 'sprinkled' ? { sprinkling: cellSprinkling(request, claimed.cell.requestedN, claimed.cell.seed) } : { imported }),
     mass: request.mass,
     subregions: claimed.study.subregions,
     rules: request.rules,
