@@ -12,9 +12,14 @@ interface SubregionFieldsProps {
   doubleTruncation: boolean;
   onDoubleTruncationChange(value: boolean): void;
   errors: Record<string, string | undefined>;
+  /** when given, the subregion is a list of element labels (an imported causal set) instead of tips */
+  elements?: { value: string; onChange(text: string): void; count: number | null; error?: string };
 }
 
-/** The optional subregion diamond, given by its past and future tips, and the double-truncation switch. */
+/**
+ * The optional subregion: a diamond given by its past and future tips, or on an imported causal set a
+ * list of element labels; and the double-truncation switch.
+ */
 export function SubregionFields(props: SubregionFieldsProps) {
   const { dimension, enabled, past, future, errors } = props;
   const coordinates = dimension === 4 ? (['t', 'x', 'y', 'z'] as const) : (['t', 'x'] as const);
@@ -24,13 +29,33 @@ export function SubregionFields(props: SubregionFieldsProps) {
       <Checkbox
         name="withSubregion"
         label="Compute the entanglement entropy of a subregion"
-        hint="A causal diamond between two events inside the region; its elements are found from the causal order."
+        hint={
+          props.elements
+            ? 'A set of elements of the causal set, by their labels.'
+            : 'A causal diamond between two events inside the region; its elements are found from the causal order.'
+        }
         checked={enabled}
         onChange={props.onEnabledChange}
       />
       {enabled && (
         <>
-          {(['past', 'future'] as const).map((which) => {
+          {props.elements && (
+            <TextField
+              label="Elements"
+              name="elementList"
+              className="font-mono"
+              value={props.elements.value}
+              onChange={(e) => props.elements!.onChange(e.target.value)}
+              error={props.elements.error}
+              placeholder="0, 1, 2, 3"
+              hint={
+                props.elements.count !== null
+                  ? `Comma-separated labels from 0 to ${props.elements.count - 1}, as in the imported file.`
+                  : 'Comma-separated element labels, counting from 0.'
+              }
+            />
+          )}
+          {!props.elements && (['past', 'future'] as const).map((which) => {
             const tip = which === 'past' ? past : future;
             return (
               <fieldset key={which} className="grid grid-cols-2 gap-6 sm:grid-cols-4">

@@ -30,6 +30,9 @@ export interface TipValues {
 /** Everything the new-run form holds, as typed (numbers stay text until submitting). */
 export interface RunFormValues {
   title: string;
+  /** sprinkle a causal set, or compute on an imported one of the team */
+  source: 'sprinkle' | 'imported';
+  causalSetId: string;
   regionKind: RegionKind;
   properTime: string;
   circumference: string;
@@ -46,9 +49,21 @@ export interface RunFormValues {
   mass: string;
   truncation: TruncationFormValues;
   withSubregion: boolean;
+  /** a diamond by its tips (coordinates only) or a list of element labels */
+  subregionBy: 'tips' | 'elements';
+  /** comma-separated element labels, 0-based as in the imported file */
+  elementList: string;
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+}
+
+/** What the form needs to know of the picked imported causal set. */
+export interface PickedCausalSet {
+  id: string;
+  kind: 'coordinates' | 'relations';
+  dimension: 2 | 4;
+  N: number;
 }
 
 /** A fresh seed: eight hex digits from the browser's random source. */
@@ -61,6 +76,8 @@ export function newSeed(): string {
 export function defaultRunForm(seed: string = newSeed()): RunFormValues {
   return {
     title: '',
+    source: 'sprinkle',
+    causalSetId: '',
     regionKind: 'diamond2d',
     properTime: '2',
     circumference: '4',
@@ -77,6 +94,8 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     mass: '0',
     truncation: { ...defaultTruncation },
     withSubregion: false,
+    subregionBy: 'tips',
+    elementList: '',
     // A diamond of half the proper time, centred in the default region.
     past: { t: '-0.5', x: '0', y: '0', z: '0' },
     future: { t: '0.5', x: '0', y: '0', z: '0' },
@@ -162,6 +181,7 @@ export function fieldForIssuePath(path: string): string {
   if (path === 'sprinkling') return 'sprinkling.count';
   if (path === 'sprinkling.region') return 'sprinkling.region';
   if (path === 'subregion' || path === 'subregion.past' || path === 'subregion.future') return 'subregion';
+  if (path.startsWith('subregion.indices')) return 'subregion.indices';
   return path;
 }
 
@@ -224,6 +244,57 @@ function subregionLightConeError(subregion: unknown): FieldErrors {
   return { 'subregion.future.t': lightConeMessage };
 }
 
+/**
+ * "0, 1, 2 5" → [0, 1, 2, 5]. Returns a message instead when a label is no whole number in 0..N−1,
+ * is listed twice, or fewer than two are given (the entropy needs two).
+ */
+export function parseElementList(text: string, N: number | null): number[] | string {
+  const parts = text.split(/[\s,;]+/).filter((p) => p !== '');
+  const labels: number[] = [];
+  for (const part of parts) {
+    const label = /^\d+$/.test(part) ? Number(part) : Number.NaN;
+    if (!Number.isSafeInteger(label)) return `“${part}” is not an element label (a whole number from 0).`;
+    if (N !== null && label >= N) return `Element ${label} does not exist: the causal set has ${N} elements, labelled 0 to ${N - 1}.`;
+    if (labels.includes(label)) return `Element ${label} is listed twice.`;
+    labels.push(label);
+  }
+  if (labels.length < 2) return 'List at least two elements, separated by commas.';
+  return labels;
+}
+
+/**
+ * The body of a run on an imported causal set: the set's id and the field settings; the subregion by
+ * tips only for coordinates (with the set's dimension), as an element list otherwise.
+ */
+function importedRunRequest(v: RunFormValues, picked: PickedCausalSet | null): Checked<CreateRunRequest> {
+  const reader = new NumberReader();
+  const errors: FieldErrors = {};
+  if (!picked || picked.id !== v.causalSetId) errors.causalSetId = 'Pick one of the team’s imported causal sets.';
+  const candidate: Record<string, unknown> = {
+    causalSetId: v.causalSetId,
+    mass: reader.read(v.mass, 'mass') ?? 0,
+    truncation: truncationFromForm(v.truncation),
+    doubleTruncation: v.withSubregion && v.doubleTruncation,
+  };
+  if (v.title.trim()) candidate.title = v.title.trim();
+  if (v.withSubregion) {
+    const byElements = v.subregionBy === 'elements' || picked?.kind === 'relations';
+    if (byElements) {
+      const labels = parseElementList(v.elementList, picked?.N ?? null);
+      if (typeof labels === 'string') errors['subregion.indices'] = labels;
+      else candidate.subregion = { kind: 'elements', indices: labels };
+    } else {
+      candidate.subregion = subregionFromForm(reader, v, picked?.dimension ?? 2);
+    }
+  }
+  const parsed = createRunRequestSchema.safeParse(candidate);
+  // the form's own messages (which set, which label) say more than the schema's
+  Object.assign(errors, { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors, ...errors });
+  if (candidate.subregion && (candidate.subregion as { kind: string }).kind === 'diamond') Object.assign(errors, subregionLightConeError(candidate.subregion));
+  if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
+  return { ok: true, request: parsed.data };
+}
+
 export type Checked<T> = { ok: true; request: T } | { ok: false; errors: FieldErrors };
 
 /**
@@ -231,7 +302,8 @@ export type Checked<T> = { ok: true; request: T } | { ok: false; errors: FieldEr
  * what the server would refuse, with a message beside the field at fault. `maxN` is the server's dense
  * limit when known (GET /api/limits).
  */
-export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN): Checked<CreateRunRequest> {
+export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN, picked: PickedCausalSet | null = null): Checked<CreateRunRequest> {
+  if (v.source === 'imported') return importedRunRequest(v, picked);
   const reader = new NumberReader();
   const dimension = regionDimension(v.regionKind);
   const sprinkling: Record<string, unknown> = {

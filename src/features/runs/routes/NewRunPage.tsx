@@ -7,6 +7,8 @@ import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { Empty } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
+import { useCausalSets } from '../../causalSets/api/causalSets';
+import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
 import { useEngineLimits } from '../api/limits';
@@ -21,6 +23,7 @@ import {
   regionLabels,
   runRequestFromForm,
   serverFieldErrors,
+  type PickedCausalSet,
   type RunFormValues,
 } from '../lib/runForm';
 
@@ -63,7 +66,13 @@ function NewRunForm() {
   const limits = useEngineLimits().data;
   const navigate = useNavigate();
   const fe = errors.fieldErrors;
-  const dimension = regionDimension(values.regionKind);
+  const causalSets = useCausalSets();
+  const pickedSet = causalSets.data?.items.find((c) => c.id === values.causalSetId) ?? null;
+  const picked: PickedCausalSet | null = pickedSet ? { id: pickedSet.id, kind: pickedSet.kind, dimension: pickedSet.dimension, N: pickedSet.N } : null;
+  const imported = values.source === 'imported';
+  const dimension = imported ? (picked?.dimension ?? 2) : regionDimension(values.regionKind);
+  // tips need coordinates; a relation list takes its subregion as element labels only
+  const subregionBy = imported && (values.subregionBy === 'elements' || picked?.kind === 'relations') ? 'elements' : 'tips';
 
   function set<K extends keyof RunFormValues>(key: K, value: RunFormValues[K]) {
     setValues((v) => ({ ...v, [key]: value }));
@@ -72,7 +81,7 @@ function NewRunForm() {
   function submit(event: FormEvent) {
     event.preventDefault();
     errors.clear();
-    const checked = runRequestFromForm(values, limits?.maxN);
+    const checked = runRequestFromForm(values, limits?.maxN, picked);
     if (!checked.ok) {
       errors.setFieldErrors(checked.errors);
       errors.setFormError('Some settings need a look; see the messages beside the fields.');
@@ -96,9 +105,28 @@ function NewRunForm() {
     <>
       <PageHeader
         title="New run"
-        context="Sprinkle a causal set, build its SJ state and, if asked, the entropy of a subregion. Units: c = 1."
+        context="Sprinkle a causal set or take an imported one, build its SJ state and, if asked, the entropy of a subregion. Units: c = 1."
       />
       <form onSubmit={submit} noValidate aria-label="New run" className="max-w-4xl">
+        <FormSection title="Causal set" note="Ours, sprinkled from a seed, or one the team imported.">
+          <fieldset className="flex flex-wrap gap-x-6 gap-y-2 text-sm">
+            <legend className="sr-only">Where the causal set comes from</legend>
+            <label className="flex items-center gap-2">
+              <input type="radio" name="source" value="sprinkle" checked={!imported} onChange={() => set('source', 'sprinkle')} className="size-4 accent-accent" />
+              Sprinkle one
+            </label>
+            <label className="flex items-center gap-2">
+              <input type="radio" name="source" value="imported" checked={imported} onChange={() => set('source', 'imported')} className="size-4 accent-accent" />
+              Use an imported causal set
+            </label>
+          </fieldset>
+          {imported && (
+            <CausalSetPicker selected={values.causalSetId ? [values.causalSetId] : []} onChange={(ids) => set('causalSetId', ids[0] ?? '')} error={fe.causalSetId ?? fe.sprinkling} />
+          )}
+        </FormSection>
+
+        {!imported && (
+        <>
         <FormSection title="Region" note="Where the points are sprinkled.">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
             <SelectField
@@ -264,6 +292,9 @@ function NewRunForm() {
           </div>
         </FormSection>
 
+        </>
+        )}
+
         <FormSection title="Field" note="A free scalar field.">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
             <TextField
@@ -291,6 +322,20 @@ function NewRunForm() {
         </FormSection>
 
         <FormSection title="Subregion" note="Optional.">
+          {imported && values.withSubregion && (
+            <SelectField
+              label="Subregion given by"
+              name="subregionBy"
+              value={subregionBy}
+              onChange={(e) => set('subregionBy', e.target.value as RunFormValues['subregionBy'])}
+              hint={picked?.kind === 'relations' ? 'A relation list has no coordinates: list its elements.' : 'Tips need the set’s coordinates; labels count from 0.'}
+            >
+              <option value="tips" disabled={picked?.kind === 'relations'}>
+                Diamond by its tips
+              </option>
+              <option value="elements">List of elements</option>
+            </SelectField>
+          )}
           <SubregionFields
             dimension={dimension}
             enabled={values.withSubregion}
@@ -301,6 +346,11 @@ function NewRunForm() {
             doubleTruncation={values.doubleTruncation}
             onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
             errors={fe}
+            elements={
+              subregionBy === 'elements'
+                ? { value: values.elementList, onChange: (text) => set('elementList', text), count: picked?.N ?? null, error: fe['subregion.indices'] }
+                : undefined
+            }
           />
         </FormSection>
 

@@ -4,15 +4,18 @@ import { StatusLabel } from '../../runs/components/StatusLabel';
 /** Overall progress (k of n sprinklings) and one mark per cell, so a stuck or failed cell is visible. */
 export function StudyProgress({ study }: { study: StudyDetail }) {
   const { progress } = study;
+  const unit = study.source === 'imported' ? 'causal sets' : 'sprinklings';
+  // an imported study's cell seed is its causal set's id
+  const setNames = new Map(study.causalSets.map((c) => [c.id, c.name]));
   const percent = Math.max(0, Math.min(100, progress.percent));
   const label =
     study.status === 'queued'
       ? 'Waiting for a worker'
       : study.status === 'running'
-        ? `${progress.done} of ${progress.total} sprinklings done`
+        ? `${progress.done} of ${progress.total} ${unit} done`
         : study.status === 'cancelled'
-          ? `Cancelled: ${progress.done} of ${progress.total} sprinklings done`
-          : `${progress.done} of ${progress.total} sprinklings done${progress.failed ? `, ${progress.failed} failed` : ''}`;
+          ? `Cancelled: ${progress.done} of ${progress.total} ${unit} done`
+          : `${progress.done} of ${progress.total} ${unit} done${progress.failed ? `, ${progress.failed} failed` : ''}`;
   const counts = [...new Set(study.cells.map((c) => c.N))];
   return (
     <div className="flex flex-col gap-3" data-testid="study-progress">
@@ -33,7 +36,7 @@ export function StudyProgress({ study }: { study: StudyDetail }) {
                   .filter((c) => c.N === N)
                   .map((c) => (
                     <span key={c.id} title={c.error ?? (c.seconds !== null ? `${c.seconds.toFixed(1)} s` : undefined)} className="inline-flex items-baseline gap-1">
-                      <span className="font-mono text-ink-faint">{c.seed}</span>
+                      <span className={setNames.has(c.seed) ? 'text-ink-faint' : 'font-mono text-ink-faint'}>{setNames.get(c.seed) ?? c.seed}</span>
                       <StatusLabel status={c.status} percent={c.percent} />
                     </span>
                   ))}

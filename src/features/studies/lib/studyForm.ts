@@ -3,14 +3,20 @@ import type { CreateStudyRequestInput } from '@shared/studies';
 /** What the study form edits, as text where people type lists. */
 export interface StudyFormValues {
   title: string;
+  /** sprinklings of ours, or imported causal sets in their place */
+  source: 'sprinkled' | 'imported';
+  /** the picked imported causal sets, in the order picked */
+  causalSetIds: string[];
   properTime: string;
   process: 'fixed' | 'poisson';
   prng: 'arc4' | 'alea' | 'xor4096';
   counts: string;
   seedCount: string;
   seedPrefix: string;
-  subregionKind: 'concentric' | 'tips';
+  subregionKind: 'concentric' | 'tips' | 'elements';
   fractions: string;
+  /** one element list per line: "0, 1, 2, …" (imported sets only) */
+  elementLists: string;
   /** one sub-diamond per line: "t0,x0 t1,x1" */
   tips: string;
   untruncated: boolean;
@@ -20,6 +26,8 @@ export interface StudyFormValues {
 
 export const defaultStudyForm: StudyFormValues = {
   title: '',
+  source: 'sprinkled',
+  causalSetIds: [],
   properTime: '2',
   process: 'fixed',
   prng: 'arc4',
@@ -28,6 +36,7 @@ export const defaultStudyForm: StudyFormValues = {
   seedPrefix: 'seed',
   subregionKind: 'concentric',
   fractions: '0.4, 0.5, 0.6',
+  elementLists: '',
   tips: '-0.5,0 0.5,0',
   untruncated: true,
   doubleTruncated: true,
@@ -63,22 +72,39 @@ function parseTips(text: string) {
     });
 }
 
+/** "0, 1, 2\n5 6 7" → [[0, 1, 2], [5, 6, 7]]; blank lines are skipped. */
+export function parseElementLists(text: string): number[][] {
+  return text
+    .split('\n')
+    .map((line) => line.trim())
+    .filter((line) => line !== '')
+    .map(parseNumberList);
+}
+
+function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subregions'] {
+  if (values.subregionKind === 'concentric') return { kind: 'concentric', fractions: parseNumberList(values.fractions) };
+  if (values.subregionKind === 'elements') return { kind: 'elements', lists: parseElementLists(values.elementLists).map((indices) => ({ indices })) };
+  return { kind: 'tips', diamonds: parseTips(values.tips) };
+}
+
 /** The POST body for the form's values (validated afterwards with the shared schema). */
 export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInput {
   const rules: CreateStudyRequestInput['rules'] = [];
   if (values.untruncated) rules.push({ truncation: { rule: 'none' }, doubleTruncation: false });
   if (values.doubleTruncated) rules.push({ truncation: { rule: 'sqrtN' }, doubleTruncation: true });
+  const title = values.title.trim() ? { title: values.title.trim() } : {};
+  if (values.source === 'imported') {
+    return { source: 'imported', ...title, causalSetIds: values.causalSetIds, subregions: subregionsFrom(values), rules, mass: Number(values.mass) };
+  }
   return {
-    ...(values.title.trim() ? { title: values.title.trim() } : {}),
+    source: 'sprinkled',
+    ...title,
     region: { kind: 'diamond2d', properTime: Number(values.properTime) },
     process: values.process,
     prng: values.prng,
     counts: parseNumberList(values.counts),
     seeds: seedsFrom(values.seedPrefix, Number(values.seedCount)),
-    subregions:
-      values.subregionKind === 'concentric'
-        ? { kind: 'concentric', fractions: parseNumberList(values.fractions) }
-        : { kind: 'tips', diamonds: parseTips(values.tips) },
+    subregions: subregionsFrom(values),
     rules,
     mass: Number(values.mass),
   };
@@ -87,6 +113,8 @@ export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInp
 /** Which form field a request path belongs to, for showing server and schema messages in place. */
 export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('counts')) return 'counts';
+  if (path.startsWith('causalSetIds')) return 'causalSetIds';
+  if (path.startsWith('subregions.lists')) return 'elementLists';
   if (path.startsWith('seeds')) return 'seedCount';
   if (path.startsWith('subregions.fractions')) return 'fractions';
   if (path.startsWith('subregions.diamonds')) return 'tips';

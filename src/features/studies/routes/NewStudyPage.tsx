@@ -7,11 +7,15 @@ import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { useCan } from '../../auth/api/me';
+import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { Checkbox } from '../../runs/components/Checkbox';
 import { useCreateStudy } from '../api/studies';
 import { defaultStudyForm, formFieldOf, parseNumberList, studyRequestFrom, type StudyFormValues } from '../lib/studyForm';
 
-/** The study form: a grid of N × subregions × seeds × rules on a 2D causal diamond. */
+/**
+ * The study form: a grid of N × subregions × seeds × rules on a 2D causal diamond, or the same over
+ * imported causal sets, each set standing for one (N, seed) sprinkling.
+ */
 export function NewStudyPage() {
   const [values, setValues] = useState<StudyFormValues>(defaultStudyForm);
   const [errors, setErrors] = useState<Record<string, string>>({});
@@ -23,7 +27,7 @@ export function NewStudyPage() {
 
   const counts = parseNumberList(values.counts).filter(Number.isFinite);
   const seedCount = Math.max(0, Math.floor(Number(values.seedCount) || 0));
-  const cells = counts.length * seedCount;
+  const cells = values.source === 'imported' ? values.causalSetIds.length : counts.length * seedCount;
 
   function place(issues: { path: string; message: string }[]) {
     const next: Record<string, string> = {};
@@ -80,6 +84,26 @@ export function NewStudyPage() {
         </Section>
 
         <Section title="Causal sets">
+          <fieldset className="mb-5 flex flex-wrap gap-x-6 gap-y-2 text-sm">
+            <legend className="sr-only">Source of the causal sets</legend>
+            <label className="flex items-center gap-2">
+              <input type="radio" name="source" value="sprinkled" checked={values.source === 'sprinkled'} onChange={() => setValues((v) => ({ ...v, source: 'sprinkled', subregionKind: v.subregionKind === 'elements' ? 'concentric' : v.subregionKind }))} className="accent-accent" />
+              sprinkle, one per N and seed
+            </label>
+            <label className="flex items-center gap-2">
+              <input type="radio" name="source" value="imported" checked={values.source === 'imported'} onChange={() => set('source', 'imported')} className="accent-accent" />
+              use imported causal sets
+            </label>
+          </fieldset>
+          {values.source === 'imported' ? (
+            <>
+              <CausalSetPicker multiple selected={values.causalSetIds} onChange={(ids) => set('causalSetIds', ids)} error={errors.causalSetIds} />
+              <p className="mt-3 text-xs text-ink-soft">
+                <span className="figures">{cells}</span> causal set{cells === 1 ? '' : 's'} picked (at most {STUDY_MAX_CELLS}). Each plays the part of one sprinkling with its own N; sets of equal N form the ensemble of that N.
+              </p>
+            </>
+          ) : (
+            <>
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
             <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint="2D causal diamond, tips at t = ±L/2" />
             <SelectField label="Sprinkling" name="process" value={values.process} onChange={(e) => set('process', e.target.value as StudyFormValues['process'])}>
@@ -98,6 +122,8 @@ export function NewStudyPage() {
           <p className="mt-3 text-xs text-ink-soft">
             <span className="figures">{cells}</span> sprinkling{cells === 1 ? '' : 's'} (at most {STUDY_MAX_CELLS}). Each costs one dense eigendecomposition of N × N.
           </p>
+            </>
+          )}
         </Section>
 
         <Section title="Subregions">
@@ -105,8 +131,21 @@ export function NewStudyPage() {
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
               <option value="concentric">concentric, by ℓ/L</option>
               <option value="tips">by tips</option>
+              {values.source === 'imported' && <option value="elements">element lists</option>}
             </SelectField>
-            {values.subregionKind === 'concentric' ? (
+            {values.subregionKind === 'elements' ? (
+              <div className="flex flex-col gap-1">
+                <label htmlFor="study-element-lists" className="text-xs tracking-wide text-ink-soft">
+                  Element lists, one subregion per line: labels 0 … N−1, comma-separated
+                </label>
+                <textarea id="study-element-lists" name="elementLists" rows={3} value={values.elementLists} onChange={(e) => set('elementLists', e.target.value)} aria-invalid={Boolean(errors.elementLists)} placeholder="0, 1, 2, 3, 4, 5, 6, 7" className="border-0 border-b border-rule bg-transparent font-mono text-sm focus:border-accent focus:outline-none" />
+                {errors.elementLists ? (
+                  <p className="text-xs text-danger" role="alert">{errors.elementLists}</p>
+                ) : (
+                  <p className="text-xs text-ink-faint">the only choice for relation lists; concentric sub-diamonds need sets imported with the same diamond region</p>
+                )}
+              </div>
+            ) : values.subregionKind === 'concentric' ? (
               <TextField label="ℓ/L values" name="fractions" className="font-mono" value={values.fractions} onChange={(e) => set('fractions', e.target.value)} error={errors.fractions} hint={`sub-diamonds sharing the centre, proper time ℓ = (ℓ/L)·L; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
             ) : (
               <div className="flex flex-col gap-1">

@@ -69,7 +69,9 @@ export function StudiesPage() {
                     {s.progress.failed > 0 && <span className="ml-2 text-danger">{s.progress.failed} failed</span>}
                   </td>
                   <td className={`${td} figures text-xs`}>{s.counts.join(', ')}</td>
-                  <td className={`${td} figures text-xs`}>{s.seedCount}</td>
+                  <td className={`${td} figures text-xs`} title={s.source === 'imported' ? 'imported causal sets in all' : 'seeds per N'}>
+                    {s.source === 'imported' ? `${s.seedCount} sets` : s.seedCount}
+                  </td>
                   <td className={`${td} font-mono text-xs`}>{s.rules.join(', ')}</td>
                   <td className={td}>{s.author.name}</td>
                   <td className={`${td} text-xs text-ink-soft`}>{formatDateTime(s.createdAt)}</td>

@@ -82,7 +82,16 @@ export function StudyPage() {
           <span className="flex flex-wrap items-baseline gap-x-4">
             <StatusLabel status={s.status} />
             <span>
-              N ∈ <span className="figures">{'{'}{s.counts.join(', ')}{'}'}</span> × <span className="figures">{s.seedCount}</span> seeds ×{' '}
+              N ∈ <span className="figures">{'{'}{s.counts.join(', ')}{'}'}</span> ×{' '}
+              {s.source === 'imported' ? (
+                <>
+                  <span className="figures">{s.seedCount}</span> imported causal set{s.seedCount === 1 ? '' : 's'} in all ×{' '}
+                </>
+              ) : (
+                <>
+                  <span className="figures">{s.seedCount}</span> seeds ×{' '}
+                </>
+              )}
               {s.subregions.length} subregion{s.subregions.length === 1 ? '' : 's'} × {s.rules.length} rule{s.rules.length === 1 ? '' : 's'}
             </span>
             <span>
@@ -119,6 +128,38 @@ export function StudyPage() {
       <Section title="Progress">
         <StudyProgress study={s} />
       </Section>
+      {s.causalSets.length > 0 && (
+        <Section title="Imported causal sets" aside="each stands for one sprinkling">
+          <div className="overflow-x-auto">
+            <table className="text-sm">
+              <thead>
+                <tr className="text-left text-xs tracking-wide text-ink-soft">
+                  <th className="border-b border-rule py-1.5 pr-4 font-normal">name</th>
+                  <th className="border-b border-rule py-1.5 pr-4 font-normal">N</th>
+                  <th className="border-b border-rule py-1.5 pr-4 font-normal">file</th>
+                  <th className="border-b border-rule py-1.5 pr-4 font-normal">SHA-256</th>
+                </tr>
+              </thead>
+              <tbody>
+                {s.causalSets.map((c) => (
+                  <tr key={c.id}>
+                    <td className="border-b border-rule/60 py-1.5 pr-4">
+                      <Link to={`/causal-sets/${c.id}`} className="text-accent hover:underline">
+                        {c.name}
+                      </Link>
+                    </td>
+                    <td className="figures border-b border-rule/60 py-1.5 pr-4">{c.N}</td>
+                    <td className="border-b border-rule/60 py-1.5 pr-4 font-mono text-xs">{c.fileName}</td>
+                    <td className="border-b border-rule/60 py-1.5 pr-4 font-mono text-xs text-ink-faint" title={c.checksum}>
+                      {c.checksum.slice(0, 16)}…
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </Section>
+      )}
       <div className="mb-10">
         <StudyCaution />
       </div>
