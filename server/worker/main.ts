@@ -2,31 +2,74 @@
 import { loadConfig } from '../config';
 import { createDataSource } from '../db/data-source';
 import { createMailer } from '../mail/mailer';
+import { createComputeQueue, createRedisConnection } from '../queue/compute-queue';
 import { jobHandlers } from './handlers/index';
+import { reconcileStalledJob, sweepOrphanedWork } from './recovery';
 import { startComputeWorker } from './worker';
 
 const config = loadConfig();
 const dataSource = createDataSource(config.databaseUrl);
 await dataSource.initialize();
 const worker = startComputeWorker({ context: { config, dataSource, mailer: createMailer(dataSource) } });
+// a producer-side handle on the same queue, to look up the jobs of rows the sweep checks
+const queueConnection = createRedisConnection(config.redisUrl, 'client');
+const queue = createComputeQueue(queueConnection, config.queuePrefix);
 
 worker.on('active', (job) => console.log(`[worker] ${job.name} ${job.id} started`));
 worker.on('completed', (job) => console.log(`[worker] ${job.name} ${job.id} done`));
 worker.on('failed', (job, error) => console.error(`[worker] ${job?.name} ${job?.id} failed: ${error.message}`));
+worker.on('stalled', (jobId) => {
+  console.warn(`[worker] job ${jobId} stalled (its worker stopped without finishing)`);
+  reconcileStalledJob(dataSource, queue, jobId)
+    .then((failed) => failed && console.warn(`[worker] job ${jobId} stalled too often; its run is marked failed`))
+    .catch((error: Error) => console.warn(`[worker] could not check stalled job ${jobId}: ${error.message}`));
+});
 await worker.waitUntilReady();
 const known = Object.keys(jobHandlers);
 console.log(`[worker] pid ${process.pid} waiting for jobs on ${config.queuePrefix}:tacet-compute (handlers: ${known.join(', ') || 'none yet'})`);
 
+const sweepGraceMs = Number(process.env.TACET_SWEEP_GRACE_MS ?? 60_000);
+const sweepIntervalMs = Number(process.env.TACET_SWEEP_INTERVAL_MS ?? 60_000);
+async function sweep(): Promise<void> {
+  try {
+    const report = await sweepOrphanedWork({ dataSource, queue, graceMs: sweepGraceMs });
+    if (report.runs.length || report.cells.length) {
+      console.warn(`[worker] sweep: marked failed ${report.runs.length} run(s) and ${report.cells.length} study cell(s) whose jobs were lost`);
+    }
+  } catch (error) {
+    console.warn(`[worker] sweep skipped: ${(error as Error).message}`);
+  }
+}
+await sweep();
+const sweepTimer = setInterval(() => void sweep(), sweepIntervalMs);
+
+/**
+ * SIGTERM/SIGINT: stop taking jobs and let the current one finish. If it takes longer than the grace
+ * period the worker closes anyway; the job's lock then runs out and BullMQ's stalled-job check hands
+ * it to another worker (re-queued, not lost). A second signal stops at once the same way.
+ */
+const shutdownGraceMs = Number(process.env.TACET_SHUTDOWN_GRACE_MS ?? 120_000);
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {
-  if (stopping) return;
+  if (stopping) {
+    console.log(`[worker] ${signal} again: stopping now; the current job will be re-queued`);
+    process.exit(1);
+  }
   stopping = true;
-  console.log(`[worker] ${signal}: finishing the current job, then stopping`);
+  clearInterval(sweepTimer);
+  console.log(`[worker] ${signal}: finishing the current job, then stopping (at most ${Math.round(shutdownGraceMs / 1000)} s)`);
+  const graceOver = new Promise<'timeout'>((resolve) => setTimeout(() => resolve('timeout'), shutdownGraceMs).unref());
+  let code = 0;
   try {
-    await worker.close();
+    if ((await Promise.race([worker.close().then(() => 'closed' as const), graceOver])) === 'timeout') {
+      console.log('[worker] grace period over: leaving the current job to BullMQ stalled-job recovery');
+      code = 1;
+    }
+    await queue.close();
+    queueConnection.disconnect();
     await dataSource.destroy();
   } finally {
-    process.exit(0);
+    process.exit(code);
   }
 }
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
