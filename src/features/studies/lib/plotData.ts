@@ -82,12 +82,15 @@ export function referenceSlopeTrace(aggregates: StudyAggregate[], rule: string):
   };
 }
 
-/** Positive eigenvalues by rank of one sprinkling per N (log–log), with each rule's cut as a dashed line. */
-export function spectraTraces(spectra: StudySpectrum[]): Record<string, unknown>[] {
+/**
+ * Positive eigenvalues by rank of one sprinkling per N (log–log), with each rule's cut as a dashed
+ * line. `setNames` maps a cell seed that is an imported causal set's id to the set's name.
+ */
+export function spectraTraces(spectra: StudySpectrum[], setNames: ReadonlyMap<string, string> = new Map()): Record<string, unknown>[] {
   const traces: Record<string, unknown>[] = spectra.map((s, k) => ({
     type: 'scatter',
     mode: 'lines',
-    name: `N = ${s.N} (seed ${s.seed})`,
+    name: setNames.has(s.seed) ? `N = ${s.N} (${setNames.get(s.seed)})` : `N = ${s.N} (seed ${s.seed})`,
     x: s.eigenvalues.map((_, r) => r + 1),
     y: s.eigenvalues,
     line: { color: k % 2 === 0 ? plotPalette.data : plotPalette.dataSoft, width: 1.2, dash: ['solid', 'dot', 'dashdot', 'longdash'][Math.floor(k / 2) % 4] },
