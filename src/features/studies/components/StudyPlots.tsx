@@ -57,7 +57,7 @@ export function StudyPlots({ study }: { study: StudyDetail }) {
           title={study.source === 'imported' ? 'Spectra, one causal set per N' : 'Spectra, one seed per N'}
           fileName={`tacet-study-${id8}-spectra`}
           data={spectraTraces(study.spectra, new Map(study.causalSets.map((c) => [c.id, c.name])))}
-          layout={{ xaxis: { type: 'log', title: { text: 'rank k' } }, yaxis: { type: 'log', title: { text: 'λ_k (positive eigenvalues of iΔ)' } } }}
+          layout={{ xaxis: { type: 'log', title: { text: 'rank k' } }, yaxis: { type: 'log', exponentformat: 'power', title: { text: 'λ_k (positive eigenvalues of iΔ)' } } }}
           caption={`Positive eigenvalues of the Pauli–Jordan operator of the first finished ${study.source === 'imported' ? 'causal set' : 'seed'} per N; dashed: the whole-region cut.`}
         />
       )}
