@@ -100,7 +100,7 @@ export const runResultSchema = z.object({
   volume: z.number().nullable(),
   relations: z.number().int(),
   links: z.number().int().nullable(),
-  /** all positive eigenvalues of iΔ, descending */
+  /** the positive eigenvalues of iΔ, descending: all of them (dense engine) or only those computed above the cut (structured) */
   eigenvalues: z.array(z.number()),
   /** continuum values N/(4x_k) for each rank, 2D diamonds only */
   continuum: z.array(z.number()).nullable(),
@@ -120,6 +120,10 @@ export const runResultSchema = z.object({
   engineVersion: z.string(),
   /** seconds per stage */
   timings: z.record(z.string(), z.number()),
+  /** which engine ran (absent for runs stored before the structured engine existed) */
+  engine: z.enum(['dense', 'structured']).optional(),
+  /** why the rule picked it, in one sentence */
+  engineReason: z.string().optional(),
 });
 export type RunResult = z.infer<typeof runResultSchema>;
 

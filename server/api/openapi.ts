@@ -75,7 +75,7 @@ const teamSchema = z.object({ id: z.string(), name: z.string(), role: roleSchema
  */
 export const apiRoutes: ApiRouteDescription[] = [
   { method: 'get', path: '/api/health', summary: 'Service health: database, queue, workers', tag: 'platform', access: 'public', status: 200, response: healthResponseSchema },
-  { method: 'get', path: '/api/limits', summary: 'Dense size limit the server accepts, per linear-algebra backend', tag: 'platform', access: 'public', status: 200, response: engineLimitsSchema },
+  { method: 'get', path: '/api/limits', summary: 'Size limits of the dense (per linear-algebra backend) and structured engines, and the rule that picks one', tag: 'platform', access: 'public', status: 200, response: engineLimitsSchema },
   { method: 'get', path: '/api/openapi.json', summary: 'This description', tag: 'platform', access: 'public', status: 200, produces: 'application/json' },
 
   { method: 'post', path: '/api/auth/signup', summary: 'Create an account (and a team, or join an invitation)', tag: 'auth', access: 'public', status: 201, body: signupRequestSchema, response: sessionResponseSchema },

@@ -20,6 +20,9 @@ export interface RunSummaryRecord {
   diagnostics: Record<string, unknown>;
   timings: Record<string, number>;
   entropy: { S: number; n: number; modesKept: number; cutoff: number; doubleTruncation: boolean } | null;
+  /** which engine ran and why (absent in runs stored before the structured engine) */
+  engine?: 'dense' | 'structured';
+  engineReason?: string;
 }
 
 export interface RunRow {

@@ -19,8 +19,8 @@ import { makeRegion, type Region } from './regions';
 import { sjDiagnostics, sjState, type SjDiagnostics, type SjState } from './sjState';
 import { sprinkle, type Sprinkling } from './sprinkle';
 import { applyTruncation, type KneeFit } from './truncation';
-import { STRUCTURED_MAX_N_2D, type EngineName, type EngineRequest } from './structured/engineChoice';
-import { engineForRequest, structuredVacuum } from './structured/pipeline';
+import { STRUCTURED_MAX_N_2D, structuredUnsupportedReason, type EngineChoice, type EngineName, type EngineRequest } from './structured/engineChoice';
+import { engineForRequest, requestShape, structuredVacuum } from './structured/pipeline';
 
 export { engineRequests, type EngineName, type EngineRequest } from './structured/engineChoice';
 
@@ -164,9 +164,35 @@ export function checkDenseSize(n: number, maxN: number = DENSE_SIZE_LIMIT.maxN):
   if (n < 2) throw new EngineInputError(`a causal set needs at least 2 elements, got ${n}`);
 }
 
+/**
+ * The engine the rule picks for a request and that engine's size limit. A request only the dense engine
+ * can serve (no cut, knee, 4D, cylinder) that is over the dense limit is refused with the dense engine's
+ * memory reason and why the structured engine cannot take it.
+ */
+function engineAndLimit(request: VacuumRequest, denseMaxN: number): { choice: EngineChoice; maxN: number } {
+  try {
+    const choice = engineForRequest(request, denseMaxN);
+    return { choice, maxN: choice.engine === 'structured' ? STRUCTURED_MAX_N_2D : denseMaxN };
+  } catch (error) {
+    const shape = request.source.kind === 'order' ? null : requestShape(request);
+    if (shape && request.engine !== 'structured') {
+      const truncation: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
+      const unsupported = structuredUnsupportedReason(shape.dimension, truncation, shape.periodic);
+      if (unsupported) {
+        try {
+          checkDenseSize(shape.N, denseMaxN);
+        } catch (dense) {
+          throw new EngineInputError(`${(dense as Error).message}; ${unsupported}`);
+        }
+      }
+    }
+    throw error;
+  }
+}
+
 /** The size limit of the engine the rule picks for a request (structured: STRUCTURED_MAX_N_2D). */
 function sizeLimitFor(request: VacuumRequest): number {
-  return engineForRequest(request, DENSE_SIZE_LIMIT.maxN).engine === 'structured' ? STRUCTURED_MAX_N_2D : DENSE_SIZE_LIMIT.maxN;
+  return engineAndLimit(request, DENSE_SIZE_LIMIT.maxN).maxN;
 }
 
 /**
@@ -288,8 +314,7 @@ function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend 
 export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks = {}): Promise<VacuumResult> {
   const backend = resolveBackend(request.backend);
   const denseLimit = denseSizeLimit(backend.name);
-  const choice = engineForRequest(request, denseLimit);
-  const sizeLimit = choice.engine === 'structured' ? STRUCTURED_MAX_N_2D : denseLimit;
+  const { choice, maxN: sizeLimit } = engineAndLimit(request, denseLimit);
   validateVacuumRequest(request, sizeLimit);
   const timings: Partial<Record<VacuumStage, number>> = {};
   const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {

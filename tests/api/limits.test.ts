@@ -1,5 +1,6 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { AUTO_STRUCTURED_FROM, STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { engineLimitsSchema } from '@shared/limits';
 import { DENSE_SIZE_LIMIT, denseSizeLimit } from '../../server/engine/index';
 import { backendSelection } from '../../server/engine/linalg';
@@ -35,5 +36,36 @@ describe('GET /api/limits', () => {
     const at = await request(ctx.app).post('/api/runs').set(auth).send(diamondRun(denseOnly, { count: limits.dense.maxN }));
     expect(at.status).toBe(202);
     await request(ctx.app).post(`/api/runs/${at.body.id}/cancel`).set(auth);
+  });
+
+  it('states the structured limit and the rule, and POST /api/runs applies them', async () => {
+    const limits = engineLimitsSchema.parse((await request(ctx.app).get('/api/limits')).body);
+    expect(limits.structured).toEqual({
+      maxN: STRUCTURED_MAX_N_2D,
+      dimensions: [2],
+      truncations: ['sqrtN', 'lambda', 'modes'],
+      autoFrom: AUTO_STRUCTURED_FROM,
+      reason: expect.stringMatching(/never an N×N matrix/),
+    });
+    expect(limits.rule).toContain(String(STRUCTURED_MAX_N_2D));
+    expect(limits.rule).toContain(String(AUTO_STRUCTURED_FROM));
+
+    const owner = await signUp(ctx.app);
+    const auth = { Authorization: `Bearer ${owner.token}` };
+    // a 2D sqrtN cut: the structured engine serves it, so its limit applies and the dense one does not
+    const over = await request(ctx.app).post('/api/runs').set(auth).send(diamondRun({}, { count: limits.structured.maxN + 1 }));
+    expect(over.status).toBe(422);
+    expect(over.body.error.code).toBe('too_large');
+    expect(over.body.error.message).toContain(`the structured engine accepts at most ${limits.structured.maxN} elements`);
+    const aboveDense = await request(ctx.app).post('/api/runs').set(auth).send(diamondRun({}, { count: limits.dense.maxN + 1 }));
+    expect(aboveDense.status).toBe(202);
+    await request(ctx.app).post(`/api/runs/${aboveDense.body.id}/cancel`).set(auth);
+    // a 4D region is dense-only, whatever the cut
+    const fourD = await request(ctx.app)
+      .post('/api/runs')
+      .set(auth)
+      .send(diamondRun({}, { region: { kind: 'diamond4d', properTime: 2 }, count: limits.dense.maxN + 1 }));
+    expect(fourD.status).toBe(422);
+    expect(fourD.body.error.message).toContain(`dense limit of ${limits.dense.maxN} elements`);
   });
 });

@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runDetailSchema, runListResponseSchema, runPointsSchema } from '@shared/runs';
 import type { SprinklingSpecInput } from '@shared/vacuum';
 import { computeVacuum, DENSE_SIZE_LIMIT } from '../../server/engine/index';
+import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { startComputeWorker } from '../../server/worker/worker';
 import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
 import { bearer, diamondRun, getRun, parseCsv, postRun, waitForRun, waitUntil } from '../worker/runHelpers';
@@ -69,6 +70,9 @@ describe('a run from POST to result', () => {
     expect(result.continuum!.length).toBe(result.eigenvalues.length);
     expect(result.engineVersion).toMatch(/^tacet-engine/);
     expect(result.backend).toMatch(/^(native|ml-matrix)$/);
+    // N = 200 is below AUTO_STRUCTURED_FROM, so the rule picks the dense engine and says why
+    expect(result.engine).toBe('dense');
+    expect(result.engineReason).toMatch(/N < 1000/);
     expect(Object.keys(result.timings).sort()).toEqual(['entropy', 'green', 'order', 'spectrum', 'sprinkle', 'state']);
   });
 
@@ -87,6 +91,8 @@ describe('a run from POST to result', () => {
     expect(result.relations).toBe(direct.relations);
     expect(result.entropy!.S).toBeCloseTo(direct.entropy!.S, 9);
     expect(result.entropy!.n).toBe(direct.entropy!.n);
+    expect(result.engine).toBe(direct.engine);
+    expect(result.engineReason).toBe(direct.engineReason);
 
     const csv = await request(ctx.app).get(`/api/runs/${runId}/points.csv`).set(bearer(researcher.token));
     const { rows } = parseCsv(csv.text);
@@ -189,20 +195,74 @@ describe('failures and limits', () => {
   });
 
   it('refuses sizes above the dense limit with 422, the limit and the reason', async () => {
-    const res = await request(ctx.app).post('/api/runs').set(bearer(researcher.token)).send(diamondRun({}, { count: DENSE_SIZE_LIMIT.maxN + 1 }));
+    // truncation none needs every mode, so only the dense engine serves it and its limit applies
+    const denseOnly = { truncation: { rule: 'none' } };
+    const res = await request(ctx.app).post('/api/runs').set(bearer(researcher.token)).send(diamondRun(denseOnly, { count: DENSE_SIZE_LIMIT.maxN + 1 }));
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('too_large');
-    expect(res.body.error.message).toContain(String(DENSE_SIZE_LIMIT.maxN));
+    expect(res.body.error.message).toContain(`dense limit of ${DENSE_SIZE_LIMIT.maxN} elements`);
     expect(res.body.error.message).toMatch(/N×N float64 matrices/);
+    // a forced dense engine keeps the dense limit even where the structured one could serve
+    const forcedDense = await request(ctx.app)
+      .post('/api/runs')
+      .set(bearer(researcher.token))
+      .send(diamondRun({ engine: 'dense' }, { count: DENSE_SIZE_LIMIT.maxN + 1 }));
+    expect(forcedDense.status).toBe(422);
+    expect(forcedDense.body.error.code).toBe('too_large');
+    expect(forcedDense.body.error.message).toContain(`dense limit of ${DENSE_SIZE_LIMIT.maxN} elements`);
     // Poisson: expected N plus five standard deviations must fit (the diamond's volume is τ²/2 = 2)
     const poisson = await request(ctx.app)
       .post('/api/runs')
       .set(bearer(researcher.token))
-      .send(diamondRun({}, { process: 'poisson', count: undefined, density: DENSE_SIZE_LIMIT.maxN / 2 }));
+      .send(diamondRun(denseOnly, { process: 'poisson', count: undefined, density: DENSE_SIZE_LIMIT.maxN / 2 }));
     expect(poisson.status).toBe(422);
     expect(poisson.body.error.code).toBe('too_large');
     const list = await request(ctx.app).get('/api/runs?pageSize=200').set(bearer(researcher.token));
     expect(list.body.items.map((r: { N: number }) => r.N)).not.toContain(DENSE_SIZE_LIMIT.maxN + 1);
+  });
+
+  it('refuses 2D cut runs above the structured limit, and a forced structured engine where it cannot serve', async () => {
+    const over = await request(ctx.app)
+      .post('/api/runs')
+      .set(bearer(researcher.token))
+      .send(diamondRun({}, { count: STRUCTURED_MAX_N_2D + 1 }));
+    expect(over.status).toBe(422);
+    expect(over.body.error.code).toBe('too_large');
+    expect(over.body.error.message).toContain(`the structured engine accepts at most ${STRUCTURED_MAX_N_2D} elements`);
+    const forcedOver = await request(ctx.app)
+      .post('/api/runs')
+      .set(bearer(researcher.token))
+      .send(diamondRun({ engine: 'structured' }, { count: STRUCTURED_MAX_N_2D + 1 }));
+    expect(forcedOver.status).toBe(422);
+    expect(forcedOver.body.error.code).toBe('too_large');
+    expect(forcedOver.body.error.message).toContain(`structured limit of ${STRUCTURED_MAX_N_2D} elements`);
+    const forcedNone = await request(ctx.app)
+      .post('/api/runs')
+      .set(bearer(researcher.token))
+      .send(diamondRun({ engine: 'structured', truncation: { rule: 'none' } }));
+    expect(forcedNone.status).toBe(422);
+    expect(forcedNone.body.error.code).toBe('invalid_request');
+    expect(forcedNone.body.error.message).toMatch(/only the modes above a cut/);
+    const fourD = await request(ctx.app)
+      .post('/api/runs')
+      .set(bearer(researcher.token))
+      .send(diamondRun({}, { region: { kind: 'diamond4d', properTime: 2 }, count: DENSE_SIZE_LIMIT.maxN + 1 }));
+    expect(fourD.status).toBe(422);
+    expect(fourD.body.error.code).toBe('too_large');
+    expect(fourD.body.error.message).toContain(`dense limit of ${DENSE_SIZE_LIMIT.maxN} elements`);
+  });
+
+  it('records the structured engine when it ran, with only the modes above the cut', async () => {
+    const id = await postRun(ctx.app, researcher.token, diamondRun({ engine: 'structured' }, { count: 300 }));
+    const { run } = await waitForRun(ctx.app, researcher.token, id);
+    expect(run.status).toBe('done');
+    const result = runDetailSchema.parse(run).result!;
+    expect(result.engine).toBe('structured');
+    expect(result.engineReason).toBe('forced by the request');
+    // sqrtN rule: λ_c = √N/(4π) (Sorkin–Yazdi 2018, recalled from memory); the structured engine stops at the cut
+    expect(result.cutoff).toBeCloseTo(Math.sqrt(300) / (4 * Math.PI), 12);
+    expect(result.eigenvalues.length).toBe(result.modesKept);
+    for (const v of result.eigenvalues) expect(v).toBeGreaterThan(result.cutoff);
   });
 
   it('rejects malformed bodies (400) and inconsistent ones (422) without storing anything', async () => {

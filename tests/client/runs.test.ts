@@ -8,9 +8,12 @@ import {
   truncationFromForm,
   truncationToForm,
 } from '../../src/features/cutRules/lib/truncationForm';
+import { AUTO_STRUCTURED_FROM, STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import {
   defaultRunForm,
   denseLimitN,
+  engineNote,
+  sizeHint,
   denseLimits,
   initialReanalyseValues,
   insideFutureLightCone,
@@ -19,6 +22,7 @@ import {
   serverFieldErrors,
   type RunFormValues,
 } from '../../src/features/runs/lib/runForm';
+import { engineRowText, structuredSpectrumNote } from '../../src/features/runs/lib/engineText';
 import { formatSignificant, splitDecimal } from '../../src/features/runs/lib/numbers';
 import { parseCompareIds, runLabel } from '../../src/features/runs/lib/runIds';
 
@@ -70,17 +74,63 @@ describe('new-run form → POST /api/runs body', () => {
     if (!checked.ok) expect(checked.errors['sprinkling.count']).toMatch(/at least 2/);
   });
 
-  it('refuses N above the dense limit and says the limit', () => {
-    const checked = runRequestFromForm(form({ count: String(denseLimitN + 1) }));
+  // truncation none needs every mode, so only the dense engine serves it (shared/engineChoice.ts)
+  const none = { kind: 'none', value: '' } as const;
+
+  it('refuses N above the dense limit and says the limit when only the dense engine can serve', () => {
+    const checked = runRequestFromForm(form({ count: String(denseLimitN + 1), truncation: none }));
     expect(checked.ok).toBe(false);
     if (!checked.ok) expect(checked.errors['sprinkling.count']).toContain(`dense limit of ${denseLimitN}`);
+    if (!checked.ok) expect(checked.errors['sprinkling.count']).toMatch(/structured engine cannot take this run: .*truncation "none"/);
+    // 4D and the cylinder are dense-only whatever the cut
+    for (const regionKind of ['diamond4d', 'cylinder2d'] as const) {
+      const dense = runRequestFromForm(form({ regionKind, count: String(denseLimitN + 1) }));
+      expect(dense.ok).toBe(false);
+      if (!dense.ok) expect(dense.errors['sprinkling.count']).toContain(`dense limit of ${denseLimitN}`);
+    }
   });
 
   it('applies the server’s own limit once GET /api/limits has said it', () => {
-    const checked = runRequestFromForm(form({ count: '3001' }), DENSE_SIZE_LIMITS['ml-matrix']);
+    const checked = runRequestFromForm(form({ count: '3001', truncation: none }), DENSE_SIZE_LIMITS['ml-matrix']);
     expect(checked.ok).toBe(false);
     if (!checked.ok) expect(checked.errors['sprinkling.count']).toContain(`dense limit of ${DENSE_SIZE_LIMITS['ml-matrix']}`);
-    expect(runRequestFromForm(form({ count: '3000' }), DENSE_SIZE_LIMITS['ml-matrix']).ok).toBe(true);
+    expect(runRequestFromForm(form({ count: '3000', truncation: none }), DENSE_SIZE_LIMITS['ml-matrix']).ok).toBe(true);
+  });
+
+  it('checks N against the structured limit for a 2D cut, as the rule picks that engine', () => {
+    expect(runRequestFromForm(form({ count: String(STRUCTURED_MAX_N_2D) })).ok).toBe(true);
+    expect(runRequestFromForm(form({ count: '20000', truncation: { kind: 'modes', value: '40' } })).ok).toBe(true);
+    const over = runRequestFromForm(form({ count: String(STRUCTURED_MAX_N_2D + 1) }));
+    expect(over.ok).toBe(false);
+    if (!over.ok) expect(over.errors['sprinkling.count']).toContain(`structured limit of ${STRUCTURED_MAX_N_2D} elements`);
+    // forcing the dense engine brings its limit back
+    const forcedDense = runRequestFromForm(form({ count: String(denseLimitN + 1), engine: 'dense' }));
+    expect(forcedDense.ok).toBe(false);
+    if (!forcedDense.ok) expect(forcedDense.errors['sprinkling.count']).toContain(`dense limit of ${denseLimitN}`);
+  });
+
+  it('sends a forced engine, and refuses forcing the structured one where it cannot serve', () => {
+    const forced = runRequestFromForm(form({ engine: 'structured' }));
+    expect(forced.ok && forced.request.engine).toBe('structured');
+    expect(createRunRequestSchema.parse(forced.ok ? forced.request : {}).engine).toBe('structured');
+    const auto = runRequestFromForm(form());
+    expect(auto.ok && 'engine' in auto.request).toBe(false);
+    const knee = runRequestFromForm(form({ engine: 'structured', truncation: { kind: 'knee', value: '' } }));
+    expect(knee.ok).toBe(false);
+    if (!knee.ok) expect(knee.errors.engine).toMatch(/knee finder needs the spectrum past the knee/);
+    const fourD = runRequestFromForm(form({ engine: 'structured', regionKind: 'diamond4d' }));
+    expect(fourD.ok).toBe(false);
+    if (!fourD.ok) expect(fourD.errors.engine).toMatch(/2D only/);
+  });
+
+  it('states the limits and the engine the rule picks for the settings as typed', () => {
+    expect(sizeHint(form(), 6000)).toBe(`2 to ${STRUCTURED_MAX_N_2D} (structured engine, auto uses it from N = ${AUTO_STRUCTURED_FROM}; the dense one takes up to 6000).`);
+    expect(sizeHint(form({ truncation: none }), 6000)).toBe('2 to 6000 (dense engine).');
+    expect(sizeHint(form({ engine: 'dense' }), 3000)).toBe('2 to 3000 (dense engine, forced).');
+    expect(engineNote(form({ count: '500' }), 6000)).toMatch(/^Dense engine \(N < 1000/);
+    expect(engineNote(form({ count: '20000' }), 6000)).toMatch(/^Structured engine \(2D with a sqrtN cut and N ≥ 1000: only the modes above the cut are computed\)\.$/);
+    expect(engineNote(form({ count: '500', engine: 'structured' }), 6000)).toBe('Structured engine (forced by the request): only the modes above the cut are computed.');
+    expect(engineNote(form({ count: '20000', truncation: none }), 6000)).toMatch(/exceeds the dense limit of 6000 elements and the structured engine computes only the modes above a cut/);
   });
 
   it('states the same dense limits as the engine', () => {
@@ -211,5 +261,20 @@ describe('small helpers', () => {
   it('takes the download name from Content-Disposition', () => {
     expect(attachmentName('attachment; filename="tacet-run-2a2f7d25-points.csv"', 'x')).toBe('tacet-run-2a2f7d25-points.csv');
     expect(attachmentName(null, 'fallback.csv')).toBe('fallback.csv');
+  });
+});
+
+describe('which engine ran, on the run page', () => {
+  const base = { engineVersion: 'tacet-engine 0.1.0', backend: 'native', N: 20000, modesKept: 280, eigenvalues: Array.from({ length: 280 }, (_, k) => 1000 / (k + 1)) };
+  it('names the engine and its reason, and keeps old runs as they were', () => {
+    expect(engineRowText({ ...base, engine: 'structured', engineReason: 'forced by the request' })).toBe(
+      'structured (forced by the request) · tacet-engine 0.1.0, native backend',
+    );
+    expect(engineRowText(base)).toBe('tacet-engine 0.1.0, native backend');
+  });
+  it('says a structured spectrum holds only the modes above the cut; nothing for a dense run', () => {
+    expect(structuredSpectrumNote({ ...base, engine: 'structured' })).toMatch(/^Structured engine: only the modes above the cut were computed \(280 positive eigenvalues, 280 kept, of up to 10000\)/);
+    expect(structuredSpectrumNote({ ...base, engine: 'dense' })).toBeNull();
+    expect(structuredSpectrumNote(base)).toBeNull();
   });
 });

@@ -1,10 +1,19 @@
 import { Router } from 'express';
+import {
+  AUTO_STRUCTURED_FROM,
+  engineRuleText,
+  STRUCTURED_DIMENSIONS,
+  STRUCTURED_MAX_N_2D,
+  STRUCTURED_MEMORY_REASON,
+  STRUCTURED_TRUNCATIONS,
+} from '@shared/engineChoice';
 import type { EngineLimits } from '@shared/limits';
 import { DENSE_SIZE_LIMIT, DENSE_SIZE_LIMITS } from '../../engine/index';
 
 /**
- * GET /api/limits: the dense size limit the server validates against (the engine's limit for the
- * backend it selects here; workers start with the same environment, so they select the same one).
+ * GET /api/limits: the size limits the server validates against — the dense engine's for the backend it
+ * selects here (workers start with the same environment, so they select the same one), the structured
+ * engine's, and the rule that decides which applies.
  */
 export function limitsRoutes(): Router {
   const router = Router();
@@ -15,6 +24,14 @@ export function limitsRoutes(): Router {
       byBackend: { native: DENSE_SIZE_LIMITS.native, 'ml-matrix': DENSE_SIZE_LIMITS['ml-matrix'] },
       reason: DENSE_SIZE_LIMIT.reason,
     },
+    structured: {
+      maxN: STRUCTURED_MAX_N_2D,
+      dimensions: [...STRUCTURED_DIMENSIONS],
+      truncations: [...STRUCTURED_TRUNCATIONS],
+      autoFrom: AUTO_STRUCTURED_FROM,
+      reason: STRUCTURED_MEMORY_REASON,
+    },
+    rule: engineRuleText,
   };
   router.get('/limits', (_req, res) => {
     res.json(limits);

@@ -89,13 +89,13 @@ export function toEngineRequest(
   return { ...settings, source: { kind: 'sprinkling', sprinkling: request.sprinkling } };
 }
 
-/** EngineInputError → 422; the dense limit gets its own code so the form can say so beside N. */
+/** EngineInputError → 422; an engine size limit gets its own code so the form can say so beside N. */
 function validateForEngine(request: Omit<VacuumRequest, 'backend'>): void {
   try {
     validateVacuumRequest(request);
   } catch (error) {
     if (error instanceof EngineInputError) {
-      const tooLarge = /exceeds the dense limit/.test(error.message);
+      const tooLarge = /exceeds the (dense|structured) limit/.test(error.message);
       throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', error.message);
     }
     throw error;
@@ -176,6 +176,8 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         backend: row.backend ?? '',
         engineVersion: row.engineVersion ?? '',
         timings: s.timings,
+        ...(s.engine ? { engine: s.engine } : {}),
+        ...(s.engineReason ? { engineReason: s.engineReason } : {}),
       };
     }
     return {
@@ -220,6 +222,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           truncation: request.truncation,
           ...(request.subregion ? { subregion: request.subregion } : {}),
           doubleTruncation: request.doubleTruncation,
+          ...(request.engine ? { engine: request.engine } : {}),
           causalSet: imported.reference,
         };
         validateForEngine(toEngineRequest(stored, imported.dimension, imported.points, imported.relationWords));
@@ -247,6 +250,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         truncation: request.truncation,
         ...(request.subregion ? { subregion: request.subregion } : {}),
         doubleTruncation: request.doubleTruncation,
+        ...(request.engine ? { engine: request.engine } : {}),
         sprinkling,
       };
       validateForEngine(toEngineRequest(stored, 2, null));
@@ -312,6 +316,8 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         doubleTruncation: changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false),
         ...(base.sprinkling ? { sprinkling: base.sprinkling } : {}),
         ...(base.causalSet ? { causalSet: base.causalSet } : {}),
+        // the parent's engine request carries over (the rule may still pick another for the new cut)
+        ...(base.engine ? { engine: base.engine } : {}),
         reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
       };
       validateForEngine(

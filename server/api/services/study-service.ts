@@ -132,7 +132,7 @@ function engineCheck(what: string, request: Parameters<typeof validateVacuumRequ
     validateVacuumRequest(request);
   } catch (error) {
     if (error instanceof EngineInputError) {
-      const tooLarge = /exceeds the dense limit/.test(error.message);
+      const tooLarge = /exceeds the (dense|structured) limit/.test(error.message);
       throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `${what}: ${error.message}`);
     }
     throw error;

@@ -77,6 +77,8 @@ export function outcomeOf(result: VacuumResult): runs.RunOutcome {
           doubleTruncation: result.entropy.doubleTruncation,
         }
       : null,
+    engine: result.engine,
+    engineReason: result.engineReason,
   };
   return {
     n: result.N,

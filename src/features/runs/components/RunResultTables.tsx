@@ -1,5 +1,6 @@
 import type { RunDetail, RunResult } from '@shared/runs';
 import { describeTruncation } from '../../cutRules/lib/truncationForm';
+import { engineRowText } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
 import { Figure } from './Figure';
 import { stageLabels } from './RunProgress';
@@ -157,7 +158,7 @@ export function SettingsTable({ run }: { run: RunDetail }) {
     rows.push(['Double truncation', request.doubleTruncation ? 'yes' : 'no']);
   }
   if (run.result) {
-    rows.push(['Engine', `${run.result.engineVersion}, ${run.result.backend} backend`]);
+    rows.push(['Engine', engineRowText(run.result)]);
     const order = Object.keys(stageLabels);
     const timings = Object.entries(run.result.timings)
       .sort(([a], [b]) => order.indexOf(a) - order.indexOf(b))

@@ -1,3 +1,4 @@
+import { AUTO_STRUCTURED_FROM, chooseEngine, sizeLimitForRequest, STRUCTURED_MAX_N_2D, type EngineRequest } from '@shared/engineChoice';
 import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
 import type { PrngName, RegionKind, TruncationRule } from '@shared/vacuum';
 import type { z } from 'zod';
@@ -56,6 +57,8 @@ export interface RunFormValues {
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+  /** which engine computes the run: the documented rule (auto) or a forced one */
+  engine: EngineRequest;
 }
 
 /** What the form needs to know of the picked imported causal set. */
@@ -100,6 +103,7 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     past: { t: '-0.5', x: '0', y: '0', z: '0' },
     future: { t: '0.5', x: '0', y: '0', z: '0' },
     doubleTruncation: false,
+    engine: 'auto',
   };
 }
 
@@ -162,7 +166,7 @@ function regionFromForm(reader: NumberReader, v: RunFormValues): unknown {
 
 /** Human messages for the fields whose schema messages are terse ("Too small: expected ..."). */
 const fieldMessages: Record<string, string> = {
-  'sprinkling.count': `N is a whole number of elements, at least 2 and at most ${denseLimitN} (${denseLimits['ml-matrix']} without the native backend).`,
+  'sprinkling.count': `N is a whole number of elements, at least 2; at most ${denseLimitN} on the dense engine (${denseLimits['ml-matrix']} without the native backend), ${STRUCTURED_MAX_N_2D} on the structured one (2D with a sqrtN, lambda or modes cut).`,
   'sprinkling.density': 'The density ρ is a positive number (elements per unit volume).',
   'sprinkling.seed': 'Give a seed (any text or number), or press “New seed”.',
   'sprinkling.region.properTime': 'The proper time between the tips is a positive number.',
@@ -276,6 +280,10 @@ function importedRunRequest(v: RunFormValues, picked: PickedCausalSet | null): C
     truncation: truncationFromForm(v.truncation),
     doubleTruncation: v.withSubregion && v.doubleTruncation,
   };
+  if (v.engine !== 'auto') candidate.engine = v.engine;
+  if (v.engine === 'structured' && picked?.kind === 'relations') {
+    errors.engine = 'The structured engine sweeps light-cone coordinates; a relation list has none, so it runs on the dense engine.';
+  }
   if (v.title.trim()) candidate.title = v.title.trim();
   if (v.withSubregion) {
     const byElements = v.subregionBy === 'elements' || picked?.kind === 'relations';
@@ -322,20 +330,77 @@ export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN,
     doubleTruncation: v.withSubregion && v.doubleTruncation,
   };
   if (v.title.trim()) candidate.title = v.title.trim();
+  if (v.engine !== 'auto') candidate.engine = v.engine;
   if (v.withSubregion) candidate.subregion = subregionFromForm(reader, v, dimension);
 
   const parsed = createRunRequestSchema.safeParse(candidate);
   const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
+  const limit = engineLimitOf(v, maxN);
+  if (limit.unsupported && v.engine === 'structured') errors.engine = `${capitalise(limit.unsupported)}.`;
   const count = sprinkling.count;
-  if (typeof count === 'number' && Number.isInteger(count) && (count < 2 || count > maxN) && !errors['sprinkling.count']) {
+  if (typeof count === 'number' && Number.isInteger(count) && (count < 2 || (limit.maxN > 0 && count > limit.maxN)) && !errors['sprinkling.count']) {
     errors['sprinkling.count'] =
       count < 2
         ? 'A causal set needs at least 2 elements.'
-        : `N = ${count} is above the dense limit of ${maxN} elements: the engine holds about 7 N×N float64 matrices in memory at once (≈ ${((7 * 8 * count * count) / 1e9).toFixed(1)} GB here).`;
+        : limit.engine === 'dense'
+          ? `N = ${count} is above the dense limit of ${limit.maxN} elements: the engine holds about 7 N×N float64 matrices in memory at once (≈ ${((7 * 8 * count * count) / 1e9).toFixed(1)} GB here).` +
+            (limit.unsupported && v.engine !== 'dense' ? ` The structured engine cannot take this run: ${limit.unsupported}.` : '')
+          : `N = ${count} is above the structured limit of ${limit.maxN} elements (the truncated state alone is N × 2k numbers, k ≈ 2√N).`;
   }
   Object.assign(errors, subregionLightConeError(candidate.subregion));
   if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
   return { ok: true, request: parsed.data };
+}
+
+const capitalise = (text: string) => text.charAt(0).toUpperCase() + text.slice(1);
+/** The engine choice reads only the kind of rule, never its number, so a half-typed cut still tells. */
+const ruleOnly = (v: RunFormValues) => ({ rule: v.truncation.kind }) as TruncationRule;
+
+/**
+ * The engine the shared rule (shared/engineChoice.ts) would consider for the form's settings and the
+ * size limit that follows: the structured limit for 2D non-periodic regions with a sqrtN, lambda or
+ * modes cut (unless dense is forced), the dense limit `denseMaxN` otherwise.
+ */
+export function engineLimitOf(v: RunFormValues, denseMaxN: number = denseLimitN): ReturnType<typeof sizeLimitForRequest> {
+  return sizeLimitForRequest({
+    dimension: regionDimension(v.regionKind),
+    truncation: ruleOnly(v),
+    requested: v.engine,
+    denseMaxN,
+    periodic: v.regionKind === 'cylinder2d',
+  });
+}
+
+/** The hint beside N: the range the current settings allow, and which engine's limit that is. */
+export function sizeHint(v: RunFormValues, denseMaxN: number = denseLimitN): string {
+  const limit = engineLimitOf(v, denseMaxN);
+  if (limit.maxN === 0) return `The structured engine cannot take these settings; the dense one takes 2 to ${denseMaxN}.`;
+  if (limit.engine === 'dense') return `2 to ${limit.maxN} (dense engine${v.engine === 'dense' ? ', forced' : ''}).`;
+  const forced = v.engine === 'structured' ? 'forced' : `auto uses it from N = ${AUTO_STRUCTURED_FROM}`;
+  return `2 to ${limit.maxN} (structured engine, ${forced}; the dense one takes up to ${denseMaxN}).`;
+}
+
+/**
+ * What the engine choice does with the settings as typed, in one sentence for the form (the rule of
+ * shared/engineChoice.ts, so the run page says the same afterwards), or why the settings cannot run.
+ */
+export function engineNote(v: RunFormValues, denseMaxN: number = denseLimitN, picked: PickedCausalSet | null = null): string {
+  if (v.source === 'imported') {
+    if (picked?.kind === 'relations') return 'A relation list runs on the dense engine: it has no coordinates to sweep.';
+    return 'The server applies the same rule to the set’s own region and size; the run page says which engine ran.';
+  }
+  const N = Number(v.count);
+  if (!Number.isInteger(N) || N < 2 || (v.process === 'poisson' && v.sizeBy === 'density')) {
+    return `The engine follows from N: structured for 2D cuts from N = ${AUTO_STRUCTURED_FROM}, dense otherwise.`;
+  }
+  try {
+    const choice = chooseEngine({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: v.regionKind === 'cylinder2d' });
+    if (choice.engine === 'dense') return `Dense engine (${choice.reason}); it computes the whole spectrum.`;
+    if (choice.reason.includes('only the modes above the cut')) return `Structured engine (${choice.reason}).`;
+    return `Structured engine (${choice.reason}): only the modes above the cut are computed.`;
+  } catch (error) {
+    return `${capitalise((error as Error).message)}.`;
+  }
 }
 
 /** The re-analysis form: another truncation, subregion, mass or title for the same points. */

@@ -11,6 +11,7 @@ import { useCausalSets } from '../../causalSets/api/causalSets';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
+import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { useEngineLimits } from '../api/limits';
 import { useCreateRun } from '../api/runs';
 import { SubregionFields } from '../components/SubregionFields';
@@ -18,11 +19,13 @@ import {
   defaultRunForm,
   denseLimitN,
   denseLimits,
+  engineNote,
   newSeed,
   regionDimension,
   regionLabels,
   runRequestFromForm,
   serverFieldErrors,
+  sizeHint,
   type PickedCausalSet,
   type RunFormValues,
 } from '../lib/runForm';
@@ -63,7 +66,9 @@ function NewRunForm() {
   const errors = useFormErrors();
   const createRun = useCreateRun();
   const cutRules = useCutRules();
-  const limits = useEngineLimits().data;
+  const engineLimits = useEngineLimits().data;
+  const limits = engineLimits?.dense;
+  const structuredMaxN = engineLimits?.structured.maxN ?? STRUCTURED_MAX_N_2D;
   const navigate = useNavigate();
   const fe = errors.fieldErrors;
   const causalSets = useCausalSets();
@@ -200,13 +205,15 @@ function NewRunForm() {
                       (JavaScript backend; the native one takes <span className="figures">{limits.byBackend.native}</span>)
                     </>
                   )}
-                  : it holds about seven N×N matrices at once.
+                  : it holds about seven N×N matrices at once. The structured engine takes 2D cut runs up to{' '}
+                  <span className="figures">{structuredMaxN}</span>.
                 </>
               ) : (
                 <>
                   The dense engine takes at most <span className="figures">{denseLimits.native}</span> elements with the
                   native backend, <span className="figures">{denseLimits['ml-matrix']}</span> without: it holds about seven
-                  N×N matrices at once.
+                  N×N matrices at once. The structured engine takes 2D cut runs up to{' '}
+                  <span className="figures">{structuredMaxN}</span>.
                 </>
               )}
             </>
@@ -246,7 +253,7 @@ function NewRunForm() {
                 value={values.count}
                 onChange={(e) => set('count', e.target.value)}
                 error={fe['sprinkling.count']}
-                hint={`2 to ${limits?.maxN ?? denseLimitN}.`}
+                hint={sizeHint(values, limits?.maxN ?? denseLimitN)}
               />
             ) : (
               <TextField
@@ -319,6 +326,25 @@ function NewRunForm() {
             presetId={presetId}
             onPresetChange={setPresetId}
           />
+        </FormSection>
+
+        <FormSection title="Engine" note={engineLimits?.rule ?? 'Auto follows the documented rule; forcing one engine is for comparisons.'}>
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <SelectField
+              label="Engine"
+              name="engine"
+              value={values.engine}
+              onChange={(e) => set('engine', e.target.value as RunFormValues['engine'])}
+              error={fe.engine}
+            >
+              <option value="auto">Auto (by the rule)</option>
+              <option value="dense">Dense (whole spectrum)</option>
+              <option value="structured">Structured (modes above the cut)</option>
+            </SelectField>
+            <p className="text-sm text-ink-soft sm:col-span-2 sm:pt-7" aria-live="polite">
+              {engineNote(values, limits?.maxN ?? denseLimitN, picked)}
+            </p>
+          </div>
         </FormSection>
 
         <FormSection title="Subregion" note="Optional.">

@@ -12,6 +12,7 @@ import { Caution } from '../components/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
 import { DiagnosticsTable, EntropyTable, SettingsTable } from '../components/RunResultTables';
 import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
+import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
 import { StatusLabel } from '../components/StatusLabel';
 import { runLabel } from '../lib/runIds';
@@ -96,6 +97,11 @@ function RunView({ run }: { run: RunDetail }) {
             <Caution />
           </div>
           <Section title="Spectrum" aside={<span className="figures">N = {result.N}</span>}>
+            {structuredSpectrumNote(result) && (
+              <p className="mb-4 text-sm text-ink-soft" data-testid="structured-note">
+                {structuredSpectrumNote(result)}
+              </p>
+            )}
             <SpectrumPlot run={run} result={result} />
           </Section>
           <Section title="Points">
