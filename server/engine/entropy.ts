@@ -65,14 +65,15 @@ export function subregionElements(
   return Int32Array.from(inside);
 }
 
-function topColumns(vectors: DenseMatrix, count: number): DenseMatrix {
-  const n = vectors.rows;
-  const out = denseMatrix(n, count);
-  for (let c = 0; c < count; c++) {
-    const source = vectors.cols - 1 - c;
-    out.data.set(vectors.data.subarray(source * n, (source + 1) * n), c * n);
+function symmetrise(m: DenseMatrix): void {
+  const n = m.rows;
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < j; i++) {
+      const v = 0.5 * (m.data[i + j * n] + m.data[j + i * n]);
+      m.data[i + j * n] = v;
+      m.data[j + i * n] = v;
+    }
   }
-  return out;
 }
 
 function symmetricSquareRoot(x: DenseMatrix, backend: LinearAlgebraBackend): DenseMatrix {
@@ -96,14 +97,63 @@ function bosonicTerm(kappa: number): number {
 }
 
 /**
+ * The inner SSEE routine, the real-arithmetic route of physics notes §5 (Sorkin 2012,
+ * arXiv:1205.2953; Saravani–Sorkin–Yazdi 2014, CQG 31 214006; double truncation Sorkin–Yazdi 2018,
+ * CQG 35 074004). X = Re W_c|_O (symmetric) and A = Δ_c|_O (antisymmetric) may be given in any
+ * orthonormal basis of a subspace holding their joint range (the n × n restriction itself, or the
+ * 2k × 2k reduction of the factored state): S and the nonzero spectrum of A do not change.
+ * The cut: with `doubleTruncation` the modes of AᵀA with σ ≤ √n/(4π) are dropped (n = elements of O,
+ * whatever the basis size), otherwise only the numerical kernel (σ ≤ KERNEL_RELATIVE_THRESHOLD σ_max).
+ * U = kept eigenvectors of AᵀA, Ã = UᵀAU, X̃ = UᵀXU, B = X̃^½ Ã⁻¹ X̃^½; the eigenvalues κ² of BᵀB (each
+ * twice) give S = ½ Σ_i [(κ_i+½) ln(κ_i+½) − (κ_i−½) ln(κ_i−½)] and μ = ½ ± κ. Ã⁻¹ = diag(σ⁻²) Ãᵀ since
+ * ÃᵀÃ = UᵀAᵀAU = diag(σ²) on the invariant subspace spanned by U. X is symmetrised in place.
+ */
+export function restrictedEntropy(
+  x: DenseMatrix,
+  a: DenseMatrix,
+  cut: { n: number; doubleTruncation: boolean },
+  backend: LinearAlgebraBackend,
+): EntropyResult {
+  const { n, doubleTruncation } = cut;
+  const m = a.rows;
+  symmetrise(x);
+  const eig = backend.symmetricEigen(backend.gram(a));
+  const sigmas = pairedSingularValues(eig.values);
+  const cutoff = doubleTruncation ? sqrtNCutoff(n) : KERNEL_RELATIVE_THRESHOLD * (sigmas[0] ?? 0);
+  let pairs = 0;
+  while (pairs < sigmas.length && sigmas[pairs] > cutoff) pairs++;
+  const kept = 2 * pairs;
+  if (kept === 0) return { S: 0, n, modesKept: 0, cutoff, doubleTruncation, generalizedEigenvalues: new Float64Array(0) };
+  const u = denseMatrix(m, kept);
+  const gramKept = new Float64Array(kept);
+  const vectors = (eig.vectors as DenseMatrix).data;
+  for (let c = 0; c < kept; c++) {
+    const source = m - 1 - c;
+    u.data.set(vectors.subarray(source * m, (source + 1) * m), c * m);
+    gramKept[c] = eig.values[source];
+  }
+  const aTilde = backend.multiply(u, backend.multiply(a, u), { transposeA: true });
+  const xTilde = backend.multiply(u, backend.multiply(x, u), { transposeA: true });
+  symmetrise(xTilde);
+  const aTildeInverse = denseMatrix(kept, kept);
+  for (let j = 0; j < kept; j++) for (let i = 0; i < kept; i++) aTildeInverse.data[i + j * kept] = aTilde.data[j + i * kept] / gramKept[i];
+  const root = symmetricSquareRoot(xTilde, backend);
+  const b = backend.multiply(root, backend.multiply(aTildeInverse, root));
+  const kappaSquared = backend.symmetricEigen(backend.gram(b), { vectors: false }).values;
+  let sum = 0;
+  for (let i = 0; i < kappaSquared.length; i++) sum += bosonicTerm(Math.sqrt(Math.max(kappaSquared[i], 0)));
+  const mu: number[] = [];
+  for (const kappa of pairedSingularValues(kappaSquared)) mu.push(0.5 + kappa, 0.5 - kappa);
+  mu.sort((p, q) => q - p);
+  return { S: 0.5 * sum, n, modesKept: kept, cutoff, doubleTruncation, generalizedEigenvalues: Float64Array.from(mu) };
+}
+
+/**
  * Sorkin's spacetime entanglement entropy of a subregion O (Sorkin 2012, arXiv:1205.2953;
  * Saravani–Sorkin–Yazdi 2014, CQG 31 214006): S = Σ μ ln|μ| over W_O v = μ iΔ_O v outside the kernel of
  * iΔ_O. Double truncation (Sorkin–Yazdi 2018): restrict the truncated W_c, iΔ_c and drop the modes of the
- * restricted iΔ_c with |λ| ≤ √n/(4π); otherwise only the numerical kernel is dropped.
- * Real-arithmetic route of physics notes §5: with A = Δ_c|_O, X = Re W_c|_O and μ = ½ + ν, X v = ν (iA) v.
- * U = kept eigenvectors of AᵀA, Ã = UᵀAU, X̃ = UᵀXU, B = X̃^½ Ã⁻¹ X̃^½; the eigenvalues κ² of BᵀB (each
- * twice) give S = ½ Σ_i [(κ_i+½) ln(κ_i+½) − (κ_i−½) ln(κ_i−½)] and μ = ½ ± κ. Ã⁻¹ = diag(σ⁻²) Ãᵀ since
- * ÃᵀÃ = UᵀAᵀAU = diag(σ²) on the invariant subspace spanned by U.
+ * restricted iΔ_c with |λ| ≤ √n/(4π); otherwise only the numerical kernel is dropped. Restricts the
+ * dense state to O (A = Δ_c|_O = 2 Im W_c|_O, X = Re W_c|_O) and hands both to restrictedEntropy.
  */
 export function entanglementEntropy(
   state: SjState,
@@ -115,33 +165,7 @@ export function entanglementEntropy(
   const doubleTruncation = options.doubleTruncation === true;
   if (n < 2) throw new RangeError(`the subregion holds ${n} element(s); the entropy needs at least 2`);
   const { real, imaginary } = restrictedWightman(state, elements, backend);
-  // A = Δ_c|_O = 2 Im W_c|_O, X = Re W_c|_O
   const a = denseMatrix(n, n);
   for (let k = 0; k < a.data.length; k++) a.data[k] = 2 * imaginary.data[k];
-  const x = real;
-  const eig = backend.symmetricEigen(backend.gram(a));
-  const sigmas = pairedSingularValues(eig.values);
-  const cutoff = doubleTruncation ? sqrtNCutoff(n) : KERNEL_RELATIVE_THRESHOLD * (sigmas[0] ?? 0);
-  let pairs = 0;
-  while (pairs < sigmas.length && sigmas[pairs] > cutoff) pairs++;
-  const kept = 2 * pairs;
-  if (kept === 0) {
-    return { S: 0, n, modesKept: 0, cutoff, doubleTruncation, generalizedEigenvalues: new Float64Array(0) };
-  }
-  const u = topColumns(eig.vectors as DenseMatrix, kept);
-  const gramKept = Float64Array.from({ length: kept }, (_, c) => eig.values[eig.values.length - 1 - c]);
-  const aTilde = backend.multiply(u, backend.multiply(a, u), { transposeA: true });
-  const xTilde = backend.multiply(u, backend.multiply(x, u), { transposeA: true });
-  for (let j = 0; j < kept; j++) for (let i = 0; i < j; i++) xTilde.data[i + j * kept] = xTilde.data[j + i * kept];
-  const aTildeInverse = denseMatrix(kept, kept);
-  for (let j = 0; j < kept; j++) for (let i = 0; i < kept; i++) aTildeInverse.data[i + j * kept] = aTilde.data[j + i * kept] / gramKept[i];
-  const root = symmetricSquareRoot(xTilde, backend);
-  const b = backend.multiply(root, backend.multiply(aTildeInverse, root));
-  const kappaSquared = backend.symmetricEigen(backend.gram(b), { vectors: false }).values;
-  let sum = 0;
-  const mu: number[] = [];
-  for (let i = 0; i < kappaSquared.length; i++) sum += bosonicTerm(Math.sqrt(Math.max(kappaSquared[i], 0)));
-  for (const kappa of pairedSingularValues(kappaSquared)) mu.push(0.5 + kappa, 0.5 - kappa);
-  mu.sort((p, q) => q - p);
-  return { S: 0.5 * sum, n, modesKept: kept, cutoff, doubleTruncation, generalizedEigenvalues: Float64Array.from(mu) };
+  return restrictedEntropy(real, a, { n, doubleTruncation }, backend);
 }

@@ -1,9 +1,6 @@
-import type { EntropyResult } from '../entropy';
-import { KERNEL_RELATIVE_THRESHOLD } from '../entropy';
+import { restrictedEntropy, type EntropyResult } from '../entropy';
 import type { DenseMatrix, LinearAlgebraBackend } from '../linalg/backend';
 import { denseMatrix, getBackend } from '../linalg';
-import { pairedSingularValues } from '../pauliJordan';
-import { sqrtNCutoff } from '../truncation';
 import type { FactoredSjState } from './factoredState';
 import { gatheredGram } from './kernels';
 
@@ -18,8 +15,8 @@ const NULL_DIRECTION_RELATIVE = 1e-14;
  * D = ½ diag(σ_1, σ_1, …) and A = Δ_c|_O = F J Fᵀ with J block diagonal [[0, −σ], [σ, 0]]; both have
  * rank ≤ 2k. With the Gram matrix G = FᵀF = V Λ Vᵀ, the columns of Q = F V Λ^(−½) are an orthonormal basis
  * of their range and QᵀF = R = Λ^½ Vᵀ, so X and A act on that range as the 2k × 2k matrices R D Rᵀ and
- * R J Rᵀ — no division by Λ is ever done. The entropy route of physics notes §5 (restricted modes of
- * AᵀA above √n/(4π), B = X̃^½ Ã⁻¹ X̃^½, S from the κ of BᵀB) then runs on those small matrices, since
+ * R J Rᵀ — no division by Λ is ever done. The dense engine's inner routine (entropy.ts restrictedEntropy:
+ * restricted modes of AᵀA above √n/(4π), B = X̃^½ Ã⁻¹ X̃^½, S from the κ of BᵀB) then runs on those small matrices, since
  * S and the nonzero spectrum of A are unchanged by the orthonormal change of basis. Cost O(n k²) for G
  * and O(k³) for the rest.
  */
@@ -82,68 +79,5 @@ export function factoredEntropy(
   }
   const x = backend.multiply(rd, reduced, { transposeB: true });
   const a = backend.multiply(rj, reduced, { transposeB: true });
-  return restrictedEntropy(x, a, n, doubleTruncation, backend);
-}
-
-function symmetrise(m: DenseMatrix): void {
-  const n = m.rows;
-  for (let j = 0; j < n; j++) {
-    for (let i = 0; i < j; i++) {
-      const v = 0.5 * (m.data[i + j * n] + m.data[j + i * n]);
-      m.data[i + j * n] = v;
-      m.data[j + i * n] = v;
-    }
-  }
-}
-
-function bosonicTerm(kappa: number): number {
-  const k = Math.max(kappa, 0.5);
-  const minus = k - 0.5;
-  return (k + 0.5) * Math.log(k + 0.5) - (minus > 0 ? minus * Math.log(minus) : 0);
-}
-
-/**
- * The real-arithmetic SSEE route of physics notes §5 on X (symmetric) and A (antisymmetric) given in
- * any orthonormal basis of their joint range; `n` is the subregion size for the √n/(4π) cut.
- */
-function restrictedEntropy(x: DenseMatrix, a: DenseMatrix, n: number, doubleTruncation: boolean, backend: LinearAlgebraBackend): EntropyResult {
-  const m = a.rows;
-  symmetrise(x);
-  const eig = backend.symmetricEigen(backend.gram(a));
-  const sigmas = pairedSingularValues(eig.values);
-  const cutoff = doubleTruncation ? sqrtNCutoff(n) : KERNEL_RELATIVE_THRESHOLD * (sigmas[0] ?? 0);
-  let pairs = 0;
-  while (pairs < sigmas.length && sigmas[pairs] > cutoff) pairs++;
-  const kept = 2 * pairs;
-  if (kept === 0) return { S: 0, n, modesKept: 0, cutoff, doubleTruncation, generalizedEigenvalues: new Float64Array(0) };
-  const u = denseMatrix(m, kept);
-  const gramKept = new Float64Array(kept);
-  const vec = (eig.vectors as DenseMatrix).data;
-  for (let c = 0; c < kept; c++) {
-    const source = m - 1 - c;
-    u.data.set(vec.subarray(source * m, (source + 1) * m), c * m);
-    gramKept[c] = eig.values[source];
-  }
-  const aTilde = backend.multiply(u, backend.multiply(a, u), { transposeA: true });
-  const xTilde = backend.multiply(u, backend.multiply(x, u), { transposeA: true });
-  symmetrise(xTilde);
-  // Ã⁻¹ = diag(σ⁻²) Ãᵀ because ÃᵀÃ = diag(σ²) on the invariant subspace spanned by U
-  const aTildeInverse = denseMatrix(kept, kept);
-  for (let j = 0; j < kept; j++) for (let i = 0; i < kept; i++) aTildeInverse.data[i + j * kept] = aTilde.data[j + i * kept] / gramKept[i];
-  const xEig = backend.symmetricEigen(xTilde);
-  const scaled = denseMatrix(kept, kept);
-  const xv = (xEig.vectors as DenseMatrix).data;
-  for (let c = 0; c < kept; c++) {
-    const root = Math.sqrt(Math.max(xEig.values[c], 0));
-    for (let i = 0; i < kept; i++) scaled.data[i + c * kept] = xv[i + c * kept] * root;
-  }
-  const root = backend.multiply(scaled, xEig.vectors as DenseMatrix, { transposeB: true });
-  const b = backend.multiply(root, backend.multiply(aTildeInverse, root));
-  const kappaSquared = backend.symmetricEigen(backend.gram(b), { vectors: false }).values;
-  let sum = 0;
-  for (let i = 0; i < kappaSquared.length; i++) sum += bosonicTerm(Math.sqrt(Math.max(kappaSquared[i], 0)));
-  const mu: number[] = [];
-  for (const kappa of pairedSingularValues(kappaSquared)) mu.push(0.5 + kappa, 0.5 - kappa);
-  mu.sort((p, q) => q - p);
-  return { S: 0.5 * sum, n, modesKept: kept, cutoff, doubleTruncation, generalizedEigenvalues: Float64Array.from(mu) };
+  return restrictedEntropy(x, a, { n, doubleTruncation }, backend);
 }
