@@ -95,3 +95,23 @@ describe('apiClient', () => {
     await expect(api.delete('/api/team/members/u1')).resolves.toBeUndefined();
   });
 });
+
+describe('apiClient CSRF header', () => {
+  afterEach(() => vi.unstubAllGlobals());
+
+  it('echoes the tacet_csrf cookie on writes and not on reads', async () => {
+    const calls: RequestInit[] = [];
+    vi.stubGlobal('document', { cookie: 'other=1; tacet_csrf=abc%2D123; tacet_session=zzz' });
+    vi.stubGlobal('fetch', async (_url: string, init: RequestInit) => {
+      calls.push(init);
+      return new Response(JSON.stringify({ ok: true }), { status: 200, headers: { 'Content-Type': 'application/json' } });
+    });
+    await api.get('/api/me');
+    await api.patch('/api/me', { name: 'x' });
+    await api.delete('/api/me/tokens/1');
+    const header = (init: RequestInit) => (init.headers as Record<string, string>)['x-tacet-csrf'];
+    expect(header(calls[0]!)).toBeUndefined();
+    expect(header(calls[1]!)).toBe('abc-123');
+    expect(header(calls[2]!)).toBe('abc-123');
+  });
+});
