@@ -17,28 +17,57 @@ function Row({ label, children, note }: { label: string; children: React.ReactNo
   );
 }
 
+/**
+ * With only the whole-region cut (k positive modes kept), the restricted W_c and iΔ_c have rank at most
+ * 2k; once the subregion holds more elements than that, the restricted state is pure and S vanishes in
+ * exact arithmetic (numpy on the diamond300 reference gives 1e-12), so what is shown is rounding.
+ */
+export function singleCutNote(entropy: NonNullable<RunResult['entropy']>, wholeRegionModesKept: number, truncated: boolean, doubleTruncation: boolean): string | null {
+  if (!truncated || doubleTruncation || entropy.n <= 2 * wholeRegionModesKept) return null;
+  return (
+    `Only the whole-region cut was applied: the restricted state lives on at most 2k = ${2 * wholeRegionModesKept} modes, ` +
+    `fewer than the n = ${entropy.n} elements of the subregion, so it is pure and S is zero up to rounding. ` +
+    'Double truncation (a second cut at √n/(4π), Sorkin–Yazdi 2018) gives the area-law entropy.'
+  );
+}
+
 /** The subregion's entropy: S, its size and the modes its restricted state kept. */
-export function EntropyTable({ entropy, doubleTruncation }: { entropy: NonNullable<RunResult['entropy']>; doubleTruncation: boolean }) {
+export function EntropyTable({
+  entropy,
+  doubleTruncation,
+  note,
+}: {
+  entropy: NonNullable<RunResult['entropy']>;
+  doubleTruncation: boolean;
+  note?: string | null;
+}) {
   const positive = entropy.generalizedEigenvalues.filter((mu) => mu > 1).length;
   return (
-    <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
-      <tbody>
-        <Row label="Entanglement entropy S" note="Sorkin's spacetime entropy of the subregion">
-          <span data-testid="entropy-S" data-value={entropy.S}>
-            <Figure value={entropy.S} digits={6} />
-          </span>
-        </Row>
-        <Row label="Elements in the subregion n">
-          <Figure value={entropy.n} />
-        </Row>
-        <Row label="Modes kept in the subregion" note={doubleTruncation ? 'after the second cut at √n/(4π)' : undefined}>
-          <Figure value={entropy.modesKept} />
-        </Row>
-        <Row label="Generalised eigenvalues μ > 1" note="of W_sub v = μ iΔ_sub v; each contributes to S">
-          <Figure value={positive} />
-        </Row>
-      </tbody>
-    </table>
+    <>
+      <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
+        <tbody>
+          <Row label="Entanglement entropy S" note="Sorkin's spacetime entropy of the subregion">
+            <span data-testid="entropy-S" data-value={entropy.S}>
+              <Figure value={entropy.S} digits={6} />
+            </span>
+          </Row>
+          <Row label="Elements in the subregion n">
+            <Figure value={entropy.n} />
+          </Row>
+          <Row label="Modes kept in the subregion" note={doubleTruncation ? 'after the second cut at √n/(4π)' : undefined}>
+            <Figure value={entropy.modesKept} />
+          </Row>
+          <Row label="Generalised eigenvalues μ > 1" note="of W_sub v = μ iΔ_sub v; each contributes to S">
+            <Figure value={positive} />
+          </Row>
+        </tbody>
+      </table>
+      {note && (
+        <p className="mt-3 max-w-md text-xs text-ink-soft" data-testid="single-cut-note">
+          {note}
+        </p>
+      )}
+    </>
   );
 }
 

@@ -10,7 +10,7 @@ import { useCan } from '../../auth/api/me';
 import { downloadRunFile, isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
 import { Caution } from '../components/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
-import { DiagnosticsTable, EntropyTable, SettingsTable } from '../components/RunResultTables';
+import { DiagnosticsTable, EntropyTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
 import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
 import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
@@ -44,6 +44,7 @@ export function RunPage() {
 function RunView({ run }: { run: RunDetail }) {
   const canCompute = useCan('compute');
   const result = run.result;
+  const doubleTruncation = Boolean((run.request as { doubleTruncation?: boolean } | null)?.doubleTruncation);
   const dimension = run.dimension;
 
   return (
@@ -110,7 +111,11 @@ function RunView({ run }: { run: RunDetail }) {
           <div className="grid grid-cols-1 gap-x-12 md:grid-cols-2">
             {result.entropy ? (
               <Section title="Entropy">
-                <EntropyTable entropy={result.entropy} doubleTruncation={Boolean((run.request as { doubleTruncation?: boolean })?.doubleTruncation)} />
+                <EntropyTable
+                  entropy={result.entropy}
+                  doubleTruncation={doubleTruncation}
+                  note={singleCutNote(result.entropy, result.modesKept, run.truncation !== 'none', doubleTruncation)}
+                />
               </Section>
             ) : (
               <Section title="Entropy">
