@@ -22,7 +22,7 @@ function Row({ label, children, note }: { label: string; children: React.ReactNo
  * 2k; once the subregion holds more elements than that, the restricted state is pure and S vanishes in
  * exact arithmetic (numpy on the diamond300 reference gives 1e-12), so what is shown is rounding.
  */
-export function singleCutNote(entropy: NonNullable<RunResult['entropy']>, wholeRegionModesKept: number, truncated: boolean, doubleTruncation: boolean): string | null {
+export function singleCutNote(entropy: { n: number }, wholeRegionModesKept: number, truncated: boolean, doubleTruncation: boolean): string | null {
   if (!truncated || doubleTruncation || entropy.n <= 2 * wholeRegionModesKept) return null;
   return (
     `Only the whole-region cut was applied: the restricted state lives on at most 2k = ${2 * wholeRegionModesKept} modes, ` +
