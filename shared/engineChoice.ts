@@ -95,7 +95,7 @@ export function chooseEngine(input: EngineChoiceInput): EngineChoice {
 
 /** The rule of chooseEngine in one paragraph, as GET /api/limits states it and the run form shows it. */
 export const engineRuleText =
-  `auto picks the structured engine for 2D non-periodic regions with a sqrtN, lambda or modes cut when ` +
+  `Auto picks the structured engine for 2D non-periodic regions with a sqrtN, lambda or modes cut when ` +
   `N ≥ ${AUTO_STRUCTURED_FROM} (or N is above the dense limit), up to ${STRUCTURED_MAX_N_2D} elements; ` +
   `it computes only the modes above the cut. Everything else (truncation none or knee, 4D, the cylinder, ` +
   `a causal set given by its relation only) runs on the dense engine, which holds N×N matrices.`;

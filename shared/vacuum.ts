@@ -204,7 +204,7 @@ export const vacuumSettingsSchema = z.strictObject({
   doubleTruncation: z.boolean().default(false),
   /**
    * dense (N×N matrices, N ≤ 6000), structured (2D non-periodic with sqrtN, lambda or modes: only the
-   * modes above the cut, N ≤ 100 000) or auto (the rule in server/engine/structured/engineChoice.ts)
+   * modes above the cut, N ≤ 100 000) or auto (the rule in shared/engineChoice.ts)
    */
   engine: z.enum(['auto', 'dense', 'structured']).optional(),
 });
