@@ -94,6 +94,25 @@ export interface VacuumHooks {
   shouldCancel?(): boolean;
 }
 
+/**
+ * Runs one stage of a computation: checks `shouldCancel()` before it (throws CancelledError), reports
+ * progress 0 and 1, records its seconds in `timings`, and yields to the event loop first so a cancel
+ * request or a progress write can get through.
+ */
+export function stageRunner(hooks: VacuumHooks, timings: Partial<Record<VacuumStage, number>>) {
+  return async <T>(name: VacuumStage, work: () => T): Promise<T> => {
+    if (hooks.shouldCancel?.()) throw new CancelledError(name);
+    hooks.onProgress?.(name, 0);
+    await new Promise((resolve) => setImmediate(resolve));
+    if (hooks.shouldCancel?.()) throw new CancelledError(name);
+    const start = performance.now();
+    const value = work();
+    timings[name] = (performance.now() - start) / 1000;
+    hooks.onProgress?.(name, 1);
+    return value;
+  };
+}
+
 export interface VacuumResult {
   engineVersion: string;
   /** which engine ran, and why (structured: `eigenvalues` holds only the computed modes above the cut) */
@@ -317,18 +336,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
   const { choice, maxN: sizeLimit } = engineAndLimit(request, denseLimit);
   validateVacuumRequest(request, sizeLimit);
   const timings: Partial<Record<VacuumStage, number>> = {};
-  const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
-    if (hooks.shouldCancel?.()) throw new CancelledError(name);
-    hooks.onProgress?.(name, 0);
-    // yield to the event loop so a cancel request or a progress write can get through
-    await new Promise((resolve) => setImmediate(resolve));
-    if (hooks.shouldCancel?.()) throw new CancelledError(name);
-    const start = performance.now();
-    const value = work();
-    timings[name] = (performance.now() - start) / 1000;
-    hooks.onProgress?.(name, 1);
-    return value;
-  };
+  const stage = stageRunner(hooks, timings);
 
   const source = request.source;
   const placed = await stage('sprinkle', () => {

@@ -7,6 +7,7 @@ import { retardedGreen } from '../engine/green';
 import {
   CancelledError,
   checkDenseSize,
+  stageRunner,
   DENSE_SIZE_LIMIT,
   ENGINE_VERSION,
   EngineInputError,
@@ -80,18 +81,7 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
   if ((spec.sprinkling === undefined) === (spec.imported === undefined)) throw new EngineInputError('a study cell needs exactly one of a sprinkling and an imported causal set');
   validateVacuumRequest({ source: cellPointSource(spec), mass: spec.mass }, DENSE_SIZE_LIMIT.maxN);
   const timings: Partial<Record<VacuumStage, number>> = {};
-  const stage = async <T>(name: VacuumStage, work: () => T): Promise<T> => {
-    if (hooks.shouldCancel?.()) throw new CancelledError(name);
-    hooks.onProgress?.(name, 0);
-    // yield so a cancel request or a progress message can get through
-    await new Promise((resolve) => setImmediate(resolve));
-    if (hooks.shouldCancel?.()) throw new CancelledError(name);
-    const start = performance.now();
-    const value = work();
-    timings[name] = (performance.now() - start) / 1000;
-    hooks.onProgress?.(name, 1);
-    return value;
-  };
+  const stage = stageRunner(hooks, timings);
 
   const placed = await stage('sprinkle', (): PlacedCell => {
     if (spec.imported) return placeImported(spec.imported);
