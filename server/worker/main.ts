@@ -1,4 +1,5 @@
 /** The worker process: `tsx server/worker/main.ts`. Runs computations so the API never blocks on numerics. */
+import os from 'node:os';
 import { loadConfig } from '../config';
 import { createDataSource } from '../db/data-source';
 import { createMailer } from '../mail/mailer';
@@ -6,6 +7,18 @@ import { createComputeQueue, createRedisConnection } from '../queue/compute-queu
 import { jobHandlers } from './handlers/index';
 import { reconcileStalledJob, sweepOrphanedWork } from './recovery';
 import { startComputeWorker } from './worker';
+
+// Numerics take every core they get; on a machine shared with the API, compute at a lower CPU priority
+// so requests stay fast. Set before any thread starts: engine and BLAS threads inherit it.
+const workerNice = Number(process.env.TACET_WORKER_NICE ?? 10);
+if (!Number.isInteger(workerNice) || workerNice < -20 || workerNice > 19) {
+  throw new Error(`TACET_WORKER_NICE must be an integer from -20 to 19, got "${process.env.TACET_WORKER_NICE}"`);
+}
+try {
+  os.setPriority(workerNice);
+} catch (error) {
+  console.warn(`[worker] could not set CPU priority ${workerNice}: ${(error as Error).message}`);
+}
 
 const config = loadConfig();
 const dataSource = createDataSource(config.databaseUrl);
@@ -24,25 +37,9 @@ worker.on('stalled', (jobId) => {
     .then((failed) => failed && console.warn(`[worker] job ${jobId} stalled too often; its run is marked failed`))
     .catch((error: Error) => console.warn(`[worker] could not check stalled job ${jobId}: ${error.message}`));
 });
-await worker.waitUntilReady();
-const known = Object.keys(jobHandlers);
-console.log(`[worker] pid ${process.pid} waiting for jobs on ${config.queuePrefix}:tacet-compute (handlers: ${known.join(', ') || 'none yet'})`);
-
-const sweepGraceMs = Number(process.env.TACET_SWEEP_GRACE_MS ?? 60_000);
-const sweepIntervalMs = Number(process.env.TACET_SWEEP_INTERVAL_MS ?? 60_000);
-async function sweep(): Promise<void> {
-  try {
-    const report = await sweepOrphanedWork({ dataSource, queue, graceMs: sweepGraceMs });
-    if (report.runs.length || report.cells.length) {
-      console.warn(`[worker] sweep: marked failed ${report.runs.length} run(s) and ${report.cells.length} study cell(s) whose jobs were lost`);
-    }
-  } catch (error) {
-    console.warn(`[worker] sweep skipped: ${(error as Error).message}`);
-  }
-}
-await sweep();
-const sweepTimer = setInterval(() => void sweep(), sweepIntervalMs);
-
+// The handlers go in before the worker can take a job, so a SIGTERM at any moment after start-up
+// finishes or re-queues it.
+let sweepTimer: NodeJS.Timeout | undefined;
 /**
  * SIGTERM/SIGINT: stop taking jobs and let the current one finish. If it takes longer than the grace
  * period the worker closes anyway; the job's lock then runs out and BullMQ's stalled-job check hands
@@ -56,7 +53,7 @@ async function shutdown(signal: string): Promise<void> {
     process.exit(1);
   }
   stopping = true;
-  clearInterval(sweepTimer);
+  if (sweepTimer) clearInterval(sweepTimer);
   console.log(`[worker] ${signal}: finishing the current job, then stopping (at most ${Math.round(shutdownGraceMs / 1000)} s)`);
   const graceOver = new Promise<'timeout'>((resolve) => setTimeout(() => resolve('timeout'), shutdownGraceMs).unref());
   let code = 0;
@@ -74,3 +71,23 @@ async function shutdown(signal: string): Promise<void> {
 }
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 process.on('SIGINT', () => void shutdown('SIGINT'));
+await worker.waitUntilReady();
+const known = Object.keys(jobHandlers);
+console.log(`[worker] pid ${process.pid} waiting for jobs on ${config.queuePrefix}:tacet-compute (handlers: ${known.join(', ') || 'none yet'})`);
+
+const sweepGraceMs = Number(process.env.TACET_SWEEP_GRACE_MS ?? 60_000);
+const sweepIntervalMs = Number(process.env.TACET_SWEEP_INTERVAL_MS ?? 60_000);
+async function sweep(): Promise<void> {
+  try {
+    const report = await sweepOrphanedWork({ dataSource, queue, graceMs: sweepGraceMs });
+    if (report.runs.length || report.cells.length) {
+      console.warn(`[worker] sweep: marked failed ${report.runs.length} run(s) and ${report.cells.length} study cell(s) whose jobs were lost`);
+    }
+  } catch (error) {
+    console.warn(`[worker] sweep skipped: ${(error as Error).message}`);
+  }
+}
+await sweep();
+if (!stopping) sweepTimer = setInterval(() => void sweep(), sweepIntervalMs);
+
+
