@@ -13,7 +13,7 @@
  *
  * Run alone with `npx tsx scripts/bench/dense.ts`, or through `npm run bench`.
  */
-import { spawn } from 'node:child_process';
+import { runBenchChild } from '../benchChild';
 import { fileURLToPath } from 'node:url';
 
 export interface DenseBenchRow {
@@ -74,16 +74,7 @@ async function childRows(n: number): Promise<DenseBenchRow[]> {
 }
 
 function runChild(n: number): Promise<DenseBenchRow[]> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', thisFile, '--child', String(n)], { stdio: ['ignore', 'pipe', 'inherit'] });
-    let out = '';
-    child.stdout.on('data', (chunk) => (out += chunk));
-    child.on('error', reject);
-    child.on('close', (code) => {
-      if (code !== 0) return reject(new Error(`dense bench child for N = ${n} exited with ${code}`));
-      resolve(JSON.parse(out) as DenseBenchRow[]);
-    });
-  });
+  return runBenchChild<DenseBenchRow>(thisFile, [String(n)], `dense bench child for N = ${n}`);
 }
 
 export async function benchRows(): Promise<DenseBenchRow[]> {

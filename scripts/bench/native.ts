@@ -20,7 +20,7 @@
  *
  * Run alone with `npx tsx scripts/bench/native.ts` (prints JSON), or through `npm run bench`.
  */
-import { spawn } from 'node:child_process';
+import { runBenchChild } from '../benchChild';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -39,7 +39,6 @@ export interface BenchRow {
 }
 
 const thisFile = fileURLToPath(import.meta.url);
-const repositoryRoot = path.resolve(path.dirname(thisFile), '..', '..');
 
 function sizes(variable: string, fallback: number[]): number[] {
   const text = process.env[variable];
@@ -118,19 +117,7 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
 }
 
 function runChild(engine: BenchRow['engine'], N: number): Promise<BenchRow[]> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', thisFile, '--child', engine, String(N)], {
-      cwd: repositoryRoot,
-      stdio: ['ignore', 'pipe', 'inherit'],
-    });
-    let out = '';
-    child.stdout.on('data', (chunk: Buffer) => (out += chunk.toString()));
-    child.on('error', reject);
-    child.on('close', (code) => {
-      if (code !== 0) return reject(new Error(`bench child (${engine}, N = ${N}) exited with ${code}`));
-      resolve(JSON.parse(out.trim().split('\n').at(-1) as string) as BenchRow[]);
-    });
-  });
+  return runBenchChild<BenchRow>(thisFile, [engine, String(N)], `bench child (${engine}, N = ${N})`);
 }
 
 export async function benchRows(): Promise<BenchRow[]> {

@@ -14,7 +14,7 @@
  *
  * Run alone with `npx tsx scripts/bench/structured.ts`, or through `npm run bench`.
  */
-import { spawn } from 'node:child_process';
+import { runBenchChild } from '../benchChild';
 import { fileURLToPath } from 'node:url';
 
 export interface StructuredBenchRow {
@@ -116,16 +116,7 @@ async function childRows(n: number): Promise<StructuredBenchRow[]> {
 }
 
 function runChild(n: number): Promise<StructuredBenchRow[]> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', thisFile, '--child', String(n)], { stdio: ['ignore', 'pipe', 'inherit'] });
-    let out = '';
-    child.stdout.on('data', (chunk) => (out += chunk));
-    child.on('error', reject);
-    child.on('close', (code) => {
-      if (code !== 0) return reject(new Error(`structured bench child for N = ${n} exited with ${code}`));
-      resolve(JSON.parse(out) as StructuredBenchRow[]);
-    });
-  });
+  return runBenchChild<StructuredBenchRow>(thisFile, [String(n)], `structured bench child for N = ${n}`);
 }
 
 export async function benchRows(): Promise<StructuredBenchRow[]> {
