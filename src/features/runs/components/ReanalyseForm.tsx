@@ -1,14 +1,14 @@
 import { useState, type FormEvent } from 'react';
 import { useNavigate } from 'react-router';
 import type { RunDetail } from '@shared/runs';
-import { isApiError } from '../../../lib/apiClient';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, TextField } from '../../../ui/Field';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
 import { useReanalyseRun } from '../api/runs';
-import { initialReanalyseValues, reanalyseRequestFromForm, serverFieldErrors, type ReanalyseFormValues } from '../lib/runForm';
+import { initialReanalyseValues, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/runForm';
+import { showRunRequestError } from '../lib/showRequestError';
 import { SubregionFields } from './SubregionFields';
 
 export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2 | 4 }) {
@@ -27,15 +27,7 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
     if (!checked.ok) return errors.setFieldErrors(checked.errors);
     reanalyse.mutate(checked.request, {
       onSuccess: ({ id }) => navigate(`/runs/${id}`),
-      onError: (error) => {
-        if (isApiError(error)) {
-          const byField = serverFieldErrors(error);
-          errors.setFieldErrors(byField);
-          // A message already shown beside its field is not repeated above the button.
-          const shown = Object.values(byField).includes(error.message);
-          errors.setFormError(shown ? 'The server refused these settings; see the message beside the field.' : error.message);
-        } else errors.fromServer(error);
-      },
+      onError: (error) => showRunRequestError(errors, error),
     });
   }
 

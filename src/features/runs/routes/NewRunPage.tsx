@@ -1,6 +1,5 @@
 import { useState, type FormEvent, type ReactNode } from 'react';
 import { Link, useNavigate } from 'react-router';
-import { isApiError } from '../../../lib/apiClient';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
@@ -24,11 +23,11 @@ import {
   regionDimension,
   regionLabels,
   runRequestFromForm,
-  serverFieldErrors,
   sizeHint,
   type PickedCausalSet,
   type RunFormValues,
 } from '../lib/runForm';
+import { showRunRequestError } from '../lib/showRequestError';
 
 function FormSection({ title, note, children }: { title: string; note?: ReactNode; children: ReactNode }) {
   return (
@@ -94,15 +93,7 @@ function NewRunForm() {
     }
     createRun.mutate(checked.request, {
       onSuccess: ({ id }) => navigate(`/runs/${id}`),
-      onError: (error) => {
-        if (isApiError(error)) {
-          const byField = serverFieldErrors(error);
-          errors.setFieldErrors(byField);
-          // A message already shown beside its field is not repeated above the button.
-          const shown = Object.values(byField).includes(error.message);
-          errors.setFormError(shown ? 'The server refused these settings; see the message beside the field.' : error.message);
-        } else errors.fromServer(error);
-      },
+      onError: (error) => showRunRequestError(errors, error),
     });
   }
 
