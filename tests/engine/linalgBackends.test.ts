@@ -4,6 +4,7 @@
  * LAPACK). The native half runs when the addon is built (npm run build:native); the fallback half always.
  */
 import { spawnSync } from 'node:child_process';
+import { createRequire } from 'node:module';
 import { readFileSync, writeFileSync, mkdtempSync } from 'node:fs';
 import os, { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -218,6 +219,58 @@ describe.skipIf(!native.backend)(`native (OpenBLAS/LAPACK) against ml-matrix${na
     expect(maxAbsDifference(projector(v).data, projector(theirs.vectors as DenseMatrix).data)).toBeLessThan(1e-9);
   });
 
+  it('the blocked back-transformation (default) gives what LAPACK dsyevd gives; overwriteInput only saves a copy', () => {
+    // 300 = two whole blocks of 128 reflectors and a partial one
+    const { gram } = pauliJordanGram(300, 13);
+    const n = gram.rows;
+    const addon = createRequire(import.meta.url)(native.addonPath) as {
+      symmetricEigen(n: number, a: Float64Array, vectors: boolean, above?: number, algorithm?: string, overwrite?: boolean): { values: Float64Array; vectors: Float64Array };
+    };
+    const lapack = addon.symmetricEigen(n, gram.data, true, undefined, 'dsyevd');
+    const blocked = addon.symmetricEigen(n, gram.data, true, undefined, 'tridiagonal');
+    const top = lapack.values[n - 1];
+    expect(maxAbsDifference(blocked.values, lapack.values) / top).toBeLessThan(1e-12);
+    // eigenvalues come in pairs, so compare the projectors onto each of the top 30 pairs
+    const pairProjector = (vectors: Float64Array, pair: number) => {
+      const cols: DenseMatrix = { rows: n, cols: 2, data: vectors.slice((n - 2 * pair - 2) * n, (n - 2 * pair) * n) };
+      return mlMatrixBackend.multiply(cols, cols, { transposeB: true }).data;
+    };
+    for (let pair = 0; pair < 30; pair++) {
+      expect(maxAbsDifference(pairProjector(blocked.vectors, pair), pairProjector(lapack.vectors, pair))).toBeLessThan(1e-9);
+    }
+    const scratch = Float64Array.from(gram.data);
+    const inPlace = nativeBackend.symmetricEigen({ rows: n, cols: n, data: scratch }, { overwriteInput: true });
+    expect(Array.from(inPlace.values)).toEqual(Array.from(blocked.values));
+    expect(Array.from((inPlace.vectors as DenseMatrix).data)).toEqual(Array.from(blocked.vectors));
+    // the input served as workspace (it now holds reflectors), as the option allows
+    expect(maxAbsDifference(scratch, gram.data)).toBeGreaterThan(0);
+    // without the option the input is left alone
+    const kept = Float64Array.from(gram.data);
+    nativeBackend.symmetricEigen({ rows: n, cols: n, data: kept });
+    expect(maxAbsDifference(kept, gram.data)).toBe(0);
+  });
+
+  it('cholesky (dpotrf) equals ml-matrix, reads only the lower triangle and answers null when not positive definite', () => {
+    const n = 80;
+    const m = randomMatrix(n, n, 31);
+    const spd = mlMatrixBackend.gram(m);
+    for (let i = 0; i < n; i++) spd.data[i + i * n] += 1;
+    const ours = nativeBackend.cholesky(spd) as DenseMatrix;
+    const theirs = mlMatrixBackend.cholesky(spd) as DenseMatrix;
+    expect(maxAbsDifference(ours.data, theirs.data) / maxAbs(theirs.data)).toBeLessThan(1e-12);
+    for (let j = 0; j < n; j++) for (let i = 0; i < j; i++) expect(ours.data[i + j * n]).toBe(0);
+    const llt = nativeBackend.multiply(ours, ours, { transposeB: true });
+    expect(maxAbsDifference(llt.data, spd.data) / maxAbs(spd.data)).toBeLessThan(1e-13);
+    const lowerOnly = { ...spd, data: Float64Array.from(spd.data) };
+    for (let j = 0; j < n; j++) for (let i = 0; i < j; i++) lowerOnly.data[i + j * n] = 1e6;
+    expect(Array.from((nativeBackend.cholesky(lowerOnly) as DenseMatrix).data)).toEqual(Array.from(ours.data));
+    const indefinite = { ...spd, data: Float64Array.from(spd.data) };
+    indefinite.data[5 + 5 * n] = -1;
+    expect(nativeBackend.cholesky(indefinite)).toBeNull();
+    expect(mlMatrixBackend.cholesky(indefinite)).toBeNull();
+    expect(() => nativeBackend.cholesky(randomMatrix(3, 4, 1))).toThrow(/square matrix, got 3×4/);
+  });
+
   it('the range above a cut (dsyevr) returns exactly the eigenpairs above it', () => {
     const { gram } = pauliJordanGram(300, 5);
     const n = gram.rows;
@@ -308,6 +361,18 @@ describe.skipIf(!native.backend)(`native (OpenBLAS/LAPACK) against ml-matrix${na
     withNaN.data[2] = Number.NaN;
     expect(() => nativeBackend.symmetricEigen(withNaN)).toThrow(/entry \(2, 0\) is not finite/);
     expect(nativeBackend.symmetricEigen({ rows: 0, cols: 0, data: new Float64Array(0) }).values.length).toBe(0);
+  });
+
+  it.runIf(pythonWithNumpy)('cholesky matches numpy.linalg.cholesky', () => {
+    const m = randomMatrix(40, 40, 41);
+    const spd = mlMatrixBackend.gram(m);
+    for (let i = 0; i < 40; i++) spd.data[i + i * 40] += 0.5;
+    // reference: numpy.linalg.cholesky (Debian python3-numpy, LAPACK potrf), the lower factor
+    const out = numpy('print(json.dumps(np.linalg.cholesky(S).flatten(order="F").tolist()))', { S: spd }) as number[];
+    for (const backend of [nativeBackend, mlMatrixBackend]) {
+      const l = (backend.cholesky(spd) as DenseMatrix).data;
+      expect(maxAbsDifference(l, Float64Array.from(out)) / maxAbs(l)).toBeLessThan(1e-12);
+    }
   });
 
   it.runIf(pythonWithNumpy)('matches numpy/scipy (LAPACK eigvalsh, matmul, solve_triangular)', () => {

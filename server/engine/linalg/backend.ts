@@ -20,6 +20,11 @@ export interface SymmetricEigenOptions {
   vectors?: boolean;
   /** keep only eigenpairs whose eigenvalue is strictly greater than this */
   above?: number;
+  /**
+   * the caller no longer needs the input: a backend may use its storage as workspace (saving a copy
+   * of N² entries) and leave it undefined
+   */
+  overwriteInput?: boolean;
 }
 
 export interface SymmetricEigenResult {
@@ -50,4 +55,9 @@ export interface LinearAlgebraBackend {
   gram(a: DenseMatrix): DenseMatrix;
   /** X with T X = B (or Tᵀ X = B) for a triangular T, by substitution; never forms T⁻¹. */
   solveTriangular(t: DenseMatrix, b: DenseMatrix, options: TriangularSolveOptions): DenseMatrix;
+  /**
+   * The lower triangular L with A = L Lᵀ (upper part zero) of a symmetric positive definite A, or null
+   * when A is not positive definite to working precision. Only the lower triangle is read.
+   */
+  cholesky(a: DenseMatrix): DenseMatrix | null;
 }

@@ -1,4 +1,4 @@
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { CholeskyDecomposition, EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import type {
   DenseMatrix,
   LinearAlgebraBackend,
@@ -61,10 +61,24 @@ function multiplyTransposeA(a: DenseMatrix, b: DenseMatrix): DenseMatrix {
   return c;
 }
 
+/** ml-matrix Matrix of the symmetric matrix whose lower triangle `a` holds. */
+function symmetricMatrixFromLower(a: DenseMatrix): Matrix {
+  const n = a.rows;
+  const m = new Matrix(n, n);
+  for (let j = 0; j < n; j++) {
+    for (let i = j; i < n; i++) {
+      const v = a.data[i + j * n];
+      m.set(i, j, v);
+      m.set(j, i, v);
+    }
+  }
+  return m;
+}
+
 /**
  * Dense linear algebra on ml-matrix: its symmetric eigensolver (Householder tridiagonalisation and
- * implicit QL, the EISPACK tred2/tql2 pair as in JAMA); products, Gram matrices and triangular
- * substitution are plain column-major loops over the same storage.
+ * implicit QL, the EISPACK tred2/tql2 pair as in JAMA) and Cholesky factorisation; products, Gram
+ * matrices and triangular substitution are plain column-major loops over the same storage.
  */
 export const mlMatrixBackend: LinearAlgebraBackend = {
   name: 'ml-matrix',
@@ -73,15 +87,7 @@ export const mlMatrixBackend: LinearAlgebraBackend = {
     const n = a.rows;
     if (a.cols !== n) throw new RangeError('symmetricEigen needs a square matrix');
     if (n === 0) return { values: new Float64Array(0), vectors: options.vectors === false ? null : denseMatrix(0, 0) };
-    const m = new Matrix(n, n);
-    for (let j = 0; j < n; j++) {
-      for (let i = j; i < n; i++) {
-        const v = a.data[i + j * n];
-        m.set(i, j, v);
-        m.set(j, i, v);
-      }
-    }
-    const evd = new EigenvalueDecomposition(m, { assumeSymmetric: true });
+    const evd = new EigenvalueDecomposition(symmetricMatrixFromLower(a), { assumeSymmetric: true });
     const all = evd.realEigenvalues;
     const order = Array.from(all.keys()).sort((p, q) => all[p] - all[q]);
     const kept = options.above === undefined ? order : order.filter((k) => all[k] > (options.above as number));
@@ -161,5 +167,16 @@ export const mlMatrixBackend: LinearAlgebraBackend = {
       }
     }
     return x;
+  },
+  cholesky(a) {
+    const n = a.rows;
+    if (a.cols !== n) throw new RangeError(`cholesky needs a square matrix, got ${a.rows}×${a.cols}`);
+    if (n === 0) return denseMatrix(0, 0);
+    const decomposition = new CholeskyDecomposition(symmetricMatrixFromLower(a));
+    if (!decomposition.isPositiveDefinite()) return null;
+    const l = decomposition.lowerTriangularMatrix;
+    const out = denseMatrix(n, n);
+    for (let j = 0; j < n; j++) for (let i = j; i < n; i++) out.data[i + j * n] = l.get(i, j);
+    return out;
   },
 };
