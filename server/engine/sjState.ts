@@ -19,6 +19,7 @@ export interface SjState {
   /** positive modes kept (pairs of eigenvectors of ΔᵀΔ) */
   modesKept: number;
   cutoff: number;
+  /** the leading r eigenvectors of ΔᵀΔ: a view into the spectrum's storage (shared, never written) */
   basis: DenseMatrix;
   sigma: Float64Array;
   /** A = Bᵀ Δ B; null when `complete` (the state then uses Δ itself) */
@@ -34,8 +35,19 @@ export interface SjDiagnostics {
   hermiticityError: number;
   /** smallest eigenvalue of W_c (≥ 0 up to rounding); see `smallestEigenvalueMethod` */
   smallestEigenvalue: number;
-  /** 'exact': eigenvalues of W̃ from a symmetric solver; 'lower-bound': −½√‖s² − AᵀA‖_F, a rigorous bound */
-  smallestEigenvalueMethod: 'exact' | 'lower-bound';
+  /**
+   * 'exact': eigenvalues of W̃ from a symmetric solver; 'lower-bound': −½√‖s² − AᵀA‖_F, a rigorous bound;
+   * 'probe-bound': the untruncated bound −½√‖|Δ|_c² − ΔᵀΔ‖_F with the norm estimated by random probes
+   */
+  smallestEigenvalueMethod: 'exact' | 'lower-bound' | 'probe-bound';
+  /**
+   * 'exact': every norm below from exact products; 'probe': (untruncated, N above the exact limit)
+   * orthogonalityError, basisOrthonormalityError and the positivity bound are Hutchinson estimates from
+   * `probeCount` seeded random sign vectors (the others stay exact)
+   */
+  checkMethod: 'exact' | 'probe';
+  /** random probe vectors behind the estimates; 0 when checkMethod is 'exact' */
+  probeCount: number;
   /**
    * ‖W − W̄ − iΔ_c‖_F with iΔ_c = iΔP (P commutes with Δ), relative to ‖Δ‖_F. Untruncated, P = I and
    * Im W is ½Δ itself, so this is 0 to rounding; how far the computed B is from B Bᵀ = I is
@@ -58,15 +70,9 @@ export interface SjDiagnostics {
  */
 export const KERNEL_RESOLUTION = 1e-6;
 
-/** Columns [0, count) of the eigenvector matrix taken from the top (largest eigenvalue first). */
-function topColumns(vectors: DenseMatrix, count: number): DenseMatrix {
-  const n = vectors.rows;
-  const out = denseMatrix(n, count);
-  for (let c = 0; c < count; c++) {
-    const source = vectors.cols - 1 - c;
-    out.data.set(vectors.data.subarray(source * n, (source + 1) * n), c * n);
-  }
-  return out;
+/** The leading `count` columns of the eigenvector matrix (largest eigenvalues), as a view: no copy. */
+function leadingColumns(vectors: DenseMatrix, count: number): DenseMatrix {
+  return { rows: vectors.rows, cols: count, data: vectors.data.subarray(0, vectors.rows * count) };
 }
 
 /**
@@ -84,11 +90,11 @@ export function sjState(
   const n = spectrum.size;
   const complete = truncation.modesKept >= spectrum.positive.length;
   const r = complete ? n : 2 * truncation.modesKept;
-  const basis = topColumns(spectrum.gramVectors, r);
+  const basis = leadingColumns(spectrum.gramVectors, r);
   const sigma = new Float64Array(r);
-  const top = Math.sqrt(Math.max(spectrum.gramValues[n - 1] ?? 0, 0));
+  const top = Math.sqrt(Math.max(spectrum.gramValues[0] ?? 0, 0));
   for (let c = 0; c < r; c++) {
-    const value = Math.sqrt(Math.max(spectrum.gramValues[n - 1 - c], 0));
+    const value = Math.sqrt(Math.max(spectrum.gramValues[c], 0));
     // through ΔᵀΔ a true zero comes out near √ε‖Δ‖: below the resolution the mode is the kernel, σ = 0
     sigma[c] = value > KERNEL_RESOLUTION * top ? value : 0;
   }
@@ -107,28 +113,42 @@ export function restrictedWightman(
   const m = elements.length;
   const r = state.sigma.length;
   const n = state.size;
-  const rows = denseMatrix(m, r);
-  const scaled = denseMatrix(m, r);
-  for (let c = 0; c < r; c++) {
-    for (let a = 0; a < m; a++) {
-      const v = state.basis.data[elements[a] + c * n];
-      rows.data[a + c * m] = v;
-      scaled.data[a + c * m] = 0.5 * state.sigma[c] * v;
-    }
+  // Re W_O = ½ B_O s B_Oᵀ = TᵀT with Tᵀ = B_O diag(√(s/2)): a Gram product, symmetric to the last bit
+  const scaledTransposed = denseMatrix(r, m);
+  const factors = state.sigma.map((v) => Math.sqrt(0.5 * v));
+  for (let a = 0; a < m; a++) {
+    const row = elements[a];
+    const out = a * r;
+    for (let c = 0; c < r; c++) scaledTransposed.data[out + c] = factors[c] * state.basis.data[row + c * n];
   }
-  const real = backend.multiply(scaled, rows, { transposeB: true });
+  const real = backend.gram(scaledTransposed);
   let imaginary: DenseMatrix;
   if (state.complete) {
     imaginary = denseMatrix(m, m);
-    for (let b = 0; b < m; b++) for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + elements[b] * n];
+    for (let b = 0; b < m; b++) {
+      const column = elements[b] * n;
+      for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + column];
+    }
   } else {
     if (!state.deltaInBasis) throw new Error('a truncated SJ state needs A = BᵀΔB');
+    const rows = denseMatrix(m, r);
+    for (let c = 0; c < r; c++) for (let a = 0; a < m; a++) rows.data[a + c * m] = state.basis.data[elements[a] + c * n];
     const half = backend.multiply(rows, state.deltaInBasis);
     imaginary = backend.multiply(half, rows, { transposeB: true });
     for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
   }
-  for (let b = 0; b < m; b++) for (let a = 0; a < b; a++) real.data[a + b * m] = real.data[b + a * m];
   return { real, imaginary };
+}
+
+/** ‖Δ‖_F, computed once per Δ however many states and checks use it. */
+const deltaNorms = new WeakMap<Float64Array, number>();
+function deltaNorm(delta: DenseMatrix): number {
+  let norm = deltaNorms.get(delta.data);
+  if (norm === undefined) {
+    norm = frobenius(delta.data);
+    deltaNorms.set(delta.data, norm);
+  }
+  return norm;
 }
 
 function frobenius(data: Float64Array): number {
@@ -140,9 +160,122 @@ function frobenius(data: Float64Array): number {
 /** Largest 2r for which the smallest eigenvalue of W̃ is computed exactly (a 2r × 2r symmetric solve). */
 export const EXACT_POSITIVITY_LIMIT = 800;
 
+/**
+ * Largest N for which the checks of an untruncated state use exact N³ products (about 6N³ flops,
+ * as much as the eigendecomposition itself); above it they are estimated with random probes.
+ */
+export const EXACT_COMPLETE_CHECKS_LIMIT = 1000;
+
+/** Probe vectors of the estimated checks: relative spread of a squared norm at most √(2/32) = 25 %. */
+export const CHECK_PROBES = 32;
+
 export interface SjDiagnosticsOptions {
   /** largest 2r for the exact smallest eigenvalue (default EXACT_POSITIVITY_LIMIT); beyond it the bound */
   exactPositivityLimit?: number;
+  /** largest N of an untruncated state checked exactly (default EXACT_COMPLETE_CHECKS_LIMIT) */
+  exactCompleteLimit?: number;
+  /** probe vectors for the estimated checks (default CHECK_PROBES) */
+  probes?: number;
+}
+
+/** Antisymmetry defect ‖M + Mᵀ‖_F² of a square matrix, in tiles so that both reads stay in cache. */
+function antisymmetryDefectSquared(m: DenseMatrix): number {
+  const n = m.rows;
+  const tile = 64;
+  let sum = 0;
+  for (let jb = 0; jb < n; jb += tile) {
+    const jEnd = Math.min(jb + tile, n);
+    for (let ib = 0; ib <= jb; ib += tile) {
+      const iEnd = Math.min(ib + tile, n);
+      for (let j = jb; j < jEnd; j++) {
+        const top = ib === jb ? j + 1 : iEnd;
+        for (let i = ib; i < top; i++) {
+          const d = m.data[i + j * n] + m.data[j + i * n];
+          sum += i === j ? d * d : 2 * d * d;
+        }
+      }
+    }
+  }
+  return sum;
+}
+
+/** n × count matrix of ±1 from a fixed-seed xorshift generator: the same probes on every run. */
+export function signProbes(n: number, count: number): DenseMatrix {
+  const z = denseMatrix(n, count);
+  let state = 0x7ace7 >>> 0;
+  for (let k = 0; k < z.data.length; k++) {
+    state ^= state << 13;
+    state >>>= 0;
+    state ^= state >>> 17;
+    state ^= state << 5;
+    state >>>= 0;
+    z.data[k] = state & 1 ? 1 : -1;
+  }
+  return z;
+}
+
+/** The left and right `cols` columns of an n × 2·cols matrix. */
+function columnHalves(m: DenseMatrix, n: number, cols: number): [DenseMatrix, DenseMatrix] {
+  return [
+    { rows: n, cols, data: m.data.subarray(0, n * cols) },
+    { rows: n, cols, data: m.data.subarray(n * cols, 2 * n * cols) },
+  ];
+}
+
+function scaleRows(m: DenseMatrix, factors: Float64Array): DenseMatrix {
+  const out = denseMatrix(m.rows, m.cols);
+  for (let c = 0; c < m.cols; c++) for (let i = 0; i < m.rows; i++) out.data[i + c * m.rows] = factors[i] * m.data[i + c * m.rows];
+  return out;
+}
+
+/**
+ * The checks of an untruncated state estimated by Hutchinson's trace estimator (Hutchinson 1989,
+ * Commun. Stat. Simul. Comput. 18 1059; Avron–Toledo 2011, J. ACM 58 8): ‖M‖_F² = tr MᵀM = E‖Mz‖² for
+ * z of independent random signs, averaged over p probes (relative spread of the squared norm ≤ √(2/p)).
+ * With P = B s Bᵀ = Re 2W (positive semidefinite for any B, since s ≥ 0):
+ *   4 W W̄ = (P + iΔ)(P − iΔ) = (P² + Δ²) + i(ΔP − PΔ),
+ * and W = ½(|Δ| + iΔ) + ½(P − |Δ|) with the first term positive semidefinite, so
+ *   λ_min(W) ≥ −½‖P − |Δ|‖₂ ≥ −½√‖P² − ΔᵀΔ‖₂ ≥ −½√‖P² + Δ²‖_F   (ΔᵀΔ = −Δ²).
+ * Cost: six products of N × N by N × p or N × 2p (10pN² multiply–adds) instead of six N³ products.
+ */
+function probedCompleteChecks(
+  state: SjState,
+  backend: LinearAlgebraBackend,
+  probes: number,
+): { orthogonalityDefect: number; positivityDefect: number; basisOrthonormalityError: number } {
+  const n = state.size;
+  const basis = state.basis;
+  const z = signProbes(n, probes);
+  const half = n * probes;
+  const sideBySide = (left: DenseMatrix, right: DenseMatrix) => {
+    const out = denseMatrix(n, left.cols + right.cols);
+    out.data.set(left.data, 0);
+    out.data.set(right.data, left.data.length);
+    return out;
+  };
+  // B square: ‖BᵀB − I‖_F = ‖BBᵀ − I‖_F (the two Gram matrices share their eigenvalues), so the
+  // product BᵀZ serves both PZ = B s BᵀZ and (BBᵀ − I)Z
+  const bz = backend.multiply(basis, z, { transposeA: true });
+  const [pz, bbz] = columnHalves(backend.multiply(basis, sideBySide(scaleRows(bz, state.sigma), bz)), n, probes);
+  const dz = backend.multiply(state.delta, z);
+  const both = sideBySide(pz, dz); // [PZ, ΔZ]: P and Δ are each applied once more to both
+  const pBoth = backend.multiply(basis, scaleRows(backend.multiply(basis, both, { transposeA: true }), state.sigma)); // [P²Z, PΔZ]
+  const dBoth = backend.multiply(state.delta, both); // [ΔPZ, Δ²Z]
+  let realPart = 0;
+  let imaginaryPart = 0;
+  let orthonormality = 0;
+  for (let k = 0; k < half; k++) {
+    const re = pBoth.data[k] + dBoth.data[half + k];
+    const im = dBoth.data[k] - pBoth.data[half + k];
+    realPart += re * re;
+    imaginaryPart += im * im;
+    orthonormality += (bbz.data[k] - z.data[k]) ** 2;
+  }
+  return {
+    orthogonalityDefect: Math.sqrt((realPart + imaginaryPart) / probes),
+    positivityDefect: Math.sqrt(realPart / probes),
+    basisOrthonormalityError: Math.sqrt(orthonormality / probes),
+  };
 }
 
 /**
@@ -152,9 +285,11 @@ export interface SjDiagnosticsOptions {
  * Cost. Everything of the form B M Bᵀ is measured through M in the kept basis, since ‖B M Bᵀ‖_F = ‖M‖_F
  * for orthonormal columns, up to ‖BᵀB − I‖_F, which is reported itself (`basisOrthonormalityError`,
  * from the one Gram product H = BᵀB that also gives tr W_c and, untruncated, ‖B s Bᵀ‖_F exactly).
- * Truncated (r ≪ N): O(N r²). Untruncated: ΔB and A = Bᵀ(ΔB) for the positivity and W W̄ checks, plus
- * the two Gram products H and AᵀA (dsyrk on native); the Hermiticity, ‖W‖ and commutator checks use
- * Δ itself, as the state does.
+ * Truncated (r ≪ N): O(N r²). Untruncated up to EXACT_COMPLETE_CHECKS_LIMIT: ΔB and A = Bᵀ(ΔB) for
+ * the positivity and W W̄ checks, plus the two Gram products H and AᵀA (dsyrk on native); the
+ * Hermiticity, ‖W‖ and commutator checks use Δ itself, as the state does. Untruncated above the limit
+ * those six N³ products would cost as much as the eigendecomposition, so the norms that need them are
+ * estimated with random probes instead (`probedDiagnostics`; checkMethod says which).
  *
  * Positivity. The smallest eigenvalue of the Hermitian W̃ = X + iY is that of the real symmetric
  * [[X, −Y], [Y, X]] (each eigenvalue twice); beyond the exact limit it is bounded from below instead:
@@ -171,6 +306,11 @@ export function sjDiagnostics(
   const n = state.size;
   const s = state.sigma;
   const exactPositivityLimit = options.exactPositivityLimit ?? EXACT_POSITIVITY_LIMIT;
+  const probes = options.probes ?? CHECK_PROBES;
+  if (!(Number.isInteger(probes) && probes >= 1)) throw new RangeError(`probes must be a positive integer, got ${probes}`);
+  if (state.complete && n > (options.exactCompleteLimit ?? EXACT_COMPLETE_CHECKS_LIMIT)) {
+    return probedDiagnostics(state, positive, backend, probes);
+  }
 
   // H = BᵀB: orthonormality, the column norms for tr W_c, and the exact ‖B s Bᵀ‖_F² = Σ s_i s_j H_ij²
   const gram = backend.gram(state.basis);
@@ -184,15 +324,14 @@ export function sjDiagnostics(
   let hermiticityError: number;
   let commutatorError: number;
   let normW: number;
-  const normDelta = frobenius(state.delta.data);
+  const normDelta = deltaNorm(state.delta);
   if (state.complete) {
     // W = ½(B s Bᵀ + iΔ): Re W is symmetric by construction, so W − W† = i·½(Δ + Δᵀ)
     let realNorm2 = 0;
     for (let j = 0; j < r; j++) {
       for (let i = 0; i < r; i++) realNorm2 += s[i] * s[j] * gram.data[i + j * r] ** 2;
     }
-    let antisymmetryDefect = 0;
-    for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) antisymmetryDefect += (state.delta.data[i + j * n] + state.delta.data[j + i * n]) ** 2;
+    const antisymmetryDefect = antisymmetryDefectSquared(state.delta);
     normW = 0.5 * Math.sqrt(realNorm2 + normDelta ** 2);
     hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
     // every mode kept: P = I, and W − W̄ = 2i·Im W = iΔ = iΔ_c entry by entry (Im W is ½Δ, and the
@@ -257,9 +396,6 @@ export function sjDiagnostics(
     smallestEigenvalueMethod = 'lower-bound';
   }
 
-  let positiveEigenvalueSum = 0;
-  for (let k = 0; k < state.modesKept; k++) if (positive[k] > KERNEL_RESOLUTION * positive[0]) positiveEigenvalueSum += positive[k];
-
   for (let c = 0; c < r; c++) gram.data[c + c * r] -= 1;
   const basisOrthonormalityError = frobenius(gram.data);
 
@@ -270,7 +406,48 @@ export function sjDiagnostics(
     commutatorError,
     orthogonalityError,
     trace,
-    positiveEigenvalueSum,
+    positiveEigenvalueSum: keptEigenvalueSum(state, positive),
     basisOrthonormalityError,
+    checkMethod: 'exact',
+    probeCount: 0,
+  };
+}
+
+/** Sum of the kept positive eigenvalues above the kernel resolution: what tr W_c must equal. */
+function keptEigenvalueSum(state: SjState, positive: Float64Array): number {
+  let sum = 0;
+  for (let k = 0; k < state.modesKept; k++) if (positive[k] > KERNEL_RESOLUTION * positive[0]) sum += positive[k];
+  return sum;
+}
+
+/**
+ * The checks of an untruncated state of large N: the Hermiticity defect, tr W and the norms of Δ
+ * exactly (O(N²)), the rest from random probes (`probedCompleteChecks`). ‖W‖_F uses ‖B s Bᵀ‖_F = ‖s‖,
+ * exact for orthonormal B; the departure from that is basisOrthonormalityError itself.
+ */
+function probedDiagnostics(state: SjState, positive: Float64Array, backend: LinearAlgebraBackend, probes: number): SjDiagnostics {
+  const n = state.size;
+  const s = state.sigma;
+  let trace = 0;
+  for (let c = 0; c < n; c++) {
+    let norm2 = 0;
+    for (let i = 0; i < n; i++) norm2 += state.basis.data[i + c * n] ** 2;
+    trace += 0.5 * s[c] * norm2;
+  }
+  const normDelta = deltaNorm(state.delta);
+  const normW = 0.5 * Math.sqrt(frobenius(s) ** 2 + normDelta ** 2);
+  const hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefectSquared(state.delta))) / normW : 0;
+  const probed = probedCompleteChecks(state, backend, probes);
+  return {
+    hermiticityError,
+    smallestEigenvalue: -0.5 * Math.sqrt(probed.positivityDefect),
+    smallestEigenvalueMethod: 'probe-bound',
+    commutatorError: 0,
+    orthogonalityError: normW > 0 ? (0.25 * probed.orthogonalityDefect) / normW ** 2 : 0,
+    trace,
+    positiveEigenvalueSum: keptEigenvalueSum(state, positive),
+    basisOrthonormalityError: probed.basisOrthonormalityError,
+    checkMethod: 'probe',
+    probeCount: probes,
   };
 }

@@ -22,7 +22,7 @@ import {
   serverFieldErrors,
   type RunFormValues,
 } from '../../src/features/runs/lib/runForm';
-import { engineRowText, structuredSpectrumNote } from '../../src/features/runs/lib/engineText';
+import { diagnosticNote, engineRowText, probedCheckCount, structuredSpectrumNote } from '../../src/features/runs/lib/engineText';
 import { formatSignificant, splitDecimal } from '../../src/features/runs/lib/numbers';
 import { parseCompareIds, runLabel } from '../../src/features/runs/lib/runIds';
 
@@ -276,5 +276,21 @@ describe('which engine ran, on the run page', () => {
     expect(structuredSpectrumNote({ ...base, engine: 'structured' })).toMatch(/^Structured engine: only the modes above the cut were computed \(280 positive eigenvalues, 280 kept, of up to 10000\)/);
     expect(structuredSpectrumNote({ ...base, engine: 'dense' })).toBeNull();
     expect(structuredSpectrumNote(base)).toBeNull();
+  });
+});
+
+describe('notes beside the checks of a run', () => {
+  const base = { hermiticity: 0, minEigenvalueW: -1e-6, commutatorResidual: 0, positiveNegativeOverlap: 1e-15, trace: 1 };
+  it('says which checks are random-probe estimates and which bound is rigorous', () => {
+    const probed = { ...base, checkMethod: 'probe', probeCount: 32, smallestEigenvalueMethod: 'probe-bound' };
+    expect(probedCheckCount(probed)).toBe(32);
+    expect(diagnosticNote('minEigenvalueW', 'n', 'probe-bound', 32)).toMatch(/estimated from 32 random probes/);
+    expect(diagnosticNote('positiveNegativeOverlap', '‖W W̄‖ / ‖W‖²', 'probe-bound', 32)).toBe('‖W W̄‖ / ‖W‖²; estimated from 32 random probes (within about 25 %)');
+    expect(diagnosticNote('hermiticity', '‖W − W†‖ / ‖W‖', 'probe-bound', 32)).toBe('‖W − W†‖ / ‖W‖');
+    expect(diagnosticNote('minEigenvalueW', 'n', 'lower-bound', 0)).toBe('a rigorous lower bound; ≥ 0 up to rounding');
+    // exact checks, and runs stored before the probes existed, keep the plain notes
+    expect(probedCheckCount({ ...base, checkMethod: 'exact', probeCount: 0 })).toBe(0);
+    expect(probedCheckCount(base)).toBe(0);
+    expect(diagnosticNote('positiveNegativeOverlap', 'plain', 'exact', 0)).toBe('plain');
   });
 });

@@ -2,7 +2,8 @@
  * The SJ-state checks as sjDiagnostics computes them (in the kept basis, reusing the state's products)
  * against the same checks computed directly from their definitions (physics notes §4: W Hermitian and
  * positive semidefinite, W − W̄ = iΔ_c with iΔ_c = iΔP, W W̄ = 0, tr W), on N × N matrices formed
- * explicitly, for the untruncated and the √N/(4π)-truncated state, on both linear-algebra backends.
+ * explicitly, for the untruncated and the √N/(4π)-truncated state, on both linear-algebra backends;
+ * and the probe estimates that replace the untruncated N³ checks at large N against the exact ones.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { retardedGreen } from '../../server/engine/green';
@@ -134,6 +135,53 @@ describe.each(backends.map((b) => [b.name, b] as const))('SJ checks in the kept 
     expect(Math.abs(cheap.trace - direct.trace)).toBeLessThan(1e-12 * lambdaMax);
     const bound = sjDiagnostics(wrong, spectrum.positive, backend, { exactPositivityLimit: 0 });
     expect(bound.smallestEigenvalue).toBeLessThanOrEqual(direct.smallestEigenvalue);
+  });
+
+  // Hutchinson's estimator (Hutchinson 1989; Avron–Toledo 2011): with 32 sign probes the squared norms
+  // spread by at most √(2/32) = 25 %, so the norms land within a factor 2 with a wide margin
+  const withinFactorTwo = (estimate: number, exact: number) => {
+    expect(estimate / exact).toBeGreaterThan(0.5);
+    expect(estimate / exact).toBeLessThan(2);
+  };
+
+  it('estimates the untruncated checks with random probes past the exact limit: close, reproducible, the bound below', () => {
+    const state = sjState(delta, spectrum, applyTruncation(spectrum.positive, N, { rule: 'none' }), backend);
+    const exact = sjDiagnostics(state, spectrum.positive, backend);
+    const probed = sjDiagnostics(state, spectrum.positive, backend, { exactCompleteLimit: 0 });
+    const lambdaMax = spectrum.positive[0];
+    expect([exact.checkMethod, exact.probeCount]).toEqual(['exact', 0]);
+    expect([probed.checkMethod, probed.probeCount, probed.smallestEigenvalueMethod]).toEqual(['probe', 32, 'probe-bound']);
+    // computed exactly either way
+    expect(probed.hermiticityError).toBe(exact.hermiticityError);
+    expect(probed.commutatorError).toBe(0);
+    expect(Math.abs(probed.trace - exact.trace)).toBeLessThan(1e-12 * lambdaMax);
+    expect(probed.positiveEigenvalueSum).toBe(exact.positiveEigenvalueSum);
+    // estimated
+    withinFactorTwo(probed.orthogonalityError, exact.orthogonalityError);
+    withinFactorTwo(probed.basisOrthonormalityError, exact.basisOrthonormalityError);
+    const rigorous = sjDiagnostics(state, spectrum.positive, backend, { exactPositivityLimit: 0 });
+    withinFactorTwo(probed.smallestEigenvalue, rigorous.smallestEigenvalue);
+    expect(probed.smallestEigenvalue).toBeLessThanOrEqual(Math.min(exact.smallestEigenvalue, 0));
+    // the probes are seeded: the same state gives the same figures
+    expect(sjDiagnostics(state, spectrum.positive, backend, { exactCompleteLimit: 0 })).toEqual(probed);
+    // truncated states stay exact whatever the limit
+    const truncated = sjState(delta, spectrum, applyTruncation(spectrum.positive, N, { rule: 'sqrtN' }), backend);
+    expect(sjDiagnostics(truncated, spectrum.positive, backend, { exactCompleteLimit: 0 }).checkMethod).toBe('exact');
+  });
+
+  it('the probe estimates track the exact checks on a state with wrong σ, and the bound stays below', () => {
+    const state = sjState(delta, spectrum, applyTruncation(spectrum.positive, N, { rule: 'none' }), backend);
+    const wrong: SjState = { ...state, sigma: state.sigma.map((v, c) => v * (1 + 0.2 * Math.sin(1.7 * c))) };
+    const direct = directDiagnostics(wrong, backend);
+    const probed = sjDiagnostics(wrong, spectrum.positive, backend, { exactCompleteLimit: 0 });
+    expect(direct.orthogonalityError).toBeGreaterThan(1e-3);
+    withinFactorTwo(probed.orthogonalityError, direct.orthogonalityError);
+    expect(probed.smallestEigenvalue).toBeLessThanOrEqual(direct.smallestEigenvalue);
+    // a non-orthonormal basis shows in the estimate: B scaled by 1.001 has ‖BᵀB − I‖_F = 0.002001 √N
+    const stretched: SjState = { ...state, basis: { ...state.basis, data: state.basis.data.map((v) => 1.001 * v) } };
+    const estimate = sjDiagnostics(stretched, spectrum.positive, backend, { exactCompleteLimit: 0 }).basisOrthonormalityError;
+    withinFactorTwo(estimate, 0.002001 * Math.sqrt(N));
+    expect(() => sjDiagnostics(state, spectrum.positive, backend, { exactCompleteLimit: 0, probes: 0 })).toThrow(/probes must be a positive integer/);
   });
 
   it('bounds the smallest eigenvalue from below past the exact limit', () => {

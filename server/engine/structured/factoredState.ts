@@ -140,5 +140,7 @@ export function factoredDiagnostics(state: FactoredSjState, relativeResiduals: F
     trace,
     positiveEigenvalueSum: sum,
     basisOrthonormalityError: Math.sqrt(offIdentity),
+    checkMethod: 'exact',
+    probeCount: 0,
   };
 }

@@ -1,6 +1,6 @@
 import type { RunDetail, RunResult } from '@shared/runs';
 import { describeTruncation } from '../../cutRules/lib/truncationForm';
-import { engineRowText } from '../lib/engineText';
+import { diagnosticNote, engineRowText, probedCheckCount } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
 import { Figure } from './Figure';
 import { stageLabels } from './RunProgress';
@@ -82,7 +82,8 @@ const diagnosticLabels: Record<string, { label: string; note: string }> = {
 };
 
 /** The engine's own names for the checks above, sent alongside; shown once under the labels above. */
-const engineAliases = new Set(['hermiticityError', 'smallestEigenvalue', 'commutatorError', 'orthogonalityError']);
+const engineAliases = new Set(['hermiticityError', 'smallestEigenvalue', 'commutatorError', 'orthogonalityError', 'probeCount']);
+
 
 /** The SJ state's checks, then the counts of the causal set. */
 export function DiagnosticsTable({ result }: { result: RunResult }) {
@@ -91,6 +92,7 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
     ([k, v]) => !(k in diagnosticLabels) && !engineAliases.has(k) && typeof v === 'number',
   ) as [string, number][];
   const method = result.diagnostics.smallestEigenvalueMethod;
+  const probes = probedCheckCount(result.diagnostics);
   return (
     <table className="w-full max-w-md border-collapse text-sm" aria-label="Diagnostics">
       <tbody>
@@ -120,7 +122,7 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
           <Row
             key={key}
             label={diagnosticLabels[key].label}
-            note={key === 'minEigenvalueW' && method === 'lower-bound' ? 'a rigorous lower bound; ≥ 0 up to rounding' : diagnosticLabels[key].note}
+            note={diagnosticNote(key, diagnosticLabels[key].note, method, probes)}
           >
             <Figure value={result.diagnostics[key] as number} digits={3} />
           </Row>

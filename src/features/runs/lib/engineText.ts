@@ -20,3 +20,21 @@ export function structuredSpectrumNote(result: Pick<RunResult, 'engine' | 'eigen
     `${result.modesKept} kept, of up to ${Math.floor(result.N / 2)}); the spectrum below the cut and the knee are not known for this run.`
   );
 }
+
+/** Checks that the engine estimates with random probes for an untruncated state of large N. */
+const probedChecks = new Set(['positiveNegativeOverlap', 'basisOrthonormalityError']);
+
+/** How many random probes stand behind the run's estimated checks; 0 when every check is exact. */
+export function probedCheckCount(diagnostics: RunResult['diagnostics']): number {
+  return diagnostics.checkMethod === 'probe' && typeof diagnostics.probeCount === 'number' ? diagnostics.probeCount : 0;
+}
+
+/** The note beside one check of the diagnostics table: how the figure was obtained when not exactly. */
+export function diagnosticNote(key: string, note: string, smallestEigenvalueMethod: unknown, probes: number): string {
+  if (key === 'minEigenvalueW' && smallestEigenvalueMethod === 'lower-bound') return 'a rigorous lower bound; ≥ 0 up to rounding';
+  if (key === 'minEigenvalueW' && smallestEigenvalueMethod === 'probe-bound') {
+    return `a lower bound estimated from ${probes} random probes; ≥ 0 up to rounding`;
+  }
+  if (probes > 0 && probedChecks.has(key)) return `${note}; estimated from ${probes} random probes (within about 25 %)`;
+  return note;
+}
