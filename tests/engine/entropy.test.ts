@@ -8,6 +8,8 @@ import { pauliJordan, pauliJordanSpectrum } from '../../server/engine/pauliJorda
 import { sjState, type SjState } from '../../server/engine/sjState';
 import { sprinkle } from '../../server/engine/sprinkle';
 import { applyTruncation } from '../../server/engine/truncation';
+import { getBackend } from '../../server/engine/linalg';
+import type { LinearAlgebraBackend } from '../../server/engine/linalg/backend';
 
 // Statistical test, seeded: three fixed-N sprinklings of N = 600 into the diamond with tips t = ±√2, and
 // centred sub-diamonds of growing size. Expected behaviour from Sorkin 2012 / Saravani–Sorkin–Yazdi 2014
@@ -82,4 +84,20 @@ describe('spacetime entanglement entropy of sub-diamonds (statistical, seeded)',
     expect(viaPipeline.entropy?.S).toBeCloseTo(direct.S, 8);
     expect(viaPipeline.density).toBeCloseTo(600 / 4, 10);
   }, 120_000);
+
+  it('the Cholesky route to the κ equals the square-root route it replaces (same S and μ to 1e-9)', () => {
+    // Lᵀ Ã⁻¹ L and X̃^½ Ã⁻¹ X̃^½ are orthogonally similar (X̃ = L Lᵀ, L = X̃^½ Q): a linear-algebra fact, not ours
+    const backend = getBackend();
+    const withoutCholesky: LinearAlgebraBackend = { ...backend, cholesky: () => null };
+    const { points, full, cut } = runs[1];
+    const elements = subregionElements({ kind: 'diamond', past: { t: -0.6, x: 0 }, future: { t: 0.6, x: 0 } }, points, 2);
+    for (const [state, doubleTruncation] of [[full, false], [cut, true]] as const) {
+      const viaCholesky = entanglementEntropy(state, elements, { doubleTruncation, backend });
+      const viaRoot = entanglementEntropy(state, elements, { doubleTruncation, backend: withoutCholesky });
+      expect(viaCholesky.S).toBeGreaterThan(0);
+      expect(Math.abs(viaCholesky.S - viaRoot.S)).toBeLessThan(1e-9 * Math.max(1, viaRoot.S));
+      expect(viaCholesky.generalizedEigenvalues.length).toBe(viaRoot.generalizedEigenvalues.length);
+      viaCholesky.generalizedEigenvalues.forEach((mu, k) => expect(Math.abs(mu - viaRoot.generalizedEigenvalues[k])).toBeLessThan(1e-9 * Math.max(1, Math.abs(mu))));
+    }
+  });
 });
