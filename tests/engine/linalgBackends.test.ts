@@ -334,6 +334,25 @@ describe.skipIf(!native.backend)(`native (OpenBLAS/LAPACK) against ml-matrix${na
     for (let j = 0; j < 70; j++) for (let i = 0; i < j; i++) expect(g.data[i + j * 70]).toBe(g.data[j + i * 70]);
   });
 
+  it('gram of a 0/±h matrix (a massless Δ) takes the single-precision integer route and stays exact', () => {
+    const { delta } = pauliJordanGram(150, 23);
+    // h = ½: every entry of ΔᵀΔ is a multiple of ¼ below 150/4, exact in double either way
+    expect(Array.from(nativeBackend.gram(delta).data)).toEqual(Array.from(mlMatrixBackend.gram(delta).data));
+    // the 4D link weight √ρ/(2π√6) at ρ = 10 is no power of two: h² times the exact integer SᵀS, one
+    // rounding per entry (the double-precision sum rounds at every term instead)
+    const h = Math.sqrt(10) / (2 * Math.PI * Math.sqrt(6));
+    const signs = { ...delta, data: delta.data.map((v) => Math.sign(v)) };
+    const scaled = { ...delta, data: signs.data.map((v) => v * h) };
+    const integerGram = mlMatrixBackend.gram(signs).data;
+    const ours = nativeBackend.gram(scaled).data;
+    expect(Array.from(ours)).toEqual(Array.from(integerGram, (k) => h * h * k));
+    expect(maxAbsDifference(ours, mlMatrixBackend.gram(scaled).data) / maxAbs(ours)).toBeLessThan(1e-14);
+    // one entry off the pattern: the general route, same answer to rounding
+    const mixed = { ...delta, data: Float64Array.from(delta.data) };
+    mixed.data[7] = 0.25;
+    expect(maxAbsDifference(nativeBackend.gram(mixed).data, mlMatrixBackend.gram(mixed).data)).toBeLessThan(1e-12);
+  });
+
   it('triangular solves (dtrsm) agree for lower/upper, unit diagonal and transpose', () => {
     const n = 60;
     const t = randomMatrix(n, n, 9);
