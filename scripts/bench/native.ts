@@ -52,7 +52,7 @@ function sizes(variable: string, fallback: number[]): number[] {
 export async function runPipeline(engine: BenchRow['engine'], N: number): Promise<BenchRow[]> {
   const { sprinkle } = await import('../../server/engine/sprinkle');
   const { causalMatrix } = await import('../../server/engine/order');
-  const { retardedGreen } = await import('../../server/engine/green');
+  const { retardedGreenOperator } = await import('../../server/engine/green');
   const { pauliJordan, pauliJordanSpectrum } = await import('../../server/engine/pauliJordan');
   const { applyTruncation } = await import('../../server/engine/truncation');
   const { sjState, sjDiagnostics } = await import('../../server/engine/sjState');
@@ -92,7 +92,7 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
     sprinklingSpecSchema.parse({ region: { kind: 'diamond2d', properTime: 2 }, count: N, seed: `bench-${N}` }),
   );
   const causal = causalMatrix(sprinkling.points, 2);
-  const delta = pauliJordan(retardedGreen({ points: sprinkling.points, dimension: 2, causal, mass: 0, backend }));
+  const delta = pauliJordan(retardedGreenOperator({ points: sprinkling.points, dimension: 2, causal, mass: 0, backend }));
   const spectrum = pauliJordanSpectrum(delta, { backend });
   record('spectrum');
 

@@ -21,6 +21,22 @@ export function fourDimensionalLinkWeight(density: number): number {
   return Math.sqrt(density) / (2 * Math.PI * Math.sqrt(6));
 }
 
+/** A massless K = w Rᵀ kept as its relation R and weight w, without the N × N matrix. */
+export interface WeightedRelation {
+  relation: BitRelation;
+  weight: number;
+}
+
+/**
+ * The massless retarded Green function as a weighted relation, K = w Rᵀ (Johnston 2008, CQG 25 202001;
+ * Johnston 2009, PRL 103 180401): 2D R = C, w = ½; 4D R = L, w = √ρ / (2π√6).
+ */
+export function masslessGreenRelation(input: GreenFunctionInput): WeightedRelation {
+  if (input.dimension === 2) return { relation: input.causal, weight: 0.5 };
+  if (!(input.density !== undefined && input.density > 0)) throw new RangeError('the 4D Green function needs the density ρ');
+  return { relation: input.links ?? linkMatrix(input.causal), weight: fourDimensionalLinkWeight(input.density) };
+}
+
 /**
  * The massless retarded Green function, K[x][y] ≠ 0 only for y ≺ x (Johnston 2008, CQG 25 202001;
  * Johnston 2009, PRL 103 180401): 2D K = ½ Cᵀ; 4D K = (√ρ / (2π√6)) Lᵀ. Column-major N × N.
@@ -28,18 +44,19 @@ export function fourDimensionalLinkWeight(density: number): number {
 export function masslessRetardedGreen(input: GreenFunctionInput): DenseMatrix {
   const n = input.causal.size;
   const k = denseMatrix(n, n);
-  if (input.dimension === 2) {
-    input.causal.forEach((i, j) => {
-      k.data[j + i * n] = 0.5;
-    });
-    return k;
-  }
-  if (!(input.density !== undefined && input.density > 0)) throw new RangeError('the 4D Green function needs the density ρ');
-  const weight = fourDimensionalLinkWeight(input.density);
-  (input.links ?? linkMatrix(input.causal)).forEach((i, j) => {
+  const { relation, weight } = masslessGreenRelation(input);
+  relation.forEach((i, j) => {
     k.data[j + i * n] = weight;
   });
   return k;
+}
+
+/**
+ * K as the pipeline needs it: massless, the weighted relation (Δ is then built from it directly,
+ * saving an N × N matrix and its transposition); massive, the dense `retardedGreen`.
+ */
+export function retardedGreenOperator(input: GreenFunctionInput): DenseMatrix | WeightedRelation {
+  return (input.mass ?? 0) === 0 ? masslessGreenRelation(input) : retardedGreen(input);
 }
 
 /**

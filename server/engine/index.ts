@@ -10,7 +10,7 @@ import {
   type VacuumStage,
 } from '../../shared/vacuum';
 import { entanglementEntropy, subregionElements, type EntropyResult } from './entropy';
-import { retardedGreen } from './green';
+import { retardedGreenOperator } from './green';
 import { backendSelection, getBackend, type BackendPreference } from './linalg';
 import type { BackendName, LinearAlgebraBackend } from './linalg/backend';
 import { BitRelation, causalMatrix, linkMatrix } from './order';
@@ -373,7 +373,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
   });
 
   const k = await stage('green', () =>
-    retardedGreen({
+    retardedGreenOperator({
       points,
       dimension,
       causal: order.causal,

@@ -68,6 +68,21 @@ export function causalMatrix(points: ArrayLike<number>, dimension: 2 | 4, period
   const n = points.length / dimension;
   if (!Number.isInteger(n)) throw new RangeError(`point array length ${points.length} is not a multiple of ${dimension}`);
   const c = new BitRelation(n);
+  if (dimension === 2 && periodX === undefined) {
+    // the common case inlined (N² pairs): i ≺ j iff t_j − t_i > |x_j − x_i|, as `precedes` says
+    const words = c.words;
+    const w = c.wordsPerRow;
+    for (let i = 0; i < n; i++) {
+      const ti = points[2 * i];
+      const xi = points[2 * i + 1];
+      const row = i * w;
+      for (let j = 0; j < n; j++) {
+        const dt = points[2 * j] - ti;
+        if (dt > 0 && dt > Math.abs(points[2 * j + 1] - xi)) words[row + (j >>> 5)] |= 1 << (j & 31);
+      }
+    }
+    return c;
+  }
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) if (j !== i && precedes(points, dimension, i, j, periodX)) c.set(i, j);
   }

@@ -1,8 +1,13 @@
 import type { DenseMatrix, LinearAlgebraBackend } from './linalg/backend';
 import { denseMatrix, getBackend } from './linalg';
+import type { WeightedRelation } from './green';
 
-/** Δ = K − Kᵀ, real antisymmetric (Johnston 2009; Sorkin 2011): iΔ is the Pauli–Jordan operator. */
-export function pauliJordan(k: DenseMatrix): DenseMatrix {
+/**
+ * Δ = K − Kᵀ, real antisymmetric (Johnston 2009; Sorkin 2011): iΔ is the Pauli–Jordan operator. K is
+ * dense, or a massless K = w Rᵀ given by its relation, when Δ = w(Rᵀ − R) is written pair by pair.
+ */
+export function pauliJordan(k: DenseMatrix | WeightedRelation): DenseMatrix {
+  if ('relation' in k) return pauliJordanOfRelation(k);
   const n = k.rows;
   const delta = denseMatrix(n, n);
   // tiles of 64 × 64 keep the transposed reads in cache (a plain double loop misses on every one at N ≳ 1000)
@@ -14,6 +19,17 @@ export function pauliJordan(k: DenseMatrix): DenseMatrix {
       for (let j = jb; j < jEnd; j++) for (let i = ib; i < iEnd; i++) delta.data[i + j * n] = k.data[i + j * n] - k.data[j + i * n];
     }
   }
+  return delta;
+}
+
+/** Δ = w(Rᵀ − R): Δ[j][i] = w and Δ[i][j] = −w for every pair i R j. */
+function pauliJordanOfRelation({ relation, weight }: WeightedRelation): DenseMatrix {
+  const n = relation.size;
+  const delta = denseMatrix(n, n);
+  relation.forEach((i, j) => {
+    delta.data[j + i * n] = weight;
+    delta.data[i + j * n] = -weight;
+  });
   return delta;
 }
 

@@ -3,7 +3,7 @@ import { studyRuleKey } from '../../shared/studies';
 import type { RegionSpec, SprinklingSpecInput, VacuumStage } from '../../shared/vacuum';
 import { sprinklingSpecSchema } from '../../shared/vacuum';
 import { entanglementEntropy, subregionElements } from '../engine/entropy';
-import { retardedGreen } from '../engine/green';
+import { retardedGreenOperator } from '../engine/green';
 import {
   CancelledError,
   checkDenseSize,
@@ -96,7 +96,7 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
     return { causal, links: dimension === 4 ? linkMatrix(causal) : undefined };
   });
   const k = await stage('green', () =>
-    retardedGreen({
+    retardedGreenOperator({
       points,
       dimension,
       causal: order.causal,

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { fourDimensionalLinkWeight, retardedGreen } from '../../server/engine/green';
+import { fourDimensionalLinkWeight, retardedGreen, retardedGreenOperator } from '../../server/engine/green';
+import { pauliJordan } from '../../server/engine/pauliJordan';
 import { causalMatrix, linkMatrix } from '../../server/engine/order';
 import { sprinkle } from '../../server/engine/sprinkle';
 import { runPython } from '../support/python';
@@ -88,5 +89,24 @@ describe('4D massless retarded Green function', () => {
     expect(ratios[3]).toBeGreaterThan(0.82);
     expect(ratios[3]).toBeLessThan(1.02);
     expect(ratios[0]).toBeLessThan(ratios[3]);
+  });
+});
+
+describe('massless K kept as a weighted relation', () => {
+  it('gives the same Δ = K − Kᵀ as the dense K, in 2D and 4D, and the dense K for a massive field', () => {
+    // Johnston 2008/2009: 2D K = ½Cᵀ, 4D K = (√ρ/(2π√6)) Lᵀ; Δ built pair by pair must equal the
+    // transposition of the dense matrix entry for entry
+    for (const dimension of [2, 4] as const) {
+      const region = dimension === 2 ? { kind: 'diamond2d' as const, properTime: 2 } : { kind: 'diamond4d' as const, properTime: 2 };
+      const s = sprinkle({ region, process: 'fixed', count: 120, seed: `relation-${dimension}`, prng: 'arc4' });
+      const input = { points: s.points, dimension, causal: causalMatrix(s.points, dimension), density: s.density };
+      const operator = retardedGreenOperator(input);
+      expect('relation' in operator).toBe(true);
+      expect(Array.from(pauliJordan(operator).data)).toEqual(Array.from(pauliJordan(retardedGreen(input)).data));
+    }
+    const s = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 60, seed: 'relation-massive', prng: 'arc4' });
+    const massive = { points: s.points, dimension: 2 as const, causal: causalMatrix(s.points, 2), density: s.density, mass: 1 };
+    expect(Array.from((retardedGreenOperator(massive) as { data: Float64Array }).data)).toEqual(Array.from(retardedGreen(massive).data));
+    expect(() => retardedGreenOperator({ ...massive, mass: -1 })).toThrow(/mass must be a finite number ≥ 0/);
   });
 });
