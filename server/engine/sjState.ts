@@ -140,7 +140,7 @@ export function restrictedWightman(
   return { real, imaginary };
 }
 
-/** ‖Δ‖_F, computed once per Δ however many states and checks use it. */
+/** ‖Δ‖_F, computed once per Δ however many states and checks use it (Δ is never written once built). */
 const deltaNorms = new WeakMap<Float64Array, number>();
 function deltaNorm(delta: DenseMatrix): number {
   let norm = deltaNorms.get(delta.data);

@@ -137,8 +137,10 @@ describe('a vacuum run on an uploaded coordinates CSV', () => {
     expect(again.status).toBe(202);
     const child = await waitForRun(ctx.app, researcher, again.body.id as string);
     expect(child.status).toBe('done');
-    expect(child.result!.entropy!.S).toBe(doubleTruncatedRun.result!.entropy!.S);
-    expectSameNumbers(child.result!.eigenvalues, doubleTruncatedRun.result!.eigenvalues, 0);
+    // the same numbers to rounding: OpenBLAS sums in another order when the worker's thread policy
+    // picks another thread count (DEVELOPERS.md, thread policy), which moves the last digits only
+    expect(Math.abs(child.result!.entropy!.S / doubleTruncatedRun.result!.entropy!.S - 1)).toBeLessThan(1e-12);
+    expectSameNumbers(child.result!.eigenvalues, doubleTruncatedRun.result!.eigenvalues, 1e-13);
     // a new run on the deleted set is refused
     const gone = await request(ctx.app).post('/api/runs').set(auth(researcher)).send({ causalSetId });
     expect(gone.status).toBe(422);
@@ -197,7 +199,7 @@ describe('a vacuum run on an uploaded relation list', () => {
     expect(again.status).toBe(202);
     const child = await waitForRun(ctx.app, researcher, again.body.id as string);
     expect(child.status).toBe('done');
-    expectSameNumbers(child.result!.eigenvalues, run.result!.eigenvalues, 0);
+    expectSameNumbers(child.result!.eigenvalues, run.result!.eigenvalues, 1e-13);
     expect(child.result!.modesKept).toBe(150);
   });
 
