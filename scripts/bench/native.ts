@@ -116,6 +116,22 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
   return rows;
 }
 
+/**
+ * Waits (at most 3 minutes) until the thread policy of the native backend would use every core
+ * (`threadsForLoad` with no load of this process's own): after earlier rows the 1-minute load average
+ * lags for a minute or two, and the rows would measure the policy's response to that rather than the
+ * backend. The rows record the load average they saw.
+ */
+async function quietMachine(): Promise<void> {
+  const { threadsForLoad } = await import('../../server/engine/linalg/nativeBackend');
+  const cores = os.availableParallelism();
+  const busy = () => threadsForLoad(os.loadavg()[0], 0, cores) < cores;
+  if (!busy()) return;
+  console.error(`[bench native] waiting for the load average (${os.loadavg()[0].toFixed(2)}) to leave all ${cores} cores free …`);
+  const deadline = Date.now() + 180_000;
+  while (busy() && Date.now() < deadline) await new Promise((resolve) => setTimeout(resolve, 2000));
+}
+
 function runChild(engine: BenchRow['engine'], N: number): Promise<BenchRow[]> {
   return runBenchChild<BenchRow>(thisFile, [engine, String(N)], `bench child (${engine}, N = ${N})`);
 }
@@ -137,6 +153,7 @@ export async function benchRows(): Promise<BenchRow[]> {
   else console.error(`[bench native] native backend unavailable (${selection.nativeUnavailableReason}); ml-matrix rows only`);
   for (const N of nativeSizes) if (N <= mlMax) plan.push(['ml-matrix', N]);
   for (const [engine, N] of plan) {
+    if (engine === 'native') await quietMachine();
     console.error(`[bench native] ${engine} N = ${N} …`);
     rows.push(...(await runChild(engine, N)));
   }

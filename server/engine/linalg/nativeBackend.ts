@@ -16,9 +16,9 @@
  * Threads: OpenBLAS splits every call over all cores, and its threads wait for each other at every
  * step of the tridiagonal reduction; when other processes keep the cores busy that costs far more than
  * it gains (dsyevd at N = 2000: 1.4 s on one thread against 5.0 s on two, on a 2-core machine with a
- * load average of 8). So by default (TACET_BLAS_THREADS=auto) each large call runs on all cores while
- * the 1-minute load average is at most the number of cores, and on one thread when the machine is
- * oversubscribed. TACET_BLAS_THREADS=<n> or OPENBLAS_NUM_THREADS fixes the count instead.
+ * load average of 8). So by default (TACET_BLAS_THREADS=auto) each large call runs on the cores other
+ * processes leave free — the 1-minute load average less this process's own share of it
+ * (`threadsForLoad`), at least one. TACET_BLAS_THREADS=<n> or OPENBLAS_NUM_THREADS fixes the count.
  *
  * When the addon is missing or does not load (no compiler, no OpenBLAS at build or run time), this
  * module yields no backend and the reason, and the engine serves from ml-matrix instead.
@@ -89,6 +89,48 @@ function checkData(name: string, m: DenseMatrix): void {
 /** Calls below this many multiply–adds are too short for the thread count to matter. */
 const THREAD_POLICY_MIN_WORK = 256 ** 3;
 
+/**
+ * This process's own CPU use (cores busy, all threads) averaged like the kernel's 1-minute load
+ * average: exponentially with a 60 s time constant, so that it can be taken out of that average.
+ */
+export class OwnCpuAverage {
+  private average = 0;
+  private lastSeconds: number;
+  private lastCpu: number;
+
+  constructor(seconds: number, cpuSeconds: number) {
+    this.lastSeconds = seconds;
+    this.lastCpu = cpuSeconds;
+  }
+
+  /** Folds in the CPU seconds used since the last call and returns the average in cores. */
+  update(seconds: number, cpuSeconds: number): number {
+    const elapsed = seconds - this.lastSeconds;
+    if (elapsed > 0) {
+      const decay = Math.exp(-elapsed / 60);
+      this.average = this.average * decay + ((cpuSeconds - this.lastCpu) / elapsed) * (1 - decay);
+      this.lastSeconds = seconds;
+      this.lastCpu = cpuSeconds;
+    }
+    return this.average;
+  }
+}
+
+/**
+ * OpenBLAS threads for the next large call: the cores that other processes leave free, at least one.
+ * Other processes' load is the 1-minute load average less this process's own share of it, so a run
+ * does not throttle itself on the load its own threads make.
+ */
+export function threadsForLoad(loadAverage: number, ownAverage: number, cores: number): number {
+  const others = Math.max(0, loadAverage - ownAverage);
+  return Math.max(1, Math.min(cores, Math.round(cores - others)));
+}
+
+const processCpuSeconds = () => {
+  const used = process.cpuUsage();
+  return (used.user + used.system) / 1e6;
+};
+
 /** Returns the function to call before a large routine (see the module note on threads). */
 function threadPolicy(addon: TacetLinalgAddon): (work: number) => void {
   const setting = process.env.TACET_BLAS_THREADS ?? (process.env.OPENBLAS_NUM_THREADS ? 'fixed' : 'auto');
@@ -101,9 +143,11 @@ function threadPolicy(addon: TacetLinalgAddon): (work: number) => void {
     return () => {};
   }
   let current = addon.info().threads;
+  const own = new OwnCpuAverage(performance.now() / 1000, processCpuSeconds());
   return (work) => {
+    const ownAverage = own.update(performance.now() / 1000, processCpuSeconds());
     if (work < THREAD_POLICY_MIN_WORK) return;
-    const wanted = os.loadavg()[0] > cores ? 1 : cores;
+    const wanted = threadsForLoad(os.loadavg()[0], ownAverage, cores);
     if (wanted !== current) current = addon.setThreads(wanted);
   };
 }
