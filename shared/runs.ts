@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, vacuumSettingsSchema, vacuumStages } from './vacuum';
+import { engineRequestSchema, sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, vacuumSettingsSchema, vacuumStages } from './vacuum';
 
 /**
  * Vacuum runs: one computation of the SJ state (and optionally a subregion's entropy) on one causal set.
@@ -36,6 +36,8 @@ export const reanalyseRunRequestSchema = z.strictObject({
   truncation: truncationRuleSchema.optional(),
   subregion: subregionSpecSchema.nullable().optional(),
   doubleTruncation: z.boolean().optional(),
+  /** the parent's engine request carries over when absent; auto lets the rule pick for the new cut */
+  engine: engineRequestSchema.optional(),
 });
 export type ReanalyseRunRequest = z.infer<typeof reanalyseRunRequestSchema>;
 

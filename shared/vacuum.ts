@@ -195,6 +195,9 @@ export function parseSubregion(text: string): SubregionSpec {
   return fail();
 }
 
+/** Which engine a request asks for: one of the two, or auto (the rule in shared/engineChoice.ts). */
+export const engineRequestSchema = z.enum(['auto', 'dense', 'structured']);
+
 /** Field and truncation settings of one vacuum computation (the points come separately). */
 export const vacuumSettingsSchema = z.strictObject({
   mass: finite.refine((v) => v >= 0, { message: 'mass must be ≥ 0' }).default(0),
@@ -206,7 +209,7 @@ export const vacuumSettingsSchema = z.strictObject({
    * dense (N×N matrices, N ≤ 6000), structured (2D non-periodic with sqrtN, lambda or modes: only the
    * modes above the cut, N ≤ 100 000) or auto (the rule in shared/engineChoice.ts)
    */
-  engine: z.enum(['auto', 'dense', 'structured']).optional(),
+  engine: engineRequestSchema.optional(),
 });
 export type VacuumSettings = z.infer<typeof vacuumSettingsSchema>;
 export type VacuumSettingsInput = z.input<typeof vacuumSettingsSchema>;

@@ -165,6 +165,31 @@ describe('a run from POST to result', () => {
     expect((child.request as { reusedPoints: { runId: string } }).reusedPoints.runId).toBe(runId);
   });
 
+  it('re-analyses on another engine when asked, and refuses an engine that cannot serve the new cut', async () => {
+    const res = await request(ctx.app)
+      .post(`/api/runs/${runId}/reanalyse`)
+      .set(bearer(researcher.token))
+      .send({ truncation: { rule: 'sqrtN' }, subregion: null, engine: 'structured' });
+    expect(res.status).toBe(202);
+    const { run: child } = await waitForRun(ctx.app, researcher.token, res.body.id as string);
+    expect(child.status).toBe('done');
+    expect(child.result!.engine).toBe('structured');
+    expect((child.request as { engine?: string }).engine).toBe('structured');
+    // the structured engine computes the modes above the cut; they agree with the dense parent's
+    const parent = await getRun(ctx.app, researcher.token, runId);
+    expect(child.result!.modesKept).toBe(parent.result!.modesKept);
+    for (let k = 0; k < child.result!.modesKept; k++) {
+      expect(Math.abs(child.result!.eigenvalues[k]! - parent.result!.eigenvalues[k]!)).toBeLessThan(1e-8 * parent.result!.eigenvalues[0]!);
+    }
+    // every mode (truncation none) is beyond the structured engine: refused before anything is queued
+    const refused = await request(ctx.app)
+      .post(`/api/runs/${runId}/reanalyse`)
+      .set(bearer(researcher.token))
+      .send({ truncation: { rule: 'none' }, engine: 'structured' });
+    expect(refused.status).toBe(422);
+    expect(refused.body.error.message).toMatch(/structured engine/i);
+  });
+
   it('lists done runs sorted by entropy with runs without S last', async () => {
     const res = await request(ctx.app).get('/api/runs?status=done&sort=S&order=desc').set(bearer(researcher.token));
     const list = runListResponseSchema.parse(res.body);

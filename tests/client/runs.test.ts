@@ -17,7 +17,9 @@ import {
   denseLimits,
   initialReanalyseValues,
   insideFutureLightCone,
+  reanalyseEngineNote,
   reanalyseRequestFromForm,
+  type ReanalyseFormValues,
   runRequestFromForm,
   serverFieldErrors,
   type RunFormValues,
@@ -180,13 +182,13 @@ describe('light cone of the subregion tips (c = 1; common practice)', () => {
 });
 
 describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
-  const base = { title: '', mass: '0', truncation: { kind: 'sqrtN' as const, value: '' }, withSubregion: false, doubleTruncation: true };
+  const base = { title: '', mass: '0', truncation: { kind: 'sqrtN' as const, value: '' }, withSubregion: false, doubleTruncation: true, engine: 'auto' as const };
   const tips = { past: { t: '-0.5', x: '0', y: '0', z: '0' }, future: { t: '0.5', x: '0', y: '0', z: '0' } };
 
   it('sends subregion null to drop it, and no double truncation without one', () => {
     expect(reanalyseRequestFromForm({ ...base, ...tips }, 2)).toEqual({
       ok: true,
-      request: { mass: 0, truncation: { rule: 'sqrtN' }, subregion: null, doubleTruncation: false },
+      request: { mass: 0, truncation: { rule: 'sqrtN' }, subregion: null, doubleTruncation: false, engine: 'auto' },
     });
   });
 
@@ -200,8 +202,21 @@ describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
     const values = initialReanalyseValues(parent);
     expect(values.truncation).toEqual({ kind: 'modes', value: '40' });
     expect(values.withSubregion).toBe(true);
-    expect(reanalyseRequestFromForm(values, 2)).toEqual({ ok: true, request: parent });
+    // a parent without an engine request ran under auto, and says so explicitly now
+    expect(reanalyseRequestFromForm(values, 2)).toEqual({ ok: true, request: { ...parent, engine: 'auto' } });
+    expect(reanalyseRequestFromForm(initialReanalyseValues({ ...parent, engine: 'dense' }), 2)).toEqual({ ok: true, request: { ...parent, engine: 'dense' } });
     expect(initialReanalyseValues(null).truncation).toEqual({ kind: 'sqrtN', value: '' });
+  });
+
+  it('says which engine the rule picks for the re-analysis, with the server’s rule and limits', () => {
+    const values = (changes: Partial<ReanalyseFormValues>): ReanalyseFormValues => ({ ...base, ...tips, ...changes });
+    const run2d = { N: 1500, dimension: 2 as const, periodic: false, relationOnly: false };
+    expect(reanalyseEngineNote(values({}), run2d)).toMatch(/^Structured engine \(2D with a sqrtN cut and N ≥ 1000/);
+    expect(reanalyseEngineNote(values({ truncation: { kind: 'none', value: '' } }), run2d)).toMatch(/^Dense engine/);
+    expect(reanalyseEngineNote(values({ engine: 'dense' }), run2d)).toBe('Dense engine (forced by the request); it computes the whole spectrum.');
+    expect(reanalyseEngineNote(values({ engine: 'structured' }), { ...run2d, periodic: true })).toMatch(/^The structured engine/i);
+    expect(reanalyseEngineNote(values({ engine: 'dense' }), { ...run2d, N: 7000 }, 6000)).toBe('N = 7000 exceeds the dense limit of 6000 elements.');
+    expect(reanalyseEngineNote(values({}), { ...run2d, relationOnly: true })).toMatch(/relation list runs on the dense engine/);
   });
 
   it('checks the light cone here too', () => {

@@ -316,8 +316,9 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         doubleTruncation: changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false),
         ...(base.sprinkling ? { sprinkling: base.sprinkling } : {}),
         ...(base.causalSet ? { causalSet: base.causalSet } : {}),
-        // the parent's engine request carries over (the rule may still pick another for the new cut)
-        ...(base.engine ? { engine: base.engine } : {}),
+        // the parent's engine request carries over unless the change names one (the rule may still
+        // pick another engine for the new cut under auto)
+        ...((changes.engine ?? base.engine) ? { engine: changes.engine ?? base.engine } : {}),
         reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
       };
       validateForEngine(

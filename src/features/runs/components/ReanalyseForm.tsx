@@ -3,11 +3,12 @@ import { useNavigate } from 'react-router';
 import type { RunDetail } from '@shared/runs';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
-import { FormError, TextField } from '../../../ui/Field';
+import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
 import { useReanalyseRun } from '../api/runs';
-import { initialReanalyseValues, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/runForm';
+import { useEngineLimits } from '../api/limits';
+import { denseLimitN, initialReanalyseValues, reanalyseEngineNote, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/runForm';
 import { showRunRequestError } from '../lib/showRequestError';
 import { SubregionFields } from './SubregionFields';
 
@@ -18,6 +19,14 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
   const reanalyse = useReanalyseRun(run.id);
   const cutRules = useCutRules();
   const navigate = useNavigate();
+  const denseMaxN = useEngineLimits().data?.dense.maxN ?? denseLimitN;
+  const stored = (run.request ?? {}) as { causalSet?: { kind?: string } };
+  const reanalysed = {
+    N: run.N ?? 0,
+    dimension,
+    periodic: run.regionKind === 'cylinder2d',
+    relationOnly: stored.causalSet?.kind === 'relations',
+  };
   const set = <K extends keyof ReanalyseFormValues>(key: K, value: ReanalyseFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));
 
   function submit(event: FormEvent) {
@@ -34,7 +43,7 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
   return (
     <form onSubmit={submit} noValidate aria-label="Re-analyse" className="flex max-w-3xl flex-col gap-6">
       <p className="text-sm text-ink-soft">
-        The same points with another truncation, subregion or mass, computed as a new run that links back to this one.
+        The same points with another truncation, subregion, mass or engine, computed as a new run that links back to this one.
       </p>
       <TruncationRuleFields
         value={values.truncation}
@@ -61,6 +70,22 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
           onChange={(e) => set('title', e.target.value)}
           error={errors.fieldErrors.title}
         />
+      </div>
+      <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
+        <SelectField
+          label="Engine"
+          name="reanalyseEngine"
+          value={values.engine}
+          onChange={(e) => set('engine', e.target.value as ReanalyseFormValues['engine'])}
+          error={errors.fieldErrors.engine}
+        >
+          <option value="auto">Auto (by the rule)</option>
+          <option value="dense">Dense (whole spectrum)</option>
+          <option value="structured">Structured (modes above the cut)</option>
+        </SelectField>
+        <p className="text-sm text-ink-soft sm:col-span-2 sm:pt-7" aria-live="polite" data-testid="reanalyse-engine-note">
+          {reanalyseEngineNote(values, reanalysed, denseMaxN)}
+        </p>
       </div>
       <SubregionFields
         dimension={dimension}

@@ -412,12 +412,14 @@ export interface ReanalyseFormValues {
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+  engine: EngineRequest;
 }
 
 interface StoredSettings {
   mass?: number;
   truncation?: TruncationRule;
   doubleTruncation?: boolean;
+  engine?: EngineRequest;
   subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
 }
 
@@ -439,7 +441,32 @@ export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
     past: tipValues(diamond?.past, defaults.past),
     future: tipValues(diamond?.future, defaults.future),
     doubleTruncation: stored.doubleTruncation ?? false,
+    engine: stored.engine ?? 'auto',
   };
+}
+
+/** What the re-analysed run is: its size, dimension and whether it has coordinates to sweep. */
+export interface ReanalysedRun {
+  N: number;
+  dimension: 2 | 4;
+  periodic: boolean;
+  /** an imported relation list: no coordinates, so the dense engine only */
+  relationOnly: boolean;
+}
+
+/** The engine the rule picks for the re-analysis as typed, or why it cannot run; same rule as the server. */
+export function reanalyseEngineNote(v: ReanalyseFormValues, run: ReanalysedRun, denseMaxN: number = denseLimitN): string {
+  if (run.relationOnly && v.engine !== 'structured') return 'A relation list runs on the dense engine: it has no coordinates to sweep.';
+  if (run.relationOnly) return 'The structured engine needs coordinates; a relation list runs on the dense engine only.';
+  try {
+    const truncation = { rule: v.truncation.kind } as TruncationRule;
+    const choice = chooseEngine({ N: run.N, dimension: run.dimension, truncation, requested: v.engine, denseMaxN, periodic: run.periodic });
+    if (choice.engine === 'dense') return `Dense engine (${choice.reason}); it computes the whole spectrum.`;
+    if (choice.reason.includes('only the modes above the cut')) return `Structured engine (${choice.reason}).`;
+    return `Structured engine (${choice.reason}): only the modes above the cut are computed.`;
+  } catch (error) {
+    return `${capitalise((error as Error).message)}.`;
+  }
 }
 
 export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 4): Checked<ReanalyseRunRequest> {
@@ -449,6 +476,7 @@ export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 
     truncation: truncationFromForm(v.truncation),
     subregion: v.withSubregion ? subregionFromForm(reader, { ...defaultRunForm(''), ...v }, dimension) : null,
     doubleTruncation: v.withSubregion && v.doubleTruncation,
+    engine: v.engine,
   };
   if (v.title.trim()) candidate.title = v.title.trim();
   const parsed = reanalyseRunRequestSchema.safeParse(candidate);
