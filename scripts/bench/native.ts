@@ -117,19 +117,24 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
 }
 
 /**
- * Waits (at most 3 minutes) until the thread policy of the native backend would use every core
- * (`threadsForLoad` with no load of this process's own): after earlier rows the 1-minute load average
- * lags for a minute or two, and the rows would measure the policy's response to that rather than the
- * backend. The rows record the load average they saw.
+ * Waits (at most 3 minutes) until other processes leave every core free, as the thread policy of the
+ * native backend measures it (`OtherProcessesLoad`): a child started while the previous one's
+ * processes wind down would otherwise run on one thread. The rows record the load average they saw.
  */
 async function quietMachine(): Promise<void> {
-  const { threadsForLoad } = await import('../../server/engine/linalg/nativeBackend');
+  const { OtherProcessesLoad, threadsForLoad } = await import('../../server/engine/linalg/nativeBackend');
   const cores = os.availableParallelism();
-  const busy = () => threadsForLoad(os.loadavg()[0], 0, cores) < cores;
-  if (!busy()) return;
-  console.error(`[bench native] waiting for the load average (${os.loadavg()[0].toFixed(2)}) to leave all ${cores} cores free …`);
+  const load = new OtherProcessesLoad(undefined, undefined, undefined, 0.5);
+  const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
   const deadline = Date.now() + 180_000;
-  while (busy() && Date.now() < deadline) await new Promise((resolve) => setTimeout(resolve, 2000));
+  await sleep(600);
+  let busy = load.read() ?? 0;
+  if (threadsForLoad(busy, cores) === cores) return;
+  console.error(`[bench native] waiting for other processes (${busy.toFixed(2)} cores busy) to leave all ${cores} cores free …`);
+  while (threadsForLoad(busy, cores) < cores && Date.now() < deadline) {
+    await sleep(1000);
+    busy = load.read() ?? busy;
+  }
 }
 
 function runChild(engine: BenchRow['engine'], N: number): Promise<BenchRow[]> {

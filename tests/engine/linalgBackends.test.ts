@@ -12,7 +12,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import type { DenseMatrix, LinearAlgebraBackend } from '../../server/engine/linalg/backend';
 import { backendSelection, getBackend } from '../../server/engine/linalg';
 import { mlMatrixBackend } from '../../server/engine/linalg/mlMatrixBackend';
-import { loadNativeBackend, nativeBackendStatus, OwnCpuAverage, threadsForLoad } from '../../server/engine/linalg/nativeBackend';
+import { loadNativeBackend, nativeBackendStatus, OtherProcessesLoad, threadsForLoad } from '../../server/engine/linalg/nativeBackend';
 import { computeVacuum, type VacuumRequest } from '../../server/engine';
 
 const native = nativeBackendStatus();
@@ -126,20 +126,38 @@ describe('native backend loading', () => {
     expect(result.reason).toMatch(/failed to load/);
   });
 
-  it('the thread policy leaves other processes their cores, not counting the load of this process', () => {
-    // threads = cores − (load average − own share), rounded, at least one (module note in nativeBackend.ts)
-    expect(threadsForLoad(0.1, 0, 2)).toBe(2);
-    expect(threadsForLoad(3.5, 0, 2)).toBe(1);
-    expect(threadsForLoad(8, 0, 2)).toBe(1);
-    expect(threadsForLoad(2.3, 2, 2)).toBe(2); // a run's own two threads do not throttle it
-    expect(threadsForLoad(3, 0, 8)).toBe(5);
-    expect(threadsForLoad(0, 0, 1)).toBe(1);
-    // the own share decays like the kernel's 1-minute average: e^(−t/60)
-    const own = new OwnCpuAverage(0, 0);
-    expect(own.update(60, 120)).toBeCloseTo(2 * (1 - Math.exp(-1)), 12);
-    for (let t = 120; t <= 1200; t += 60) own.update(t, 2 * t);
-    expect(own.update(1200, 2400)).toBeCloseTo(2, 6);
-    expect(own.update(1260, 2400)).toBeCloseTo(2 * Math.exp(-1), 6);
+  it('the thread policy leaves other processes their cores, measured without this process', () => {
+    // threads = cores − cores busy elsewhere, rounded, at least one (module note in nativeBackend.ts)
+    expect(threadsForLoad(0.1, 2)).toBe(2);
+    expect(threadsForLoad(0.9, 2)).toBe(1);
+    expect(threadsForLoad(6, 2)).toBe(1);
+    expect(threadsForLoad(3, 8)).toBe(5);
+    expect(threadsForLoad(0, 1)).toBe(1);
+    // machine busy time less own CPU time over the window: here others use 0.5 core while this
+    // process uses 2, and nothing is read before the window has passed
+    let time = 0;
+    let machine = 0;
+    let own = 0;
+    const load = new OtherProcessesLoad(() => time, () => machine, () => own, 0.1);
+    expect(load.read()).toBeNull();
+    time = 0.05;
+    expect(load.read()).toBeNull();
+    time = 1;
+    machine = 2.5;
+    own = 2;
+    expect(load.read()).toBeCloseTo(0.5, 12);
+    time = 1.02; // within the window: the previous estimate stands
+    machine = 10;
+    expect(load.read()).toBeCloseTo(0.5, 12);
+    time = 2;
+    machine = 10.1; // 7.6 busy s in 1 s is impossible on two cores, but the arithmetic is what is tested
+    own = 2.5;
+    expect(load.read()).toBeCloseTo(7.1, 12);
+    // a live reading on this machine is a number of cores between 0 and the core count (plus rounding)
+    const live = new OtherProcessesLoad(undefined, undefined, undefined, 0);
+    const busy = live.read();
+    expect(busy).not.toBeNull();
+    expect(busy!).toBeGreaterThanOrEqual(0);
   });
 
   it.runIf(native.backend)('TACET_BLAS_THREADS fixes the OpenBLAS thread count and rejects nonsense', () => {

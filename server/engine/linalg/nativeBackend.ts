@@ -17,8 +17,9 @@
  * step of the tridiagonal reduction; when other processes keep the cores busy that costs far more than
  * it gains (dsyevd at N = 2000: 1.4 s on one thread against 5.0 s on two, on a 2-core machine with a
  * load average of 8). So by default (TACET_BLAS_THREADS=auto) each large call runs on the cores other
- * processes leave free — the 1-minute load average less this process's own share of it
- * (`threadsForLoad`), at least one. TACET_BLAS_THREADS=<n> or OPENBLAS_NUM_THREADS fixes the count.
+ * processes leave free — the machine's busy CPU time less this process's own since the previous call
+ * (`OtherProcessesLoad`, `threadsForLoad`), at least one. TACET_BLAS_THREADS=<n> or
+ * OPENBLAS_NUM_THREADS fixes the count.
  *
  * When the addon is missing or does not load (no compiler, no OpenBLAS at build or run time), this
  * module yields no backend and the reason, and the engine serves from ml-matrix instead.
@@ -89,47 +90,65 @@ function checkData(name: string, m: DenseMatrix): void {
 /** Calls below this many multiply–adds are too short for the thread count to matter. */
 const THREAD_POLICY_MIN_WORK = 256 ** 3;
 
-/**
- * This process's own CPU use (cores busy, all threads) averaged like the kernel's 1-minute load
- * average: exponentially with a 60 s time constant, so that it can be taken out of that average.
- */
-export class OwnCpuAverage {
-  private average = 0;
-  private lastSeconds: number;
-  private lastCpu: number;
-
-  constructor(seconds: number, cpuSeconds: number) {
-    this.lastSeconds = seconds;
-    this.lastCpu = cpuSeconds;
-  }
-
-  /** Folds in the CPU seconds used since the last call and returns the average in cores. */
-  update(seconds: number, cpuSeconds: number): number {
-    const elapsed = seconds - this.lastSeconds;
-    if (elapsed > 0) {
-      const decay = Math.exp(-elapsed / 60);
-      this.average = this.average * decay + ((cpuSeconds - this.lastCpu) / elapsed) * (1 - decay);
-      this.lastSeconds = seconds;
-      this.lastCpu = cpuSeconds;
-    }
-    return this.average;
-  }
-}
-
-/**
- * OpenBLAS threads for the next large call: the cores that other processes leave free, at least one.
- * Other processes' load is the 1-minute load average less this process's own share of it, so a run
- * does not throttle itself on the load its own threads make.
- */
-export function threadsForLoad(loadAverage: number, ownAverage: number, cores: number): number {
-  const others = Math.max(0, loadAverage - ownAverage);
-  return Math.max(1, Math.min(cores, Math.round(cores - others)));
-}
-
+/** CPU seconds, all threads, of this process. */
 const processCpuSeconds = () => {
   const used = process.cpuUsage();
   return (used.user + used.system) / 1e6;
 };
+
+/** Busy CPU seconds of the whole machine (every process, nice included), summed over cores. */
+const machineBusySeconds = () => {
+  let ms = 0;
+  for (const { times } of os.cpus()) ms += times.user + times.nice + times.sys + times.irq;
+  return ms / 1000;
+};
+
+/**
+ * How many cores other processes kept busy lately: the machine's busy CPU time less this process's
+ * own, over the time since the previous reading (at least `minimumWindow` seconds, else the previous
+ * estimate stands). Unlike the load average this has no minute of lag and does not count this
+ * process's own threads.
+ */
+export class OtherProcessesLoad {
+  private lastTime: number;
+  private lastBusy: number;
+  private lastOwn: number;
+  private estimate: number | null = null;
+
+  constructor(
+    private readonly clock: () => number = () => performance.now() / 1000,
+    private readonly machineBusy: () => number = machineBusySeconds,
+    private readonly ownCpu: () => number = processCpuSeconds,
+    private readonly minimumWindow = 0.1,
+  ) {
+    this.lastTime = clock();
+    this.lastBusy = machineBusy();
+    this.lastOwn = ownCpu();
+  }
+
+  /** Cores busy with other processes since the previous reading; null until a window has passed. */
+  read(): number | null {
+    const now = this.clock();
+    const elapsed = now - this.lastTime;
+    if (elapsed < this.minimumWindow) return this.estimate;
+    const busy = this.machineBusy();
+    const own = this.ownCpu();
+    this.estimate = Math.max(0, (busy - this.lastBusy - (own - this.lastOwn)) / elapsed);
+    this.lastTime = now;
+    this.lastBusy = busy;
+    this.lastOwn = own;
+    return this.estimate;
+  }
+}
+
+/**
+ * OpenBLAS threads for the next large call: the cores other processes leave free, at least one.
+ * Sharing a core costs far more than it gains (dsyevd at N = 2000 beside one busy process on 2 cores:
+ * 6.0 s on two threads, 2.1 s on one), so a core counts as taken from half a core's use up.
+ */
+export function threadsForLoad(otherBusyCores: number, cores: number): number {
+  return Math.max(1, Math.min(cores, Math.round(cores - otherBusyCores)));
+}
 
 /** Returns the function to call before a large routine (see the module note on threads). */
 function threadPolicy(addon: TacetLinalgAddon): (work: number) => void {
@@ -143,11 +162,12 @@ function threadPolicy(addon: TacetLinalgAddon): (work: number) => void {
     return () => {};
   }
   let current = addon.info().threads;
-  const own = new OwnCpuAverage(performance.now() / 1000, processCpuSeconds());
+  const others = new OtherProcessesLoad();
   return (work) => {
-    const ownAverage = own.update(performance.now() / 1000, processCpuSeconds());
     if (work < THREAD_POLICY_MIN_WORK) return;
-    const wanted = threadsForLoad(os.loadavg()[0], ownAverage, cores);
+    // before the first window has passed, the load average stands in (it lags, but errs to one thread)
+    const busy = others.read() ?? os.loadavg()[0];
+    const wanted = threadsForLoad(busy, cores);
     if (wanted !== current) current = addon.setThreads(wanted);
   };
 }
