@@ -5,6 +5,7 @@ import { studyDetailSchema, studyListResponseSchema, type StudyDetail } from '@s
 import { computeStudyCell } from '../../server/studies/cell';
 import { resolveSubregions } from '../../server/studies/plan';
 import { studyCellHandler, studyCellJobId } from '../../server/worker/handlers/studyCell';
+import { sweepOrphanedWork } from '../../server/worker/recovery';
 import { startComputeWorker } from '../../server/worker/worker';
 import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
 import { bearer, parseCsv, waitUntil } from '../worker/runHelpers';
@@ -252,5 +253,30 @@ describe('cancelling and restarting', () => {
     expect(end.aggregates).toHaveLength(2);
     await job!.remove();
     worker = await startWorker();
+  });
+
+  it('the sweep fails cells whose jobs are gone, leaves live ones, and closes the study once all have ended', async () => {
+    await worker!.close();
+    worker = null;
+    const id = await postStudy(tinyStudy({ title: 'orphaned cells', counts: [90], seeds: ['o1', 'o2', 'o3'], subregions: { kind: 'concentric', fractions: [0.6] } }));
+    const [lostRunning, lostQueued, alive] = (await getStudy(id)).cells;
+    // as if a worker died holding one cell and Redis then lost the jobs of two
+    await ctx.dataSource.query(`UPDATE study_cells SET status = 'running', started_at = now() WHERE id = $1`, [lostRunning!.id]);
+    for (const cell of [lostRunning!, lostQueued!]) await (await ctx.computeQueue.getJob(studyCellJobId(cell.id)))!.remove();
+    const report = await sweepOrphanedWork({ dataSource: ctx.dataSource, queue: ctx.computeQueue, graceMs: 0 });
+    expect(report.cells.sort()).toEqual([lostRunning!.id, lostQueued!.id].sort());
+    const swept = await getStudy(id);
+    for (const cellId of [lostRunning!.id, lostQueued!.id]) {
+      const cell = swept.cells.find((c) => c.id === cellId)!;
+      expect(cell.status).toBe('failed');
+      expect(cell.error).toMatch(/no longer in the queue/);
+    }
+    // the third cell's job is still waiting: untouched, and the study stays open for it
+    expect(swept.cells.find((c) => c.id === alive!.id)!.status).toBe('queued');
+    expect(['queued', 'running']).toContain(swept.status);
+    worker = await startWorker();
+    const end = await waitUntil(() => getStudy(id), finished, 30_000);
+    expect(end.status).toBe('failed');
+    expect(end.cells.find((c) => c.id === alive!.id)!.status).toBe('done');
   });
 });
