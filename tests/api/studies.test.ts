@@ -199,6 +199,27 @@ describe('a tiny study from POST to exports', () => {
   });
 });
 
+describe('studies on the other regions the form offers', () => {
+  it('computes a 4D diamond (concentric, ℓ/L⁴ of the volume), a cylinder diamond and a slab (by tips)', async () => {
+    const ids = await Promise.all([
+      postStudy(tinyStudy({ title: '4D', region: { kind: 'diamond4d', properTime: 2 }, counts: [150], subregions: { kind: 'concentric', fractions: [0.7] } })),
+      postStudy(tinyStudy({ title: 'cylinder', region: { kind: 'cylinder2d', properTime: 2, circumference: 1.5 }, counts: [120], subregions: { kind: 'tips', diamonds: [{ past: { t: -0.5, x: 0.2 }, future: { t: 0.5, x: 0.2 } }] } })),
+      postStudy(tinyStudy({ title: 'slab', region: { kind: 'slab2d', tMin: 0, tMax: 1, xMin: 0, xMax: 2 }, counts: [120], subregions: { kind: 'tips', diamonds: [{ past: { t: 0, x: 1 }, future: { t: 1, x: 1 } }] } })),
+    ]);
+    const [fourD, cylinder, slab] = await Promise.all(ids.map((id) => waitUntil(() => getStudy(id), finished, 60_000)));
+    for (const study of [fourD, cylinder, slab]) {
+      expect(study!.status).toBe('done');
+      expect(study!.aggregates.every((a) => a.seeds === 2 && Number.isFinite(a.meanS))).toBe(true);
+    }
+    // a concentric 4D diamond of ℓ/L = f holds f⁴ of the volume, πτ⁴/24 scaling (physics notes §1)
+    for (const a of fourD!.aggregates) expect(a.meanN / a.N).toBeGreaterThan(0.5 * 0.7 ** 4);
+    for (const a of fourD!.aggregates) expect(a.meanN / a.N).toBeLessThan(1.6 * 0.7 ** 4);
+    // the slab's sub-diamond (t from 0 to 1 at x = 1) holds half the slab's area of 2: a quarter of N
+    for (const a of slab!.aggregates) expect(a.meanN / a.N).toBeGreaterThan(0.15);
+    for (const a of slab!.aggregates) expect(a.meanN / a.N).toBeLessThan(0.35);
+  }, 120_000);
+});
+
 describe('cancelling and restarting', () => {
   it('cancels a study: queued cells never run, the running one stops, cancel again is 409', async () => {
     const id = await postStudy(tinyStudy({ title: 'to cancel', counts: [200], seeds: ['c1', 'c2', 'c3', 'c4', 'c5', 'c6'] }));

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { createRunRequestSchema } from '@shared/runs';
 import { createStudyRequestSchema } from '@shared/studies';
 import { defaultRunForm, parseElementList, runRequestFromForm, type PickedCausalSet, type RunFormValues } from '../../src/features/runs/lib/runForm';
-import { defaultStudyForm, formFieldOf, parseElementLists, studyRequestFrom } from '../../src/features/studies/lib/studyForm';
+import { defaultStudyForm, defaultTips, formFieldOf, parseElementLists, studyDimension, studyRequestFrom } from '../../src/features/studies/lib/studyForm';
 
 /** The run and study forms with an imported causal set in place of a sprinkling. */
 const setId = '0b6f9a52-3c1d-4e8f-9a7b-1c2d3e4f5a6b';
@@ -86,5 +86,30 @@ describe('the study form on imported causal sets', () => {
 
   it('sends source "sprinkled" for the sprinkled form', () => {
     expect(studyRequestFrom(defaultStudyForm).source).toBe('sprinkled');
+  });
+});
+
+describe('the study form on the other sprinkled regions', () => {
+  it('sends a 4D diamond with 4D tips, a cylinder with its circumference and a slab by its ranges', () => {
+    const fourD = studyRequestFrom({ ...defaultStudyForm, regionKind: 'diamond4d', subregionKind: 'tips', tips: '-0.4,0,0,0 0.4,0.1,0,0' });
+    expect(fourD).toMatchObject({ region: { kind: 'diamond4d', properTime: 2 }, subregions: { kind: 'tips', diamonds: [{ past: { t: -0.4, x: 0, y: 0, z: 0 }, future: { t: 0.4, x: 0.1, y: 0, z: 0 } }] } });
+    expect(createStudyRequestSchema.safeParse(fourD).success).toBe(true);
+    const cylinder = studyRequestFrom({ ...defaultStudyForm, regionKind: 'cylinder2d', circumference: '3' });
+    expect(cylinder).toMatchObject({ region: { kind: 'cylinder2d', properTime: 2, circumference: 3 } });
+    expect(createStudyRequestSchema.safeParse(cylinder).success).toBe(true);
+    const slab = studyRequestFrom({ ...defaultStudyForm, regionKind: 'slab2d', subregionKind: 'tips', tMin: '0', tMax: '1', xMin: '0', xMax: '2', tips: '0,1 1,1' });
+    expect(slab).toMatchObject({ region: { kind: 'slab2d', tMin: 0, tMax: 1, xMin: 0, xMax: 2 } });
+    expect(createStudyRequestSchema.safeParse(slab).success).toBe(true);
+  });
+
+  it('puts region messages beside the region fields', () => {
+    const badSlab = createStudyRequestSchema.safeParse(studyRequestFrom({ ...defaultStudyForm, regionKind: 'slab2d', subregionKind: 'tips', tMin: '1', tMax: '0' }));
+    expect(badSlab.success).toBe(false);
+    const fields = badSlab.error!.issues.map((i) => formFieldOf(i.path.join('.')));
+    expect(fields).toContain('properTime');
+    expect(formFieldOf('region.circumference')).toBe('circumference');
+    expect(formFieldOf('region.tMax')).toBe('tMin');
+    expect(studyDimension({ regionKind: 'diamond4d' })).toBe(4);
+    expect(defaultTips[4].split(' ')[0]!.split(',')).toHaveLength(4);
   });
 });

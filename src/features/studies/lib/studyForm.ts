@@ -1,4 +1,18 @@
 import type { CreateStudyRequestInput } from '@shared/studies';
+import type { RegionSpec } from '@shared/vacuum';
+
+/** Regions a sprinkled study can use; concentric sub-diamonds need one of the diamonds. */
+export type StudyRegionKind = 'diamond2d' | 'diamond4d' | 'cylinder2d' | 'slab2d';
+
+export const studyRegionLabels: Record<StudyRegionKind, string> = {
+  diamond2d: '2D causal diamond',
+  diamond4d: '4D causal diamond',
+  cylinder2d: 'Diamond on a cylinder',
+  slab2d: '2D slab',
+};
+
+/** The sub-diamond tips the form starts from, per dimension. */
+export const defaultTips = { 2: '-0.5,0 0.5,0', 4: '-0.5,0,0,0 0.5,0,0,0' } as const;
 
 /** What the study form edits, as text where people type lists. */
 export interface StudyFormValues {
@@ -7,7 +21,15 @@ export interface StudyFormValues {
   source: 'sprinkled' | 'imported';
   /** the picked imported causal sets, in the order picked */
   causalSetIds: string[];
+  regionKind: StudyRegionKind;
   properTime: string;
+  /** cylinder only: the period of x */
+  circumference: string;
+  /** slab only: t ∈ [tMin, tMax], x ∈ [xMin, xMax] */
+  tMin: string;
+  tMax: string;
+  xMin: string;
+  xMax: string;
   process: 'fixed' | 'poisson';
   prng: 'arc4' | 'alea' | 'xor4096';
   counts: string;
@@ -28,7 +50,13 @@ export const defaultStudyForm: StudyFormValues = {
   title: '',
   source: 'sprinkled',
   causalSetIds: [],
+  regionKind: 'diamond2d',
   properTime: '2',
+  circumference: '4',
+  tMin: '-1',
+  tMax: '1',
+  xMin: '-1',
+  xMax: '1',
   process: 'fixed',
   prng: 'arc4',
   counts: '200, 400, 800',
@@ -37,7 +65,7 @@ export const defaultStudyForm: StudyFormValues = {
   subregionKind: 'concentric',
   fractions: '0.4, 0.5, 0.6',
   elementLists: '',
-  tips: '-0.5,0 0.5,0',
+  tips: defaultTips[2],
   untruncated: true,
   doubleTruncated: true,
   mass: '0',
@@ -64,9 +92,11 @@ function parseTips(text: string) {
     .filter((line) => line !== '')
     .map((line) => {
       const [past, future] = line.split(/\s+/);
+      // "t,x" in 2D, "t,x,y,z" in 4D; the server checks the count against the region
       const tip = (s: string | undefined) => {
-        const [t, x] = (s ?? '').split(',').map((v) => (v.trim() === '' ? Number.NaN : Number(v)));
-        return { t: t ?? Number.NaN, x: x ?? Number.NaN };
+        const [t, x, y, z] = (s ?? '').split(',').map((v) => (v.trim() === '' ? Number.NaN : Number(v)));
+        const plane = { t: t ?? Number.NaN, x: x ?? Number.NaN };
+        return y === undefined && z === undefined ? plane : { ...plane, y: y ?? Number.NaN, z: z ?? Number.NaN };
       };
       return { past: tip(past), future: tip(future) };
     });
@@ -87,6 +117,23 @@ function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subre
   return { kind: 'tips', diamonds: parseTips(values.tips) };
 }
 
+/** The dimension of the region the form describes. */
+export function studyDimension(values: Pick<StudyFormValues, 'regionKind'>): 2 | 4 {
+  return values.regionKind === 'diamond4d' ? 4 : 2;
+}
+
+function regionFrom(values: StudyFormValues): RegionSpec {
+  switch (values.regionKind) {
+    case 'diamond2d':
+    case 'diamond4d':
+      return { kind: values.regionKind, properTime: Number(values.properTime) };
+    case 'cylinder2d':
+      return { kind: 'cylinder2d', properTime: Number(values.properTime), circumference: Number(values.circumference) };
+    case 'slab2d':
+      return { kind: 'slab2d', tMin: Number(values.tMin), tMax: Number(values.tMax), xMin: Number(values.xMin), xMax: Number(values.xMax) };
+  }
+}
+
 /** The POST body for the form's values (validated afterwards with the shared schema). */
 export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInput {
   const rules: CreateStudyRequestInput['rules'] = [];
@@ -99,7 +146,7 @@ export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInp
   return {
     source: 'sprinkled',
     ...title,
-    region: { kind: 'diamond2d', properTime: Number(values.properTime) },
+    region: regionFrom(values),
     process: values.process,
     prng: values.prng,
     counts: parseNumberList(values.counts),
@@ -120,6 +167,8 @@ export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('subregions.diamonds')) return 'tips';
   if (path.startsWith('subregions')) return 'subregionKind';
   if (path.startsWith('rules')) return 'untruncated';
+  if (path.startsWith('region.circumference')) return 'circumference';
+  if (path.startsWith('region.t') || path.startsWith('region.x')) return 'tMin';
   if (path.startsWith('region')) return 'properTime';
   if (path.startsWith('mass')) return 'mass';
   if (path.startsWith('title')) return 'title';

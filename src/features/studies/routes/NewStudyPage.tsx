@@ -10,11 +10,24 @@ import { useCan } from '../../auth/api/me';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { Checkbox } from '../../runs/components/Checkbox';
 import { useCreateStudy } from '../api/studies';
-import { defaultStudyForm, formFieldOf, parseNumberList, studyRequestFrom, type StudyFormValues } from '../lib/studyForm';
+import {
+  defaultStudyForm,
+  defaultTips,
+  formFieldOf,
+  parseNumberList,
+  studyDimension,
+  studyRegionLabels,
+  studyRequestFrom,
+  type StudyFormValues,
+  type StudyRegionKind,
+} from '../lib/studyForm';
+
+const slabLabels = { tMin: 't min', tMax: 't max', xMin: 'x min', xMax: 'x max' } as const;
 
 /**
- * The study form: a grid of N × subregions × seeds × rules on a 2D causal diamond, or the same over
- * imported causal sets, each set standing for one (N, seed) sprinkling.
+ * The study form: a grid of N × subregions × seeds × rules on a sprinkled region (2D or 4D diamond,
+ * cylinder diamond or 2D slab), or the same over imported causal sets, each set standing for one
+ * (N, seed) sprinkling.
  */
 export function NewStudyPage() {
   const [values, setValues] = useState<StudyFormValues>(defaultStudyForm);
@@ -24,6 +37,14 @@ export function NewStudyPage() {
   const navigate = useNavigate();
   const canCompute = useCan('compute');
   const set = <K extends keyof StudyFormValues>(key: K, value: StudyFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));
+  // a slab has no diamond to share a centre with; untouched tips follow the region's dimension
+  const chooseRegion = (regionKind: StudyRegionKind) =>
+    setValues((v) => ({
+      ...v,
+      regionKind,
+      subregionKind: regionKind === 'slab2d' && v.subregionKind === 'concentric' ? 'tips' : v.subregionKind,
+      tips: v.tips === defaultTips[studyDimension(v)] ? defaultTips[studyDimension({ regionKind })] : v.tips,
+    }));
 
   const counts = parseNumberList(values.counts).filter(Number.isFinite);
   const seedCount = Math.max(0, Math.floor(Number(values.seedCount) || 0));
@@ -105,7 +126,29 @@ export function NewStudyPage() {
           ) : (
             <>
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
-            <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint="2D causal diamond, tips at t = ±L/2" />
+            <SelectField label="Region" name="regionKind" value={values.regionKind} onChange={(e) => chooseRegion(e.target.value as StudyRegionKind)}>
+              {(Object.keys(studyRegionLabels) as StudyRegionKind[]).map((kind) => (
+                <option key={kind} value={kind}>
+                  {studyRegionLabels[kind]}
+                </option>
+              ))}
+            </SelectField>
+            {values.regionKind === 'slab2d' ? (
+              <div className="grid grid-cols-2 gap-3 sm:col-span-2 sm:grid-cols-4">
+                {(['tMin', 'tMax', 'xMin', 'xMax'] as const).map((key) => (
+                  <TextField key={key} label={slabLabels[key]} name={key} inputMode="decimal" className="font-mono" value={values[key]} onChange={(e) => set(key, e.target.value)} error={key === 'tMin' ? (errors.tMin ?? errors.properTime) : undefined} />
+                ))}
+              </div>
+            ) : (
+              <>
+                <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint={`${studyRegionLabels[values.regionKind]}, tips at t = ±L/2`} />
+                {values.regionKind === 'cylinder2d' ? (
+                  <TextField label="Circumference" name="circumference" inputMode="decimal" value={values.circumference} onChange={(e) => set('circumference', e.target.value)} error={errors.circumference} hint="x is periodic with this period" />
+                ) : (
+                  <span aria-hidden="true" />
+                )}
+              </>
+            )}
             <SelectField label="Sprinkling" name="process" value={values.process} onChange={(e) => set('process', e.target.value as StudyFormValues['process'])}>
               <option value="fixed">fixed N</option>
               <option value="poisson">Poisson, mean N</option>
@@ -129,7 +172,7 @@ export function NewStudyPage() {
         <Section title="Subregions">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
-              <option value="concentric">concentric, by ℓ/L</option>
+              {!(values.source === 'sprinkled' && values.regionKind === 'slab2d') && <option value="concentric">concentric, by ℓ/L</option>}
               <option value="tips">by tips</option>
               {values.source === 'imported' && <option value="elements">element lists</option>}
             </SelectField>
@@ -150,7 +193,9 @@ export function NewStudyPage() {
             ) : (
               <div className="flex flex-col gap-1">
                 <label htmlFor="study-tips" className="text-xs tracking-wide text-ink-soft">
-                  Sub-diamonds, one per line: past tip t,x then future tip t,x
+                  {values.source === 'sprinkled' && studyDimension(values) === 4
+                    ? 'Sub-diamonds, one per line: past tip t,x,y,z then future tip t,x,y,z'
+                    : 'Sub-diamonds, one per line: past tip t,x then future tip t,x'}
                 </label>
                 <textarea id="study-tips" name="tips" rows={3} value={values.tips} onChange={(e) => set('tips', e.target.value)} aria-invalid={Boolean(errors.tips)} className="border-0 border-b border-rule bg-transparent font-mono text-sm focus:border-accent focus:outline-none" />
                 {errors.tips && <p className="text-xs text-danger" role="alert">{errors.tips}</p>}
