@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { gunzipSync, gzipSync } from 'node:zlib';
+import { gunzipSync } from 'node:zlib';
 import type { DataSource, EntityManager } from 'typeorm';
 import {
   CAUSAL_SET_FILE_LIMIT_BYTES,
@@ -10,22 +10,12 @@ import {
   type CausalSetSummary,
 } from '@shared/causalSets';
 import type { RegionSpec } from '@shared/vacuum';
-import {
-  coordinatesOrder,
-  orderSummary,
-  packPoints,
-  packRelation,
-  parseCoordinatesCsv,
-  parseRelationList,
-  unpackPoints,
-  unpackRelation,
-} from '../../causalSets/parse';
+import { unpackPoints, unpackRelation } from '../../causalSets/parse';
+import { importValuesOffThread } from '../../causalSets/importFile';
 import { encodeFloat64 } from '../../db/arrays';
-import type { CausalSetRow } from '../../db/causal-set-entities';
 import * as causalSets from '../../db/repositories/causal-sets';
 import type { UserRow } from '../../db/entities';
 import { DENSE_SIZE_LIMIT } from '../../engine/index';
-import { makeRegion } from '../../engine/regions';
 import type { TeamContext } from '../context';
 import { badRequest, notFound } from '../errors';
 
@@ -146,39 +136,13 @@ export function createCausalSetService(deps: { dataSource: DataSource; maxElemen
 
     /**
      * Validates the metadata and the file completely before anything is written: a CausalSetFileError
-     * (row/column messages) or a ZodError leaves the database untouched.
+     * (row/column messages) or a ZodError leaves the database untouched. Files of 1 MB and more are
+     * parsed in a worker_thread, so the API keeps answering meanwhile.
      */
     async importFile(team: TeamContext, uploader: UserRow, fields: Record<string, unknown>, file: UploadedFile | undefined): Promise<{ id: string }> {
       const metadata = causalSetMetadataSchema.parse(metadataFromFormFields(fields));
       if (!file) throw badRequest('file_missing', 'Attach the file as the multipart field "file".');
-      let values: Omit<CausalSetRow, 'id' | 'createdAt' | 'teamId' | 'createdBy' | 'name' | 'fileName' | 'fileBytes' | 'checksum' | 'original'>;
-      if (metadata.kind === 'coordinates') {
-        const parsed = parseCoordinatesCsv(file.bytes, { region: metadata.region, dimension: metadata.dimension, limit: sizeLimit });
-        const summary = orderSummary(coordinatesOrder(parsed.points, parsed.dimension, metadata.region));
-        const volume = metadata.region ? makeRegion(metadata.region).volume : null;
-        values = {
-          kind: 'coordinates',
-          dimension: parsed.dimension,
-          n: parsed.n,
-          region: metadata.region ?? null,
-          density: metadata.density ?? (volume ? parsed.n / volume : null),
-          volume,
-          stats: summary,
-          elements: gzipSync(packPoints(parsed.points)),
-        };
-      } else {
-        const parsed = parseRelationList(file.bytes, { count: metadata.count!, limit: sizeLimit });
-        values = {
-          kind: 'relations',
-          dimension: metadata.dimension!,
-          n: parsed.n,
-          region: null,
-          density: metadata.density ?? null,
-          volume: null,
-          stats: orderSummary(parsed.causal),
-          elements: gzipSync(packRelation(parsed.causal)),
-        };
-      }
+      const values = await importValuesOffThread(metadata, file.bytes, sizeLimit);
       const row = await causalSets.insertCausalSet(m, {
         ...values,
         teamId: team.id,
@@ -187,7 +151,6 @@ export function createCausalSetService(deps: { dataSource: DataSource; maxElemen
         fileName: cleanFileName(file.originalName),
         fileBytes: file.bytes.length,
         checksum: createHash('sha256').update(file.bytes).digest('hex'),
-        original: gzipSync(file.bytes),
       });
       return { id: row.id };
     },
