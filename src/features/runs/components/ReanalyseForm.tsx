@@ -3,13 +3,14 @@ import { useNavigate } from 'react-router';
 import type { RunDetail } from '@shared/runs';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
-import { FormError, SelectField, TextField } from '../../../ui/Field';
+import { FormError, TextField } from '../../../ui/Field';
 import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
 import { useReanalyseRun } from '../api/runs';
 import { useEngineLimits } from '../api/limits';
 import { denseLimitN, initialReanalyseValues, reanalyseEngineNote, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/runForm';
 import { showRunRequestError } from '../lib/showRequestError';
+import { EngineFields } from './EngineFields';
 import { SubregionFields } from './SubregionFields';
 
 export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2 | 4 }) {
@@ -71,22 +72,13 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
           error={errors.fieldErrors.title}
         />
       </div>
-      <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
-        <SelectField
-          label="Engine"
-          name="reanalyseEngine"
-          value={values.engine}
-          onChange={(e) => set('engine', e.target.value as ReanalyseFormValues['engine'])}
-          error={errors.fieldErrors.engine}
-        >
-          <option value="auto">Auto (by the rule)</option>
-          <option value="dense">Dense (whole spectrum)</option>
-          <option value="structured">Structured (modes above the cut)</option>
-        </SelectField>
-        <p className="text-sm text-ink-soft sm:col-span-2 sm:pt-7" aria-live="polite" data-testid="reanalyse-engine-note">
-          {reanalyseEngineNote(values, reanalysed, denseMaxN)}
-        </p>
-      </div>
+      <EngineFields
+        name="reanalyseEngine"
+        value={values.engine}
+        onChange={(engine) => set('engine', engine)}
+        error={errors.fieldErrors.engine}
+        note={reanalyseEngineNote(values, reanalysed, denseMaxN)}
+      />
       <SubregionFields
         dimension={dimension}
         enabled={values.withSubregion}

@@ -13,6 +13,7 @@ import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFi
 import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { useEngineLimits } from '../api/limits';
 import { useCreateRun } from '../api/runs';
+import { EngineFields } from '../components/EngineFields';
 import { SubregionFields } from '../components/SubregionFields';
 import {
   defaultRunForm,
@@ -320,22 +321,13 @@ function NewRunForm() {
         </FormSection>
 
         <FormSection title="Engine" note={engineLimits?.rule ?? 'Auto follows the documented rule; forcing one engine is for comparisons.'}>
-          <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
-            <SelectField
-              label="Engine"
-              name="engine"
-              value={values.engine}
-              onChange={(e) => set('engine', e.target.value as RunFormValues['engine'])}
-              error={fe.engine}
-            >
-              <option value="auto">Auto (by the rule)</option>
-              <option value="dense">Dense (whole spectrum)</option>
-              <option value="structured">Structured (modes above the cut)</option>
-            </SelectField>
-            <p className="text-sm text-ink-soft sm:col-span-2 sm:pt-7" aria-live="polite">
-              {engineNote(values, limits?.maxN ?? denseLimitN, picked)}
-            </p>
-          </div>
+          <EngineFields
+            name="engine"
+            value={values.engine}
+            onChange={(engine) => set('engine', engine)}
+            error={fe.engine}
+            note={engineNote(values, limits?.maxN ?? denseLimitN, picked)}
+          />
         </FormSection>
 
         <FormSection title="Subregion" note="Optional.">
