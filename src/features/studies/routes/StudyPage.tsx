@@ -7,6 +7,7 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { StatusLabel } from '../../runs/components/StatusLabel';
+import { regionLabels } from '../../runs/lib/runForm';
 import { downloadStudyExport, isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
 import { StudyPlots } from '../components/StudyPlots';
@@ -93,6 +94,7 @@ export function StudyPage() {
                 </>
               )}
               {s.subregions.length} subregion{s.subregions.length === 1 ? '' : 's'} × {s.rules.length} rule{s.rules.length === 1 ? '' : 's'}
+              {s.regionKind !== 'imported' && <> · {regionLabels[s.regionKind] ?? s.regionKind}</>}
             </span>
             <span>
               {s.author.name}, {formatDateTime(s.createdAt)}
