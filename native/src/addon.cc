@@ -128,13 +128,14 @@ constexpr int kTwoStageValuesFrom = 3500;
 // speed (n = 2000 on 2 cores: 0.40 s against dormtr's 0.57–0.67 s, the same result to rounding).
 constexpr int kBackTransformBlock = 128;
 
-// Eigenvalues only: dsyevd (JOBZ = 'N') or dsyevd_2stage by size; `a` is overwritten.
-void EigenvaluesOnly(Napi::Env env, int n, double* a, double* values) {
-  const char jobz = 'N';
+using SyevdDriver = decltype(&dsyevd_);
+
+// One dsyevd-family call with its workspace query: jobz 'N' (values) or 'V' (values and vectors,
+// which overwrite `a`); `a` is overwritten either way.
+void RunSyevd(Napi::Env env, SyevdDriver driver, char jobz, int n, double* a, double* values) {
   const char uplo = 'L';
   int lda = std::max(1, n), info = 0, lwork = -1, liwork = -1, iwork_query = 0;
   double work_query = 0;
-  auto driver = n >= kTwoStageValuesFrom ? dsyevd_2stage_ : dsyevd_;
   driver(&jobz, &uplo, &n, a, &lda, values, &work_query, &lwork, &iwork_query, &liwork, &info, 1, 1);
   CheckInfo(env, "dsyevd (workspace query)", info);
   lwork = std::max(1, static_cast<int>(work_query));
@@ -145,20 +146,14 @@ void EigenvaluesOnly(Napi::Env env, int n, double* a, double* values) {
   CheckInfo(env, "dsyevd", info);
 }
 
+// Eigenvalues only: dsyevd (JOBZ = 'N') or dsyevd_2stage by size; `a` is overwritten.
+void EigenvaluesOnly(Napi::Env env, int n, double* a, double* values) {
+  RunSyevd(env, n >= kTwoStageValuesFrom ? dsyevd_2stage_ : dsyevd_, 'N', n, a, values);
+}
+
 // Whole spectrum with vectors by LAPACK's own dsyevd (kept for comparison: algorithm "dsyevd").
 void EigenpairsByDsyevd(Napi::Env env, int n, double* a_then_vectors, double* values) {
-  const char jobz = 'V';
-  const char uplo = 'L';
-  int lda = std::max(1, n), info = 0, lwork = -1, liwork = -1, iwork_query = 0;
-  double work_query = 0;
-  dsyevd_(&jobz, &uplo, &n, a_then_vectors, &lda, values, &work_query, &lwork, &iwork_query, &liwork, &info, 1, 1);
-  CheckInfo(env, "dsyevd (workspace query)", info);
-  lwork = std::max(1, static_cast<int>(work_query));
-  liwork = std::max(1, iwork_query);
-  std::vector<double> work(lwork);
-  std::vector<int> iwork(liwork);
-  dsyevd_(&jobz, &uplo, &n, a_then_vectors, &lda, values, work.data(), &lwork, iwork.data(), &liwork, &info, 1, 1);
-  CheckInfo(env, "dsyevd", info);
+  RunSyevd(env, dsyevd_, 'V', n, a_then_vectors, values);
 }
 
 // Whole spectrum with vectors, the steps of dsyevd with a wider back-transformation: Householder
