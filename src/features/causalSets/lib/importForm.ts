@@ -47,7 +47,11 @@ export const importRegionLabels: Record<RegionKind, string> = {
   diamond4d: '4D causal diamond, tips at (±τ/2, 0⃗)',
 };
 
-function regionFromForm(v: ImportFormValues): unknown {
+/** The region fields of a form as text, whichever region kind is picked. */
+export type RegionFieldValues = Pick<ImportFormValues, 'regionKind' | 'properTime' | 'circumference' | 'tMin' | 'tMax' | 'xMin' | 'xMax'>;
+
+/** The region a form's fields describe (blank or unreadable numbers stay undefined for the schema to name). */
+export function regionFromForm(v: RegionFieldValues): unknown {
   switch (v.regionKind) {
     case 'diamond2d':
     case 'diamond4d':

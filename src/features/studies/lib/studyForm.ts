@@ -1,5 +1,6 @@
 import type { CreateStudyRequestInput } from '@shared/studies';
 import type { RegionSpec } from '@shared/vacuum';
+import { regionFromForm } from '../../causalSets/lib/importForm';
 
 /** Regions a sprinkled study can use; concentric sub-diamonds need one of the diamonds. */
 export type StudyRegionKind = 'diamond2d' | 'diamond4d' | 'cylinder2d' | 'slab2d';
@@ -122,18 +123,6 @@ export function studyDimension(values: Pick<StudyFormValues, 'regionKind'>): 2 |
   return values.regionKind === 'diamond4d' ? 4 : 2;
 }
 
-function regionFrom(values: StudyFormValues): RegionSpec {
-  switch (values.regionKind) {
-    case 'diamond2d':
-    case 'diamond4d':
-      return { kind: values.regionKind, properTime: Number(values.properTime) };
-    case 'cylinder2d':
-      return { kind: 'cylinder2d', properTime: Number(values.properTime), circumference: Number(values.circumference) };
-    case 'slab2d':
-      return { kind: 'slab2d', tMin: Number(values.tMin), tMax: Number(values.tMax), xMin: Number(values.xMin), xMax: Number(values.xMax) };
-  }
-}
-
 /** The POST body for the form's values (validated afterwards with the shared schema). */
 export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInput {
   const rules: CreateStudyRequestInput['rules'] = [];
@@ -146,7 +135,7 @@ export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInp
   return {
     source: 'sprinkled',
     ...title,
-    region: regionFrom(values),
+    region: regionFromForm(values) as RegionSpec,
     process: values.process,
     prng: values.prng,
     counts: parseNumberList(values.counts),
