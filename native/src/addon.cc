@@ -102,6 +102,19 @@ void CheckInfo(Napi::Env env, const char* routine, int code) {
   throw Napi::Error::New(env, message);
 }
 
+// LAPACK does not detect NaN or infinity in the triangle it reads and would return meaningless results.
+void CheckLowerTriangleFinite(Napi::Env env, int n, const double* a) {
+  for (int j = 0; j < n; ++j) {
+    const double* col = a + static_cast<size_t>(j) * n;
+    for (int i = j; i < n; ++i) {
+      if (!std::isfinite(col[i])) {
+        throw Napi::RangeError::New(env, "matrix entry (" + std::to_string(i) + ", " + std::to_string(j) +
+                                             ") is not finite");
+      }
+    }
+  }
+}
+
 // Upper bound on every eigenvalue of the symmetric matrix held in the lower triangle (Gershgorin).
 double GershgorinUpperBound(int n, const double* a) {
   std::vector<double> radius(n, 0.0);
@@ -284,16 +297,7 @@ Napi::Value SymmetricEigen(const Napi::CallbackInfo& info) {
   int n = DimensionArg(info, 0, "n");
   const double* a = MatrixArg(info, 1, "a", static_cast<double>(n) * n);
   bool wantVectors = BoolArg(info, 2);
-  // LAPACK does not detect NaN or infinity and would return meaningless pairs.
-  for (int j = 0; j < n; ++j) {
-    const double* col = a + static_cast<size_t>(j) * n;
-    for (int i = j; i < n; ++i) {
-      if (!std::isfinite(col[i])) {
-        throw Napi::RangeError::New(env, "matrix entry (" + std::to_string(i) + ", " + std::to_string(j) +
-                                             ") is not finite");
-      }
-    }
-  }
+  CheckLowerTriangleFinite(env, n, a);
   bool subset = false;
   double above = -std::numeric_limits<double>::infinity();
   if (info.Length() > 3 && !info[3].IsUndefined() && !info[3].IsNull()) {
@@ -323,7 +327,7 @@ Napi::Value SymmetricEigen(const Napi::CallbackInfo& info) {
   }
   if (algorithm == "dsyevd" || algorithm == "tridiagonal") {
     if (subset) throw Napi::RangeError::New(env, algorithm + " computes the whole spectrum; use dsyevr for a range");
-    return EigenAll(env, n, a, wantVectors, algorithm == "dsyevd", algorithm == "dsyevd" ? nullptr : writable);
+    return EigenAll(env, n, a, wantVectors, algorithm == "dsyevd", writable);
   }
   if (algorithm == "dsyevr") {
     if (!subset) throw Napi::RangeError::New(env, "dsyevr is bound here only for the range above a cut");
@@ -361,18 +365,14 @@ Napi::Value Cholesky(const Napi::CallbackInfo& info) {
   Napi::Env env = info.Env();
   int n = DimensionArg(info, 0, "n");
   const double* a = MatrixArg(info, 1, "a", static_cast<double>(n) * n);
+  CheckLowerTriangleFinite(env, n, a);
   size_t nn = static_cast<size_t>(n) * n;
   auto l = Napi::Float64Array::New(env, nn);
   double* ld = l.Data();
   for (int j = 0; j < n; ++j) {
     size_t col = static_cast<size_t>(j) * n;
     std::fill(ld + col, ld + col + j, 0.0);
-    for (int i = j; i < n; ++i) {
-      if (!std::isfinite(a[col + i])) {
-        throw Napi::RangeError::New(env, "matrix entry (" + std::to_string(i) + ", " + std::to_string(j) + ") is not finite");
-      }
-      ld[col + i] = a[col + i];
-    }
+    std::copy(a + col + j, a + col + n, ld + col + j);
   }
   if (n == 0) return l;
   const char uplo = 'L';
@@ -398,14 +398,12 @@ bool SignPatternGram(int rows, int cols, const double* a, double* lower) {
   double h = 0;
   for (size_t k = 0; k < count && h == 0; ++k) h = std::fabs(a[k]);
   if (h == 0 || !std::isfinite(h)) return false;
-  std::vector<float> signs(count);
+  // scan before allocating: a general matrix leaves at its first other entry, having cost nothing
   for (size_t k = 0; k < count; ++k) {
-    double v = a[k];
-    if (v == h) signs[k] = 1.0f;
-    else if (v == -h) signs[k] = -1.0f;
-    else if (v == 0) signs[k] = 0.0f;
-    else return false;
+    if (a[k] != 0 && a[k] != h && a[k] != -h) return false;
   }
+  std::vector<float> signs(count);
+  for (size_t k = 0; k < count; ++k) signs[k] = a[k] == 0 ? 0.0f : (a[k] > 0 ? 1.0f : -1.0f);
   size_t nc = static_cast<size_t>(cols);
   std::vector<float> product(nc * nc);
   cblas_ssyrk(CblasColMajor, CblasLower, CblasTrans, cols, rows, 1.0f, signs.data(), rows, 0.0f, product.data(), cols);
