@@ -140,17 +140,6 @@ export function restrictedWightman(
   return { real, imaginary };
 }
 
-/** ‖Δ‖_F, computed once per Δ however many states and checks use it (Δ is never written once built). */
-const deltaNorms = new WeakMap<Float64Array, number>();
-function deltaNorm(delta: DenseMatrix): number {
-  let norm = deltaNorms.get(delta.data);
-  if (norm === undefined) {
-    norm = frobenius(delta.data);
-    deltaNorms.set(delta.data, norm);
-  }
-  return norm;
-}
-
 function frobenius(data: Float64Array): number {
   let s = 0;
   for (let k = 0; k < data.length; k++) s += data[k] * data[k];
@@ -197,6 +186,11 @@ function antisymmetryDefectSquared(m: DenseMatrix): number {
     }
   }
   return sum;
+}
+
+/** ‖W − W†‖_F / ‖W‖_F of an untruncated W = ½(B s Bᵀ + iΔ): Re W is symmetric by construction, so W − W† = i·½(Δ + Δᵀ). */
+function completeHermiticityError(delta: DenseMatrix, normW: number): number {
+  return normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefectSquared(delta))) / normW : 0;
 }
 
 /** n × count matrix of ±1 from a fixed-seed xorshift generator: the same probes on every run. */
@@ -324,16 +318,14 @@ export function sjDiagnostics(
   let hermiticityError: number;
   let commutatorError: number;
   let normW: number;
-  const normDelta = deltaNorm(state.delta);
+  const normDelta = frobenius(state.delta.data);
   if (state.complete) {
-    // W = ½(B s Bᵀ + iΔ): Re W is symmetric by construction, so W − W† = i·½(Δ + Δᵀ)
     let realNorm2 = 0;
     for (let j = 0; j < r; j++) {
       for (let i = 0; i < r; i++) realNorm2 += s[i] * s[j] * gram.data[i + j * r] ** 2;
     }
-    const antisymmetryDefect = antisymmetryDefectSquared(state.delta);
     normW = 0.5 * Math.sqrt(realNorm2 + normDelta ** 2);
-    hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefect)) / normW : 0;
+    hermiticityError = completeHermiticityError(state.delta, normW);
     // every mode kept: P = I, and W − W̄ = 2i·Im W = iΔ = iΔ_c entry by entry (Im W is ½Δ, and the
     // factors ½ and 2 are exact in binary), so the defect is exactly zero; what the computed B lacks
     // of B Bᵀ = I is basisOrthonormalityError
@@ -434,9 +426,9 @@ function probedDiagnostics(state: SjState, positive: Float64Array, backend: Line
     for (let i = 0; i < n; i++) norm2 += state.basis.data[i + c * n] ** 2;
     trace += 0.5 * s[c] * norm2;
   }
-  const normDelta = deltaNorm(state.delta);
+  const normDelta = frobenius(state.delta.data);
   const normW = 0.5 * Math.sqrt(frobenius(s) ** 2 + normDelta ** 2);
-  const hermiticityError = normW > 0 ? (0.5 * Math.sqrt(antisymmetryDefectSquared(state.delta))) / normW : 0;
+  const hermiticityError = completeHermiticityError(state.delta, normW);
   const probed = probedCompleteChecks(state, backend, probes);
   return {
     hermiticityError,
