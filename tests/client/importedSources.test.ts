@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { createRunRequestSchema } from '@shared/runs';
 import { createStudyRequestSchema } from '@shared/studies';
 import { defaultRunForm, parseElementList, runRequestFromForm, type PickedCausalSet, type RunFormValues } from '../../src/features/runs/lib/runForm';
-import { defaultStudyForm, defaultTips, formFieldOf, parseElementLists, studyDimension, studyRequestFrom } from '../../src/features/studies/lib/studyForm';
+import { regionDimension } from '../../src/features/runs/lib/runForm';
+import { defaultStudyForm, defaultTips, formFieldOf, parseElementLists, studyRequestFrom } from '../../src/features/studies/lib/studyForm';
 
 /** The run and study forms with an imported causal set in place of a sprinkling. */
 const setId = '0b6f9a52-3c1d-4e8f-9a7b-1c2d3e4f5a6b';
@@ -109,7 +110,7 @@ describe('the study form on the other sprinkled regions', () => {
     expect(fields).toContain('properTime');
     expect(formFieldOf('region.circumference')).toBe('circumference');
     expect(formFieldOf('region.tMax')).toBe('tMin');
-    expect(studyDimension({ regionKind: 'diamond4d' })).toBe(4);
+    expect(regionDimension('diamond4d')).toBe(4);
     expect(defaultTips[4].split(' ')[0]!.split(',')).toHaveLength(4);
   });
 });

@@ -386,15 +386,22 @@ export function sizeHint(v: RunFormValues, denseMaxN: number = denseLimitN): str
  */
 export function engineNote(v: RunFormValues, denseMaxN: number = denseLimitN, picked: PickedCausalSet | null = null): string {
   if (v.source === 'imported') {
-    if (picked?.kind === 'relations') return 'A relation list runs on the dense engine: it has no coordinates to sweep.';
+    if (picked?.kind === 'relations') return relationListEngineNote;
     return 'The server applies the same rule to the set’s own region and size; the run page says which engine ran.';
   }
   const N = Number(v.count);
   if (!Number.isInteger(N) || N < 2 || (v.process === 'poisson' && v.sizeBy === 'density')) {
     return `The engine follows from N: structured for 2D cuts from N = ${AUTO_STRUCTURED_FROM}, dense otherwise.`;
   }
+  return engineChoiceText({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: v.regionKind === 'cylinder2d' });
+}
+
+const relationListEngineNote = 'A relation list runs on the dense engine: it has no coordinates to sweep.';
+
+/** The engine the shared rule picks, in one sentence, or why it refuses (both run forms show this). */
+function engineChoiceText(input: Parameters<typeof chooseEngine>[0]): string {
   try {
-    const choice = chooseEngine({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: v.regionKind === 'cylinder2d' });
+    const choice = chooseEngine(input);
     if (choice.engine === 'dense') return `Dense engine (${choice.reason}); it computes the whole spectrum.`;
     if (choice.reason.includes('only the modes above the cut')) return `Structured engine (${choice.reason}).`;
     return `Structured engine (${choice.reason}): only the modes above the cut are computed.`;
@@ -456,17 +463,10 @@ export interface ReanalysedRun {
 
 /** The engine the rule picks for the re-analysis as typed, or why it cannot run; same rule as the server. */
 export function reanalyseEngineNote(v: ReanalyseFormValues, run: ReanalysedRun, denseMaxN: number = denseLimitN): string {
-  if (run.relationOnly && v.engine !== 'structured') return 'A relation list runs on the dense engine: it has no coordinates to sweep.';
+  if (run.relationOnly && v.engine !== 'structured') return relationListEngineNote;
   if (run.relationOnly) return 'The structured engine needs coordinates; a relation list runs on the dense engine only.';
-  try {
-    const truncation = { rule: v.truncation.kind } as TruncationRule;
-    const choice = chooseEngine({ N: run.N, dimension: run.dimension, truncation, requested: v.engine, denseMaxN, periodic: run.periodic });
-    if (choice.engine === 'dense') return `Dense engine (${choice.reason}); it computes the whole spectrum.`;
-    if (choice.reason.includes('only the modes above the cut')) return `Structured engine (${choice.reason}).`;
-    return `Structured engine (${choice.reason}): only the modes above the cut are computed.`;
-  } catch (error) {
-    return `${capitalise((error as Error).message)}.`;
-  }
+  const truncation = { rule: v.truncation.kind } as TruncationRule;
+  return engineChoiceText({ N: run.N, dimension: run.dimension, truncation, requested: v.engine, denseMaxN, periodic: run.periodic });
 }
 
 export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 4): Checked<ReanalyseRunRequest> {

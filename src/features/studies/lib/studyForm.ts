@@ -2,15 +2,9 @@ import type { CreateStudyRequestInput } from '@shared/studies';
 import type { RegionSpec } from '@shared/vacuum';
 import { regionFromForm } from '../../causalSets/lib/importForm';
 
-/** Regions a sprinkled study can use; concentric sub-diamonds need one of the diamonds. */
-export type StudyRegionKind = 'diamond2d' | 'diamond4d' | 'cylinder2d' | 'slab2d';
-
-export const studyRegionLabels: Record<StudyRegionKind, string> = {
-  diamond2d: '2D causal diamond',
-  diamond4d: '4D causal diamond',
-  cylinder2d: 'Diamond on a cylinder',
-  slab2d: '2D slab',
-};
+/** Regions a sprinkled study can use, in the order the form lists them; concentric sub-diamonds need a diamond. */
+export const studyRegionKinds = ['diamond2d', 'diamond4d', 'cylinder2d', 'slab2d'] as const;
+export type StudyRegionKind = (typeof studyRegionKinds)[number];
 
 /** The sub-diamond tips the form starts from, per dimension. */
 export const defaultTips = { 2: '-0.5,0 0.5,0', 4: '-0.5,0,0,0 0.5,0,0,0' } as const;
@@ -116,11 +110,6 @@ function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subre
   if (values.subregionKind === 'concentric') return { kind: 'concentric', fractions: parseNumberList(values.fractions) };
   if (values.subregionKind === 'elements') return { kind: 'elements', lists: parseElementLists(values.elementLists).map((indices) => ({ indices })) };
   return { kind: 'tips', diamonds: parseTips(values.tips) };
-}
-
-/** The dimension of the region the form describes. */
-export function studyDimension(values: Pick<StudyFormValues, 'regionKind'>): 2 | 4 {
-  return values.regionKind === 'diamond4d' ? 4 : 2;
 }
 
 /** The POST body for the form's values (validated afterwards with the shared schema). */

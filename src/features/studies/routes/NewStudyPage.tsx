@@ -9,14 +9,14 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { useCan } from '../../auth/api/me';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { Checkbox } from '../../runs/components/Checkbox';
+import { regionDimension, regionLabels } from '../../runs/lib/runForm';
 import { useCreateStudy } from '../api/studies';
 import {
   defaultStudyForm,
   defaultTips,
   formFieldOf,
   parseNumberList,
-  studyDimension,
-  studyRegionLabels,
+  studyRegionKinds,
   studyRequestFrom,
   type StudyFormValues,
   type StudyRegionKind,
@@ -43,7 +43,7 @@ export function NewStudyPage() {
       ...v,
       regionKind,
       subregionKind: regionKind === 'slab2d' && v.subregionKind === 'concentric' ? 'tips' : v.subregionKind,
-      tips: v.tips === defaultTips[studyDimension(v)] ? defaultTips[studyDimension({ regionKind })] : v.tips,
+      tips: v.tips === defaultTips[regionDimension(v.regionKind)] ? defaultTips[regionDimension(regionKind)] : v.tips,
     }));
 
   const counts = parseNumberList(values.counts).filter(Number.isFinite);
@@ -127,9 +127,9 @@ export function NewStudyPage() {
             <>
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
             <SelectField label="Region" name="regionKind" value={values.regionKind} onChange={(e) => chooseRegion(e.target.value as StudyRegionKind)}>
-              {(Object.keys(studyRegionLabels) as StudyRegionKind[]).map((kind) => (
+              {studyRegionKinds.map((kind) => (
                 <option key={kind} value={kind}>
-                  {studyRegionLabels[kind]}
+                  {regionLabels[kind]}
                 </option>
               ))}
             </SelectField>
@@ -141,7 +141,7 @@ export function NewStudyPage() {
               </div>
             ) : (
               <>
-                <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint={`${studyRegionLabels[values.regionKind]}, tips at t = ±L/2`} />
+                <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint={`${regionLabels[values.regionKind]}, tips at t = ±L/2`} />
                 {values.regionKind === 'cylinder2d' ? (
                   <TextField label="Circumference" name="circumference" inputMode="decimal" value={values.circumference} onChange={(e) => set('circumference', e.target.value)} error={errors.circumference} hint="x is periodic with this period" />
                 ) : (
@@ -193,7 +193,7 @@ export function NewStudyPage() {
             ) : (
               <div className="flex flex-col gap-1">
                 <label htmlFor="study-tips" className="text-xs tracking-wide text-ink-soft">
-                  {values.source === 'sprinkled' && studyDimension(values) === 4
+                  {values.source === 'sprinkled' && regionDimension(values.regionKind) === 4
                     ? 'Sub-diamonds, one per line: past tip t,x,y,z then future tip t,x,y,z'
                     : 'Sub-diamonds, one per line: past tip t,x then future tip t,x'}
                 </label>
