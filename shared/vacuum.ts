@@ -6,7 +6,7 @@ import { z } from 'zod';
  * everywhere. Conventions (units c = 1, coordinate order t, x[, y, z]) follow shared physics notes §1.
  */
 
-const finite = z.number().refine(Number.isFinite, { message: 'must be a finite number' });
+const finite = z.number({ message: 'must be a number' }).refine(Number.isFinite, { message: 'must be a finite number' });
 const positive = finite.refine((v) => v > 0, { message: 'must be positive' });
 
 export const event2dSchema = z.strictObject({ t: finite, x: finite });

@@ -109,6 +109,9 @@ describe('the study form on the other sprinkled regions', () => {
     const fields = badSlab.error!.issues.map((i) => formFieldOf(i.path.join('.')));
     expect(fields).toContain('properTime');
     expect(formFieldOf('region.circumference')).toBe('circumference');
+    // a blank number is named in plain words, not read as 0
+    const blank = createStudyRequestSchema.safeParse(studyRequestFrom({ ...defaultStudyForm, regionKind: 'cylinder2d', circumference: '' }));
+    expect(blank.success ? [] : blank.error.issues.map((i) => [formFieldOf(i.path.join('.')), i.message])).toEqual([['circumference', 'must be a number']]);
     expect(formFieldOf('region.tMax')).toBe('tMin');
     expect(regionDimension('diamond4d')).toBe(4);
     expect(defaultTips[4].split(' ')[0]!.split(',')).toHaveLength(4);
