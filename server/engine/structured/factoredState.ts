@@ -7,8 +7,9 @@ import type { SkewPairs } from './lanczos';
  * The truncated SJ state kept as N × k factors, never as an N × N matrix (physics notes §4).
  * With orthonormal pairs Δ a_i = σ_i b_i, Δ b_i = −σ_i a_i for the k kept σ_i > λ_c:
  *   |Δ|_c = Σ σ_i (a_i a_iᵀ + b_i b_iᵀ),  Δ_c = Σ σ_i (b_i a_iᵀ − a_i b_iᵀ),
- *   W_c = ½(|Δ|_c + iΔ_c) = Σ σ_i e_i e_i†  with e_i = (a_i − i b_i)/√2,
- * so iΔ e_i = σ_i e_i: the e_i are the positive-frequency modes (Sorkin 2011; Johnston 2009). Memory is
+ *   W_c = ½(|Δ|_c + iΔ_c) = Σ σ_i e_i e_i†  with e_i = (a_i + i b_i)/√2,
+ * so iΔ e_i = iσ_i b_i + σ_i a_i = σ_i e_i: the e_i are the positive-frequency modes (Sorkin 2011;
+ * Johnston 2009), while (a_i − i b_i)/√2 has eigenvalue −σ_i. Memory is
  * 2kN doubles, e.g. about 1 GB for N = 100 000 with the √N/(4π) cut.
  */
 export interface FactoredSjState {
@@ -97,8 +98,9 @@ export function toDenseSjState(state: FactoredSjState, delta: DenseMatrix): SjSt
  * - W − W̄ = iΔ_c holds by construction; what can fail is Δ_c = Δ on the kept span, so commutatorError is
  *   ‖Δ P − Δ_c‖_F bounded by √(Σ σ_i² (r_a,i² + r_b,i²)) from the residuals, relative to ‖Δ_c‖_F = √(2Σσ²)
  *   (the structured engine never forms Δ, so its Frobenius norm is not at hand).
- * - W W̄ = E S (E†Ē) S Eᵀ: with e_i = (a_i − i b_i)/√2, e_i†ē_j = ½(a_iᵀa_j − b_iᵀb_j + i(a_iᵀb_j + b_iᵀa_j)),
- *   zero for exact pairs; orthogonalityError = ‖S (E†Ē) S‖_F / ‖S‖_F².
+ * - W W̄ = E S (E†Ē) S Eᵀ: with e_i = (a_i + i b_i)/√2, e_i†ē_j = ½(a_iᵀa_j − b_iᵀb_j − i(a_iᵀb_j + b_iᵀa_j)),
+ *   zero for exact pairs; orthogonalityError = ‖S (E†Ē) S‖_F / ‖S‖_F² (only |e_i†ē_j|² enters it, so
+ *   the sign of the imaginary part does not matter there).
  * - tr W_c = ½ Σ σ_i (‖a_i‖² + ‖b_i‖²) against Σ σ_i, and ‖H − I‖_F.
  */
 export function factoredDiagnostics(state: FactoredSjState, relativeResiduals: Float64Array, backend: LinearAlgebraBackend = getBackend()): SjDiagnostics {
