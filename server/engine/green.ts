@@ -1,6 +1,6 @@
 import type { DenseMatrix, LinearAlgebraBackend } from './linalg/backend';
 import { denseMatrix, getBackend } from './linalg';
-import { BitRelation, linkMatrix, timeOrder } from './order';
+import { BitRelation, imageCount, linkMatrix, timeOrder } from './order';
 
 export interface GreenFunctionInput {
   points: ArrayLike<number>;
@@ -14,6 +14,11 @@ export interface GreenFunctionInput {
   backend?: LinearAlgebraBackend;
   /** an order of the elements that respects ≺, for sets without coordinates; default: sorted by t */
   linearExtension?: ArrayLike<number>;
+  /**
+   * period L of a cylinder x ~ x + L (2D, with the points `causal` was built from): K then counts the
+   * images through which y ≺ x instead of being ½ Cᵀ
+   */
+  periodX?: number;
 }
 
 /** Weight of a link in the 4D massless K = (√ρ / (2π√6)) Lᵀ (Johnston 2009, PRL 103 180401). */
@@ -21,17 +26,36 @@ export function fourDimensionalLinkWeight(density: number): number {
   return Math.sqrt(density) / (2 * Math.PI * Math.sqrt(6));
 }
 
-/** A massless K = w Rᵀ kept as its relation R and weight w, without the N × N matrix. */
+/**
+ * A massless K kept as its relation R, weight w and (on a cylinder) an integer multiplicity per pair,
+ * without the N × N matrix: K[j][i] = w · multiplicity(i, j) for every pair i R j, 0 elsewhere; without
+ * `multiplicity`, K = w Rᵀ.
+ */
 export interface WeightedRelation {
   relation: BitRelation;
   weight: number;
+  /** number of images through which i ≺ j (≥ 1 on every pair of the relation); absent: 1 everywhere */
+  multiplicity?: (i: number, j: number) => number;
 }
 
 /**
- * The massless retarded Green function as a weighted relation, K = w Rᵀ (Johnston 2008, CQG 25 202001;
- * Johnston 2009, PRL 103 180401): 2D R = C, w = ½; 4D R = L, w = √ρ / (2π√6).
+ * The massless retarded Green function as a weighted relation (Johnston 2008, CQG 25 202001; Johnston
+ * 2009, PRL 103 180401): 2D K = ½ Cᵀ, 4D K = (√ρ / (2π√6)) Lᵀ. On the cylinder x ~ x + L (2D) the method
+ * of images for the 2D wave equation gives K[x][y] = ½ · #{n ∈ ℤ : y + nL ≺ x}: the relation stays C and
+ * each pair carries its image count (`imageCount`), which exceeds 1 once a diamond's proper time
+ * passes L.
  */
 export function masslessGreenRelation(input: GreenFunctionInput): WeightedRelation {
+  if (input.periodX !== undefined) {
+    const period = input.periodX;
+    if (input.dimension !== 2) throw new RangeError('a periodic x (cylinder) is supported in 2D only');
+    if (!(period > 0 && Number.isFinite(period))) throw new RangeError('the period of x must be a positive finite number');
+    if (input.points.length !== 2 * input.causal.size) {
+      throw new RangeError(`the cylinder Green function needs the coordinates of all ${input.causal.size} elements, got ${input.points.length / 2}`);
+    }
+    const points = input.points;
+    return { relation: input.causal, weight: 0.5, multiplicity: (i, j) => imageCount(points, i, j, period) };
+  }
   if (input.dimension === 2) return { relation: input.causal, weight: 0.5 };
   if (!(input.density !== undefined && input.density > 0)) throw new RangeError('the 4D Green function needs the density ρ');
   return { relation: input.links ?? linkMatrix(input.causal), weight: fourDimensionalLinkWeight(input.density) };
@@ -39,15 +63,22 @@ export function masslessGreenRelation(input: GreenFunctionInput): WeightedRelati
 
 /**
  * The massless retarded Green function, K[x][y] ≠ 0 only for y ≺ x (Johnston 2008, CQG 25 202001;
- * Johnston 2009, PRL 103 180401): 2D K = ½ Cᵀ; 4D K = (√ρ / (2π√6)) Lᵀ. Column-major N × N.
+ * Johnston 2009, PRL 103 180401): 2D K = ½ Cᵀ; 4D K = (√ρ / (2π√6)) Lᵀ; on the cylinder
+ * K[x][y] = ½ · #{n : y + nL ≺ x} (method of images). Column-major N × N.
  */
 export function masslessRetardedGreen(input: GreenFunctionInput): DenseMatrix {
   const n = input.causal.size;
   const k = denseMatrix(n, n);
-  const { relation, weight } = masslessGreenRelation(input);
-  relation.forEach((i, j) => {
-    k.data[j + i * n] = weight;
-  });
+  const { relation, weight, multiplicity } = masslessGreenRelation(input);
+  if (multiplicity) {
+    relation.forEach((i, j) => {
+      k.data[j + i * n] = weight * multiplicity(i, j);
+    });
+  } else {
+    relation.forEach((i, j) => {
+      k.data[j + i * n] = weight;
+    });
+  }
   return k;
 }
 
@@ -60,7 +91,8 @@ export function retardedGreenOperator(input: GreenFunctionInput): DenseMatrix | 
 }
 
 /**
- * The retarded Green function of a field of mass m (Johnston 2008/2009): with Φ the massless K,
+ * The retarded Green function of a field of mass m (Johnston 2008/2009): with Φ the massless K (on the
+ * cylinder the image-counted one),
  * K_m = Φ (I + (m²/ρ) Φ)⁻¹ = (I + (m²/ρ) Φ)⁻¹ Φ (the two factors commute). In an order of the elements
  * that respects ≺ (sorted by t) Φ is strictly lower triangular, so (I + (m²/ρ)Φ) X = Φ is solved by
  * forward substitution with a unit diagonal — no inverse is ever formed.

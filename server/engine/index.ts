@@ -383,6 +383,8 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
       backend,
       // without coordinates there is no time to sort by; the relation itself gives a linear extension
       linearExtension: source.kind === 'order' && mass > 0 ? linearExtension(order.causal) : undefined,
+      // on the cylinder K counts the images through which a pair is related, not just whether it is
+      periodX: region?.periodX,
     }),
   );
 

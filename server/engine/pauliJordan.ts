@@ -4,7 +4,8 @@ import type { WeightedRelation } from './green';
 
 /**
  * Δ = K − Kᵀ, real antisymmetric (Johnston 2009; Sorkin 2011): iΔ is the Pauli–Jordan operator. K is
- * dense, or a massless K = w Rᵀ given by its relation, when Δ = w(Rᵀ − R) is written pair by pair.
+ * dense, or a massless K = w Rᵀ given by its relation (with a per-pair image count on the cylinder),
+ * when Δ is written pair by pair.
  */
 export function pauliJordan(k: DenseMatrix | WeightedRelation): DenseMatrix {
   if ('relation' in k) return pauliJordanOfRelation(k);
@@ -22,10 +23,21 @@ export function pauliJordan(k: DenseMatrix | WeightedRelation): DenseMatrix {
   return delta;
 }
 
-/** Δ = w(Rᵀ − R): Δ[j][i] = w and Δ[i][j] = −w for every pair i R j. */
-function pauliJordanOfRelation({ relation, weight }: WeightedRelation): DenseMatrix {
+/**
+ * Δ = K − Kᵀ from K[j][i] = w m(i, j): Δ[j][i] = w m and Δ[i][j] = −w m for every pair i R j (m = 1
+ * without a multiplicity, i.e. Δ = w(Rᵀ − R)).
+ */
+function pauliJordanOfRelation({ relation, weight, multiplicity }: WeightedRelation): DenseMatrix {
   const n = relation.size;
   const delta = denseMatrix(n, n);
+  if (multiplicity) {
+    relation.forEach((i, j) => {
+      const v = weight * multiplicity(i, j);
+      delta.data[j + i * n] = v;
+      delta.data[i + j * n] = -v;
+    });
+    return delta;
+  }
   relation.forEach((i, j) => {
     delta.data[j + i * n] = weight;
     delta.data[i + j * n] = -weight;

@@ -75,6 +75,8 @@ function diamond2d(spec: Extract<RegionSpec, { kind: 'diamond2d' }>): Region {
  * Causal diamond on the cylinder x ~ x + L between (−T/2, 0) and (T/2, 0): at height s above the past
  * tip its cross-section has length min(2s, 2(T−s), L), so the volume is T²/2 when T ≤ L and
  * T²/2 − (T−L)²/2 when the two light cones wrap around (T > L). Coordinates x lie in [−L/2, L/2).
+ * For T > L some pairs are related through two or more images; the order stays 0/1, but the Green
+ * function counts the images (green.ts `masslessGreenRelation`, order.ts `imageCount`).
  */
 function cylinderDiamond(spec: Extract<RegionSpec, { kind: 'cylinder2d' }>): Region {
   const T = spec.properTime;

@@ -106,6 +106,8 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
       backend,
       // without coordinates there is no time to sort by; the relation itself gives a linear extension
       linearExtension: placed.relation && spec.mass > 0 ? linearExtension(placed.relation) : undefined,
+      // on the cylinder K counts the images through which a pair is related, not just whether it is
+      periodX: region?.periodX,
     }),
   );
   const { delta, spectrum } = await stage('spectrum', () => {
