@@ -1,9 +1,14 @@
-/** An error with an HTTP status and a stable machine code; its message is shown to people as is. */
+/**
+ * An error with an HTTP status and a stable machine code; its message is shown to people as is.
+ * `issues` name the request fields at fault (paths joined by '.', as for schema errors), so a form can
+ * show the message beside the field.
+ */
 export class HttpError extends Error {
   constructor(
     readonly status: number,
     readonly code: string,
     message: string,
+    readonly issues?: { path: string; message: string }[],
   ) {
     super(message);
     this.name = 'HttpError';

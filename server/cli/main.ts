@@ -329,6 +329,13 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
   );
 }
 
+/** The option that sets an engine request field, so a refusal names what to change. */
+function optionOfField(field: string): string | null {
+  const head = field.split('.')[0];
+  const options: Record<string, string> = { subregion: '--subregion', truncation: '--truncation', engine: '--engine', mass: '--mass', doubleTruncation: '--double' };
+  return options[head] ?? null;
+}
+
 /** Runs the command line; returns the exit code (0 success, 2 bad input, 1 failure). */
 export async function runCli(argv: string[], io: Partial<Io> = {}): Promise<number> {
   const sink: Io = {
@@ -349,7 +356,9 @@ export async function runCli(argv: string[], io: Partial<Io> = {}): Promise<numb
     return 0;
   } catch (error) {
     if (error instanceof UsageError || error instanceof EngineInputError || error instanceof ZodError) {
-      const message = error instanceof ZodError ? error.issues.map((i) => i.message).join('; ') : error.message;
+      let message = error instanceof ZodError ? error.issues.map((i) => i.message).join('; ') : error.message;
+      const option = error instanceof EngineInputError && error.field ? optionOfField(error.field) : null;
+      if (option) message = `${option}: ${message}`;
       sink.stderr(`tacet: ${message.replace(/\s*\n\s*/g, ' ')}\n`);
       return 2;
     }

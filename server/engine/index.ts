@@ -10,6 +10,7 @@ import {
   type VacuumStage,
 } from '../../shared/vacuum';
 import { entanglementEntropy, subregionElements, type EntropyResult } from './entropy';
+import { diamondPlacementIssue, elementListIssue, tipCoordinates } from './subregionCheck';
 import { retardedGreenOperator } from './green';
 import { backendSelection, getBackend, type BackendPreference } from './linalg';
 import type { BackendName, LinearAlgebraBackend } from './linalg/backend';
@@ -35,9 +36,19 @@ export { sprinkle } from './sprinkle';
 export { makeRegion } from './regions';
 export { getBackend } from './linalg';
 
-/** Bad input to the engine: the message says what is wrong and is meant for the user. */
+/**
+ * Bad input to the engine: the message says what is wrong and is meant for the user; `field`, when
+ * known, is the request setting at fault as a path into VacuumRequest ('subregion.indices',
+ * 'subregion.future', 'truncation.count', 'engine', …), which the API reports as the issue's path.
+ */
 export class EngineInputError extends Error {
   override readonly name = 'EngineInputError';
+  constructor(
+    message: string,
+    readonly field?: string,
+  ) {
+    super(message);
+  }
 }
 
 /** Thrown between stages when `shouldCancel()` returns true. */
@@ -205,6 +216,11 @@ function engineAndLimit(request: VacuumRequest, denseMaxN: number): { choice: En
         }
       }
     }
+    // a forced structured engine that cannot serve the request at all: the engine setting is at fault
+    if (error instanceof EngineInputError && error.field === undefined && request.engine === 'structured') {
+      const truncation: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
+      if (!shape || structuredUnsupportedReason(shape.dimension, truncation, shape.periodic)) throw new EngineInputError(error.message, 'engine');
+    }
     throw error;
   }
 }
@@ -220,13 +236,16 @@ function sizeLimitFor(request: VacuumRequest): number {
  * standard deviations. Throws EngineInputError with a message for the user.
  */
 export function validateVacuumRequest(request: VacuumRequest, maxN: number = sizeLimitFor(request)): void {
-  const fail = (message: string): never => {
-    throw new EngineInputError(message);
+  const fail = (message: string, field?: string): never => {
+    throw new EngineInputError(message, field);
   };
   const zodMessage = (e: { issues: { path: PropertyKey[]; message: string }[] }) =>
     e.issues.map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message)).join('; ');
   let dimension: 2 | 4;
   let hasDensity: boolean;
+  // N, or for a Poisson sprinkling its largest plausible value; and the region the points lie in
+  let size: { n: number; exact: boolean };
+  let placedIn: RegionSpec | null = null;
   if (request.source.kind === 'sprinkling') {
     const parsed = sprinklingSpecSchema.safeParse(request.source.sprinkling);
     if (!parsed.success) return fail(`invalid sprinkling: ${zodMessage(parsed.error)}`);
@@ -237,12 +256,15 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
     const worst = parsed.data.process === 'fixed' ? mean : Math.ceil(mean + 5 * Math.sqrt(mean));
     if (worst > maxN) checkDenseSize(worst, maxN);
     if (parsed.data.process === 'fixed' && mean < 2) fail('a sprinkling needs at least 2 elements');
+    size = { n: worst, exact: parsed.data.process === 'fixed' };
+    placedIn = parsed.data.region;
   } else if (request.source.kind === 'order') {
     const { causal, count, dimension: d, density } = request.source;
     if (d !== 2 && d !== 4) fail(`dimension must be 2 or 4, got ${String(d)}`);
     dimension = d;
     if (!Number.isInteger(count)) fail(`the element count must be a whole number, got ${count}`);
     checkDenseSize(count, maxN);
+    size = { n: count, exact: true };
     const words = (count + 31) >>> 5;
     if (causal.length !== words * count) fail(`a relation on ${count} elements has ${words * count} words, got ${causal.length}`);
     for (let i = 0; i < count; i++) {
@@ -251,7 +273,7 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
     if (density !== undefined && !(density > 0 && Number.isFinite(density))) fail('density must be a positive number');
     hasDensity = density !== undefined;
     if (request.subregion?.kind === 'diamond') {
-      fail('a causal set given by its relation has no coordinates: give the subregion as a list of elements');
+      fail('a causal set given by its relation has no coordinates: give the subregion as a list of elements', 'subregion');
     }
   } else {
     const { points, dimension: d } = request.source;
@@ -262,6 +284,7 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
       if (!Number.isFinite(points[k])) fail(`coordinate ${k % d} of element ${Math.floor(k / d)} is not a finite number`);
     }
     checkDenseSize(points.length / d, maxN);
+    size = { n: points.length / d, exact: true };
     if (request.source.density !== undefined && !(request.source.density > 0 && Number.isFinite(request.source.density))) {
       fail('density must be a positive number');
     }
@@ -269,26 +292,44 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
       const parsed = regionSpecSchema.safeParse(request.source.region);
       if (!parsed.success) return fail(`invalid region: ${zodMessage(parsed.error)}`);
       if (makeRegion(parsed.data).dimension !== d) fail(`region ${parsed.data.kind} is not ${d}-dimensional`);
+      placedIn = parsed.data;
     }
     hasDensity = request.source.density !== undefined || request.source.region !== undefined;
   }
   const mass = request.mass ?? 0;
-  if (!(mass >= 0) || !Number.isFinite(mass)) fail('mass must be a finite number ≥ 0');
+  if (!(mass >= 0) || !Number.isFinite(mass)) fail('mass must be a finite number ≥ 0', 'mass');
   if (!hasDensity && (mass > 0 || dimension === 4)) {
     fail(`${mass > 0 ? 'a massive field' : 'the 4D Green function'} needs a density: give the density or the region`);
   }
   if (request.truncation) {
     const parsed = truncationRuleSchema.safeParse(request.truncation);
-    if (!parsed.success) fail(`invalid truncation: ${zodMessage(parsed.error)}`);
+    if (!parsed.success) return fail(`invalid truncation: ${zodMessage(parsed.error)}`, 'truncation');
+    // iΔ is real antisymmetric: its nonzero eigenvalues come in ± pairs, at most ⌊N/2⌋ positive (common practice)
+    const pairs = Math.floor(size.n / 2);
+    if (parsed.data.rule === 'modes' && parsed.data.count > pairs) {
+      fail(`modes:${parsed.data.count} asks for more positive eigenvalues of iΔ than ${size.exact ? '' : 'about '}${size.n} elements can have (at most ${pairs})`, 'truncation.count');
+    }
+    if (parsed.data.rule === 'knee' && pairs < 4) fail(`the knee finder needs at least 4 positive eigenvalues of iΔ; ${size.n} elements have at most ${pairs}`, 'truncation');
   }
   if (request.subregion) {
     const parsed = subregionSpecSchema.safeParse(request.subregion);
-    if (!parsed.success) return fail(`invalid subregion: ${zodMessage(parsed.error)}`);
-    if (parsed.data.kind === 'diamond' && ('y' in parsed.data.past ? 4 : 2) !== dimension) {
-      fail(`subregion tips must have ${dimension} coordinates like the points`);
+    if (!parsed.success) return fail(`invalid subregion: ${zodMessage(parsed.error)}`, 'subregion');
+    if (parsed.data.kind === 'diamond' && (('y' in parsed.data.past ? 4 : 2) !== dimension || ('y' in parsed.data.future ? 4 : 2) !== dimension)) {
+      fail(`subregion tips must have ${dimension} coordinates like the points`, 'subregion');
+    }
+    // A Poisson sprinkling draws its N in the worker: a label below the plausible maximum may or may not
+    // exist, and whether a diamond holds two elements depends on the points; both are checked again there.
+    const issue =
+      parsed.data.kind === 'elements'
+        ? elementListIssue(parsed.data.indices, size.n, size.exact)
+        : diamondPlacementIssue(tipCoordinates(parsed.data.past), tipCoordinates(parsed.data.future), placedIn);
+    if (issue) fail(issue.message, issue.field ? `subregion.${issue.field}` : 'subregion');
+    if (parsed.data.kind === 'diamond' && request.source.kind === 'points') {
+      const held = subregionElements(parsed.data, request.source.points, dimension, placedIn?.kind === 'cylinder2d' ? placedIn.circumference : undefined).length;
+      if (held < 2) fail(`the subregion holds ${held} of the ${size.n} elements; the entropy needs at least 2`, 'subregion');
     }
   }
-  if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion');
+  if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion', 'doubleTruncation');
 }
 
 function relationFromWords(words: Uint32Array, count: number): BitRelation {
@@ -362,6 +403,11 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     const density = source.density ?? (region ? n / region.volume : null);
     return { points, dimension: source.dimension, n, density, region, provenance: null };
   });
+  // a Poisson sprinkling's N is known only now: the labels below its plausible maximum are checked here
+  if (request.subregion?.kind === 'elements') {
+    const issue = elementListIssue(request.subregion.indices, placed.n, true);
+    if (issue) throw new EngineInputError(issue.message, 'subregion.indices');
+  }
   if (choice.engine === 'structured') return structuredVacuum({ request, hooks, placed, stage, backend, choice, timings });
   const { points, dimension, density, region, n } = placed;
   const mass = request.mass ?? 0;

@@ -2,7 +2,8 @@ import type { CreateStudyRequest, ImportedStudyRequest, ResolvedSubregion, Sprin
 import { STUDY_MIN_SUBREGION_ELEMENTS, studyRuleKey, studyRuleLabel } from '../../shared/studies';
 import type { Event, RegionSpec, SprinklingSpecInput, SubregionSpec } from '../../shared/vacuum';
 import { subregionElements } from '../engine/entropy';
-import { makeRegion, type Region } from '../engine/regions';
+import { makeRegion } from '../engine/regions';
+import { diamondPlacementIssue } from '../engine/subregionCheck';
 
 /** A study request that cannot be computed as asked; the message is meant for the user. */
 export class StudyPlanError extends Error {
@@ -59,23 +60,34 @@ export function diamondVolume(tips: Tips): number {
 
 const formatFraction = (f: number) => String(Number(f.toPrecision(6)));
 
-function tipsProblem(d: Tips, dimension: 2 | 4, region: Region | null): string | null {
+/** A region the points lie in (null: points with a density only), and whose points, for messages. */
+interface PlacedIn {
+  region: RegionSpec | null;
+  /** the imported causal set it belongs to */
+  name?: string;
+}
+
+/**
+ * Where a sub-diamond by tips is refused: the rule of the engine's diamondPlacementIssue (the same one
+ * runs use: future tip inside the future light cone of the past tip, periodic x on the cylinder, both
+ * tips in the closed region, a sub-diamond partly outside a slab refused), checked for every region.
+ */
+function tipsProblem(d: Tips, dimension: 2 | 4, placements: PlacedIn[]): { message: string; field: string } | null {
   if (('y' in d.past ? 4 : 2) !== dimension || ('y' in d.future ? 4 : 2) !== dimension) {
-    return `the tips must have ${dimension === 2 ? 't, x' : 't, x, y, z'} coordinates like the ${region ? 'region' : 'points'}`;
+    const like = placements.some((p) => p.region) ? 'region' : 'points';
+    return { message: `the tips must have ${dimension === 2 ? 't, x' : 't, x, y, z'} coordinates like the ${like}`, field: '' };
   }
-  if (diamondVolume(d) === 0) return 'the future tip must lie strictly inside the future light cone of the past tip';
-  if (region) {
-    // tips nudged inwards along the axis, so a tip on the region's boundary still counts as inside
-    const inner = concentricTips(d, 1 - 1e-9);
-    if (!region.contains(coordinates(inner.past)) || !region.contains(coordinates(inner.future))) return 'both tips must lie in the region';
+  for (const { region, name } of placements) {
+    const issue = diamondPlacementIssue(coordinates(d.past), coordinates(d.future), region, region && name ? `the ${region.kind} region of "${name}"` : undefined);
+    if (issue) return { message: issue.message, field: issue.field };
   }
   return null;
 }
 
-function tipsSubregions(subregions: Extract<CreateStudyRequest['subregions'], { kind: 'tips' }>, dimension: 2 | 4, region: Region | null): ResolvedSubregion[] {
+function tipsSubregions(subregions: Extract<CreateStudyRequest['subregions'], { kind: 'tips' }>, dimension: 2 | 4, placements: PlacedIn[]): ResolvedSubregion[] {
   return subregions.diamonds.map((d, k) => {
-    const problem = tipsProblem(d, dimension, region);
-    if (problem) throw new StudyPlanError(problem, `subregions.diamonds.${k}`);
+    const problem = tipsProblem(d, dimension, placements);
+    if (problem) throw new StudyPlanError(problem.message, `subregions.diamonds.${k}${problem.field ? `.${problem.field}` : ''}`);
     return { key: `d${k + 1}`, label: d.label ?? `sub-diamond ${k + 1}`, fraction: null, past: d.past, future: d.future };
   });
 }
@@ -93,7 +105,7 @@ export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' 
     return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/L = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
   }
   if (subregions.kind === 'elements') throw new StudyPlanError('element lists are for imported causal sets', 'subregions.kind');
-  return tipsSubregions(subregions, region.dimension, region);
+  return tipsSubregions(subregions, region.dimension, [{ region: request.region }]);
 }
 
 /** An imported causal set as planning sees it: its reference and, for a coordinates file, its points. */
@@ -108,7 +120,7 @@ const sameRegion = (a: RegionSpec | null, b: RegionSpec | null) => a !== null &&
 /**
  * Subregions of a study over imported causal sets. Concentric sub-diamonds need every set to be
  * coordinates imported with the same diamond region (ℓ/L is relative to it); sub-diamonds by tips
- * need coordinates of one dimension (checked against the region when the sets share one); element
+ * need coordinates of one dimension (checked against the region of every set imported with one); element
  * lists (keys `e1`, `e2`, …) fit any set with enough elements and are the only choice for relation lists.
  */
 export function resolveImportedSubregions(request: Pick<ImportedStudyRequest, 'subregions'>, sets: PlannedCausalSet[]): ResolvedSubregion[] {
@@ -149,7 +161,9 @@ export function resolveImportedSubregions(request: Pick<ImportedStudyRequest, 's
     if (!common) throw new StudyPlanError('concentric sub-diamonds need every causal set imported with the same region; give tips or element lists', 'subregions.kind');
     return resolveSubregions({ region: common, subregions });
   }
-  return tipsSubregions(subregions, dimension, common ? makeRegion(common) : null);
+  // every distinct region of the sets (or none, for sets imported with a density only) must hold the tips
+  const placements = new Map(sets.map((s) => [JSON.stringify(s.reference.region), { region: s.reference.region, name: s.reference.name }]));
+  return tipsSubregions(subregions, dimension, [...placements.values()]);
 }
 
 /** The subregion as the engine takes it. */
@@ -218,6 +232,26 @@ export function planImportedCells(sets: PlannedCausalSet[], subregions: Resolved
     });
   }
   return ordered.map(({ s }, position) => ({ position, count: s.reference.N, seed: s.reference.id }));
+}
+
+/**
+ * Refuses cut rules no cell of the study can take: iΔ of N elements has at most ⌊N/2⌋ positive
+ * eigenvalues (they come in ± pairs, common practice), so modes:K needs K ≤ ⌊N/2⌋ and the knee finder
+ * 4 of them. `smallestN` is the smallest N of the study; for Poisson sprinklings (`exact` false) its
+ * largest plausible value, so only what no draw can serve is refused.
+ */
+export function checkRulesFit(rules: Pick<CreateStudyRequest, 'rules'>['rules'], smallestN: number, exact: boolean): void {
+  const pairs = Math.floor(smallestN / 2);
+  const about = exact ? '' : 'about ';
+  rules.forEach((rule, k) => {
+    const t = rule.truncation;
+    if (t.rule === 'modes' && t.count > pairs) {
+      throw new StudyPlanError(`modes:${t.count} asks for more positive eigenvalues of iΔ than the ${about}${smallestN} elements of the smallest N can have (at most ${pairs})`, `rules.${k}.truncation.count`);
+    }
+    if (t.rule === 'knee' && pairs < 4) {
+      throw new StudyPlanError(`the knee finder needs at least 4 positive eigenvalues of iΔ; the ${about}${smallestN} elements of the smallest N have at most ${pairs}`, `rules.${k}.truncation`);
+    }
+  });
 }
 
 /** The sprinkling of one cell. */

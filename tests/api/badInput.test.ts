@@ -79,6 +79,11 @@ const corpus: [string, Send, number | number[]][] = [
   ['run: causalSetId of nothing', post('/api/runs', { causalSetId: randomUUID(), truncation: { rule: 'none' } }), 422],
   ['run: subregion outside the region', post('/api/runs', run({}, { subregion: { kind: 'tips', past: [-5, 0], future: [5, 0] } })), [400, 422]],
   ['run: both sprinkling and causalSetId', post('/api/runs', { ...run(), causalSetId: randomUUID() }), 400],
+  // --- well-formed runs and studies that can never be computed (tests/api/refusals.test.ts checks the field named)
+  ['run: sub-diamond tip outside the region', post('/api/runs', run({}, { subregion: { kind: 'diamond', past: { t: -1.5, x: 0 }, future: { t: 0.5, x: 0 } } })), 422],
+  ['run: element label at the fixed N', post('/api/runs', run({}, { subregion: { kind: 'elements', indices: [0, 120] } })), 422],
+  ['run: structured engine without a cut', post('/api/runs', run({}, { engine: 'structured', truncation: { rule: 'none' } })), 422],
+  ['study: sub-diamond outside the region', post('/api/studies', { counts: [40], seeds: ['a'], subregions: { kind: 'tips', diamonds: [{ past: { t: -1.5, x: 0 }, future: { t: 0.5, x: 0 } }] }, rules: [{ truncation: { rule: 'none' } }] }), 422],
   // --- bodies that are not what they claim
   ['body: broken JSON', postRaw('/api/runs', '{"sprinkling": {'), 400],
   ['body: JSON null', postRaw('/api/runs', 'null'), 400],

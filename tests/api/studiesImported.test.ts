@@ -193,17 +193,17 @@ describe('imported study requests that cannot be computed', () => {
     expect(foreign.body.error.message).toMatch(/no imported causal set .* exists in this team/);
 
     const onRelations = await post({ source: 'imported', causalSetIds: [coordinatesId, relationId], subregions: concentric, rules });
-    expect(onRelations.status).toBe(400);
+    expect(onRelations.status).toBe(422);
     expect(onRelations.body.error.issues[0].path).toBe('subregions.kind');
     expect(onRelations.body.error.message).toMatch(/relation list without coordinates; give the subregions as element lists/);
 
     const beyond = await post({ source: 'imported', causalSetIds: [relationId], subregions: { kind: 'elements', lists: [{ indices: [0, 1, 80] }] }, rules });
-    expect(beyond.status).toBe(400);
+    expect(beyond.status).toBe(422);
     expect(beyond.body.error.issues[0].path).toBe('subregions.lists.0.indices');
     expect(beyond.body.error.message).toMatch(/element 80 does not exist .* 80 elements/);
 
     const tiny = await post({ source: 'imported', causalSetIds: [coordinatesId], subregions: { kind: 'concentric', fractions: [0.1] }, rules });
-    expect(tiny.status).toBe(400);
+    expect(tiny.status).toBe(422);
     expect(tiny.body.error.issues[0].path).toBe('subregions.fractions.0');
     expect(tiny.body.error.message).toMatch(/holds \d element.* of "N80 s-1" \(N = 80\); at least 8/);
 

@@ -80,6 +80,24 @@ describe('tacet command line', () => {
     }
   }, 240_000);
 
+  it('refuses a subregion or setting that can never be computed before any work: exit 2, one line naming the option', () => {
+    // a.csv: 150 points in the default diamond2d of proper time 2√2 (tips at t = ±√2)
+    const cases: [string[], RegExp][] = [
+      [['entropy', '--points', 'a.csv', '--subregion', 'elements:0,150'], /^tacet: --subregion: subregion element 150 does not exist: the causal set has 150 elements/],
+      [['entropy', '--points', 'a.csv', '--region', 'diamond2d', '--subregion', 'diamond:-2,0:0,0'], /^tacet: --subregion: the past tip \(t = -2, x = 0\) lies outside the diamond2d region/],
+      [['entropy', '--points', 'a.csv', '--subregion', 'diamond:0,0:0.001,0'], /^tacet: --subregion: the subregion holds 0 of the 150 elements/],
+      [['vacuum', '--points', 'a.csv', '--truncation', 'modes:76'], /^tacet: --truncation: modes:76 .*\(at most 75\)/],
+      [['vacuum', '--points', 'a.csv', '--engine', 'structured', '--truncation', 'knee'], /^tacet: --engine: the knee finder/],
+    ];
+    for (const [args, message] of cases) {
+      const r = tacet(...args);
+      expect(r.code, args.join(' ')).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr.trim().split('\n'), args.join(' ')).toHaveLength(1);
+      expect(r.stderr, args.join(' ')).toMatch(message);
+    }
+  }, 120_000);
+
   it('prints help', () => {
     const r = tacet('--help');
     expect(r.code).toBe(0);

@@ -15,7 +15,7 @@ export const apiNotFound: RequestHandler = (req, res) => {
 /** The one place errors become responses; stack traces go to the log, never to the client. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (res.headersSent) return;
-  if (err instanceof HttpError) return send(res, err.status, { code: err.code, message: err.message });
+  if (err instanceof HttpError) return send(res, err.status, { code: err.code, message: err.message, ...(err.issues ? { issues: err.issues } : {}) });
   if (err instanceof ZodError) {
     const issues = err.issues.map((issue) => ({ path: issue.path.map(String).join('.'), message: issue.message }));
     const first = issues[0];

@@ -89,14 +89,19 @@ export function toEngineRequest(
   return { ...settings, source: { kind: 'sprinkling', sprinkling: request.sprinkling } };
 }
 
-/** EngineInputError → 422; an engine size limit gets its own code so the form can say so beside N. */
+/**
+ * EngineInputError → 422 before anything is stored or queued, with the setting at fault as the issue's
+ * path when the engine names one (the request body uses the engine's names: subregion, truncation,
+ * engine, mass); an engine size limit gets its own code so the form can say so beside N.
+ */
 function validateForEngine(request: Omit<VacuumRequest, 'backend'>): void {
   try {
     validateVacuumRequest(request);
   } catch (error) {
     if (error instanceof EngineInputError) {
       const tooLarge = /exceeds the (dense|structured) limit/.test(error.message);
-      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', error.message);
+      const issues = error.field ? [{ path: error.field, message: error.message }] : undefined;
+      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', error.message, issues);
     }
     throw error;
   }

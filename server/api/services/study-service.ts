@@ -36,6 +36,7 @@ import {
 } from '../../studies/exports';
 import {
   cellSprinkling,
+  checkRulesFit,
   planCells,
   planImportedCells,
   resolveImportedSubregions,
@@ -50,9 +51,12 @@ import { conflict, HttpError, notFound } from '../errors';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-/** A plan problem is a field problem: answered like a zod validation error, with the field's path. */
-function planIssue(error: StudyPlanError): ZodError {
-  return new ZodError([{ code: 'custom', path: error.path.split('.').map((p) => (/^\d+$/.test(p) ? Number(p) : p)), message: error.message, input: undefined }]);
+/**
+ * A plan problem is a request that can never be computed (a sub-diamond outside the region, an element
+ * that does not exist, a subregion too small): 422 before anything is stored, with the field's path.
+ */
+function planIssue(error: StudyPlanError): HttpError {
+  return new HttpError(422, 'invalid_request', error.message, [{ path: error.path, message: error.message }]);
 }
 
 function percentOf(total: number, p: StudyProgressCounts): number {
@@ -133,7 +137,8 @@ function engineCheck(what: string, request: Parameters<typeof validateVacuumRequ
   } catch (error) {
     if (error instanceof EngineInputError) {
       const tooLarge = /exceeds the (dense|structured) limit/.test(error.message);
-      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `${what}: ${error.message}`);
+      const issues = error.field ? [{ path: error.field, message: `${what}: ${error.message}` }] : undefined;
+      throw new HttpError(422, tooLarge ? 'too_large' : 'invalid_request', `${what}: ${error.message}`, issues);
     }
     throw error;
   }
@@ -263,6 +268,9 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     try {
       subregions = resolveSubregions(request);
       cells = planCells(request, subregions);
+      const smallest = Math.min(...request.counts);
+      // a Poisson cell draws its N: refuse only what its largest plausible N (mean + 5σ) cannot serve
+      checkRulesFit(request.rules, request.process === 'poisson' ? Math.ceil(smallest + 5 * Math.sqrt(smallest)) : smallest, request.process !== 'poisson');
     } catch (error) {
       if (error instanceof StudyPlanError) throw planIssue(error);
       throw error;
@@ -296,6 +304,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     try {
       subregions = resolveImportedSubregions(request, planned);
       cells = planImportedCells(planned, subregions);
+      checkRulesFit(request.rules, Math.min(...planned.map((p) => p.reference.N)), true);
     } catch (error) {
       if (error instanceof StudyPlanError) throw planIssue(error);
       throw error;
