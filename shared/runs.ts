@@ -108,7 +108,20 @@ export const runResultSchema = z.object({
   continuum: z.array(z.number()).nullable(),
   cutoff: z.number(),
   modesKept: z.number().int(),
-  knee: z.unknown().nullable(),
+  /** the knee finder's fit (truncation knee only, see server/engine/truncation.ts findKnee); null otherwise */
+  knee: z
+    .object({
+      /** the law of the kept modes, λ_k ≈ amplitude · k^(−exponent) */
+      amplitude: z.number(),
+      exponent: z.number(),
+      /** β of the departure term fitted beside the law (absent on runs stored before it existed) */
+      curvature: z.number().optional(),
+      fitWindow: z.number().int(),
+      tolerance: z.number(),
+      /** modes kept at half (low) and 1.5 times (high) the tolerance (absent on runs stored before it existed) */
+      rankRange: z.object({ low: z.number().int(), high: z.number().int(), lowTolerance: z.number(), highTolerance: z.number() }).optional(),
+    })
+    .nullable(),
   diagnostics: runDiagnosticsSchema,
   entropy: z
     .object({

@@ -31,6 +31,35 @@ describe('spectrum plot data', () => {
     const traces = spectrumTraces({ ...result, continuum: null, cutoff: 0, modesKept: 6 }, colors);
     expect(traces.map((t) => t.name)).toEqual(['kept modes (6)']);
   });
+
+  const knee = { amplitude: 10, exponent: 1, curvature: 0.05, fitWindow: 3, tolerance: 0.05, rankRange: { low: 2, high: 4, lowTolerance: 0.025, highTolerance: 0.075 } };
+
+  it('draws the knee rank, its range as a band under the markers and the fitted law, named in plain words', () => {
+    const traces = spectrumTraces({ ...result, knee }, colors);
+    const band = traces[0];
+    expect(band.name).toBe('knee at tolerance 2.5 % to 7.5 %: 2 to 4 modes');
+    expect(band.x).toEqual([2, 4, 4, 2, 2]);
+    // the band spans the plotted values: smallest positive eigenvalue or continuum to the largest
+    expect(band.y).toEqual([1e-9, 1e-9, 10, 10, 1e-9]);
+    expect(band).toMatchObject({ fill: 'toself', fillcolor: 'accent' });
+    const line = traces.find((t) => t.name.startsWith('knee:'))!;
+    expect(line.name).toBe('knee: 3 modes follow the fitted law within 5 %');
+    expect(line.x).toEqual([3, 3]);
+    expect(line.line).toMatchObject({ color: 'accent', dash: 'dot' });
+    const law = traces.find((t) => t.name.startsWith('fitted law'))!;
+    expect(law.name).toBe('fitted law 10·k^(−1)');
+    // drawn past the knee to the end of the band, so the spectrum is seen leaving it
+    expect(law.x).toEqual([1, 2, 3, 4]);
+    [10, 5, 10 / 3, 2.5].forEach((y, i) => expect(law.y[i]).toBeCloseTo(y, 12));
+  });
+
+  it('draws a knee stored before the rank range without a band, and nothing for other rules', () => {
+    const { rankRange: _, curvature: __, ...older } = knee;
+    const traces = spectrumTraces({ ...result, knee: older }, colors);
+    expect(traces.some((t) => t.name.startsWith('knee at tolerance'))).toBe(false);
+    expect(traces.find((t) => t.name.startsWith('knee:'))?.x).toEqual([3, 3]);
+    expect(spectrumTraces({ ...result, knee: null }, colors).some((t) => t.name.startsWith('knee'))).toBe(false);
+  });
 });
 
 describe('compare overlay', () => {

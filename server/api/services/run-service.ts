@@ -170,7 +170,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         continuum: continuumFor(row, eigenvalues.length),
         cutoff: s.cutoff,
         modesKept: s.modesKept,
-        knee: s.knee ?? null,
+        knee: (s.knee ?? null) as RunResult['knee'],
         diagnostics: s.diagnostics as RunResult['diagnostics'],
         entropy: s.entropy
           ? {

@@ -22,6 +22,10 @@ export function SpectrumPlot({ run, result }: { run: RunDetail; result: RunResul
         <>
           {result.eigenvalues.length} positive eigenvalues by rank, log–log; the cut keeps {result.modesKept}.
           {result.continuum ? ' Continuum curve: N/(4x_k) for the 2D diamond.' : ' No continuum curve for this region.'}
+          {result.knee
+            ? ' Knee (dotted): the first rank where the spectrum leaves the power law fitted to its top by more than the tolerance' +
+              (result.knee.rankRange ? '; the shaded band is where it moves when the tolerance is halved or raised by half.' : '.')
+            : ''}
         </>
       }
     />

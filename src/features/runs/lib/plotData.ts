@@ -36,8 +36,13 @@ const mono = '"JetBrains Mono", ui-monospace, monospace';
 /**
  * The spectrum of one run: kept modes in ink, discarded ones in the soft ink, the continuum N/(4x_k)
  * of a 2D diamond in the reference colour and the cut λc as a dashed accent line across all ranks.
+ * A knee cut adds its rank as a dotted accent line, the ranks it moves to when its tolerance is halved
+ * or raised by half as a pale accent band, and the law the finder fitted as a thin dotted line.
  */
-export function spectrumTraces(result: Pick<RunResult, 'eigenvalues' | 'continuum' | 'cutoff' | 'modesKept'>, colors: PlotColors): Trace[] {
+export function spectrumTraces(
+  result: Pick<RunResult, 'eigenvalues' | 'continuum' | 'cutoff' | 'modesKept'> & { knee?: RunResult['knee'] },
+  colors: PlotColors,
+): Trace[] {
   const all = ranks(result.eigenvalues.length);
   const kept = positivePairs(all.slice(0, result.modesKept), result.eigenvalues.slice(0, result.modesKept));
   const dropped = positivePairs(all.slice(result.modesKept), result.eigenvalues.slice(result.modesKept));
@@ -82,7 +87,79 @@ export function spectrumTraces(result: Pick<RunResult, 'eigenvalues' | 'continuu
       hoverinfo: 'skip',
     });
   }
+  if (result.knee && all.length > 0) {
+    const knee = kneeTraces(result.knee, result.modesKept, result.eigenvalues, result.continuum, colors);
+    // the band goes under the markers; its legend entry still comes last
+    if (knee.band) traces.unshift(knee.band);
+    traces.push(...knee.lines);
+  }
   return traces;
+}
+
+function percent(fraction: number): string {
+  return `${Number((fraction * 100).toPrecision(3))} %`;
+}
+
+/**
+ * The knee drawn across the plot's height: a vertical line at the rank kept, the band of ranks between
+ * the knee at half and at 1.5 times its tolerance (runs stored before the range have none) and the
+ * fitted law a·k^(−p) down to the end of that band, so the spectrum is seen leaving it.
+ */
+function kneeTraces(
+  knee: NonNullable<RunResult['knee']>,
+  modesKept: number,
+  eigenvalues: number[],
+  continuum: number[] | null,
+  colors: PlotColors,
+): { band: Trace | null; lines: Trace[] } {
+  let low = Infinity;
+  let high = -Infinity;
+  for (const v of [...eigenvalues, ...(continuum ?? [])]) {
+    if (v > 0 && Number.isFinite(v)) {
+      low = Math.min(low, v);
+      high = Math.max(high, v);
+    }
+  }
+  if (!(high >= low)) return { band: null, lines: [] };
+  const range = knee.rankRange;
+  let band: Trace | null = null;
+  if (range) {
+    const from = Math.max(1, Math.min(range.low, range.high, modesKept));
+    const to = Math.max(range.low, range.high, modesKept);
+    band = {
+      name: `knee at tolerance ${percent(range.lowTolerance)} to ${percent(range.highTolerance)}: ${range.low} to ${range.high} modes`,
+      type: 'scatter',
+      mode: 'lines',
+      x: [from, to, to, from, from],
+      y: [low, low, high, high, low],
+      fill: 'toself',
+      fillcolor: colors.cut,
+      opacity: 0.12,
+      line: { width: 0, color: colors.cut },
+      legendrank: 1001,
+      hoverinfo: 'skip',
+    };
+  }
+  const lines: Trace[] = [];
+  lines.push({
+    name: `knee: ${modesKept} modes follow the fitted law within ${percent(knee.tolerance)}`,
+    type: 'scatter',
+    mode: 'lines',
+    x: [modesKept, modesKept],
+    y: [low, high],
+    line: { color: colors.cut, width: 1.5, dash: 'dot' },
+    hovertemplate: `knee at rank ${modesKept}<extra></extra>`,
+  });
+  const lawRanks = ranks(Math.min(eigenvalues.length, Math.max(1, modesKept, range?.high ?? 0)));
+  lines.push({
+    name: `fitted law ${formatPlotNumber(knee.amplitude)}·k^(−${formatPlotNumber(knee.exponent)})`,
+    type: 'scatter',
+    mode: 'lines',
+    ...positivePairs(lawRanks, lawRanks.map((k) => knee.amplitude * k ** -knee.exponent)),
+    line: { color: colors.dataSoft, width: 1, dash: 'dot' },
+    hovertemplate: 'rank %{x}<br>fitted law %{y:.6g}<extra></extra>',
+  });
+  return { band, lines };
 }
 
 export function formatPlotNumber(value: number): string {
