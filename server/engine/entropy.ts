@@ -76,29 +76,61 @@ function symmetrise(m: DenseMatrix): void {
   }
 }
 
-function symmetricSquareRoot(x: DenseMatrix, backend: LinearAlgebraBackend): DenseMatrix {
-  const { values, vectors } = backend.symmetricEigen(x);
-  const v = vectors as DenseMatrix;
-  const m = x.rows;
+/** V f(Λ) Vᵀ from the eigendecomposition X = V Λ Vᵀ of a symmetric X. */
+function symmetricFunction(
+  eig: { values: Float64Array; vectors: DenseMatrix | null },
+  f: (value: number) => number,
+  backend: LinearAlgebraBackend,
+): DenseMatrix {
+  const v = eig.vectors as DenseMatrix;
+  const m = v.rows;
   const scaled = denseMatrix(m, m);
   for (let c = 0; c < m; c++) {
-    const root = Math.sqrt(Math.max(values[c], 0));
-    for (let i = 0; i < m; i++) scaled.data[i + c * m] = v.data[i + c * m] * root;
+    const factor = f(eig.values[c]);
+    for (let i = 0; i < m; i++) scaled.data[i + c * m] = v.data[i + c * m] * factor;
   }
   return backend.multiply(scaled, v, { transposeB: true });
 }
 
+function transposed(m: DenseMatrix): DenseMatrix {
+  const t = denseMatrix(m.cols, m.rows);
+  for (let j = 0; j < m.cols; j++) for (let i = 0; i < m.rows; i++) t.data[j + i * m.cols] = m.data[i + j * m.rows];
+  return t;
+}
+
 /**
- * A matrix with the singular values of X̃^½ Ã⁻¹ X̃^½. With the Cholesky factor X̃ = L Lᵀ, L = X̃^½ Q for an
- * orthogonal Q, so Lᵀ Ã⁻¹ L = Qᵀ (X̃^½ Ã⁻¹ X̃^½) Q has the same singular values at a ninth of the cost of
- * the square root's eigendecomposition. X̃ is positive definite when W_O ≥ 0 (X̃v = 0 would force
- * Ãv = 0); when rounding or a state off its checks makes the factorisation fail, the square root serves.
+ * A matrix whose singular values give the κ: the singular values of B = X̃^½ Ã⁻¹ X̃^½ are the κ, those
+ * of its inverse C = X̃^(−½) Ã X̃^(−½) are the 1/κ. With the Cholesky factor X̃ = L Lᵀ, L = X̃^½ Q for an
+ * orthogonal Q, so L⁻¹ Ã L⁻ᵀ = Qᵀ C Q has the singular values of C: two triangular substitutions, with
+ * no inverse of Ã at all. That is the point: Ã⁻¹ = diag(σ⁻²) Ãᵀ rests on the σ² of AᵀA, whose absolute
+ * error ε‖A‖² is a relative error ε(σ_max/σ)² on the small σ — 1e-8 for a spread of 1e4, which set κ of
+ * a pure state 1e-8 off ½ and, through (½+δ) ln(½+δ) − δ ln δ ≈ δ(1 − ln δ), its S near 1e-6. The 1/κ
+ * of a state with W_O ≥ 0 lie in (0, 2]; through CᵀC the large ones, κ near ½ where S is most
+ * sensitive, come out to about ε, and a large κ to a relative 2εκ² (S moves by about that, since
+ * d/dκ of the term is 1/κ there).
+ * X̃ is positive definite when W_O ≥ 0 (X̃v = 0 would force Ãv = 0); when rounding makes the
+ * factorisation fail, the square root serves, and for a state off its checks, with an eigenvalue of X̃
+ * at or below zero, B = X̃^½ Ã⁻¹ X̃^½ with the square root clamped at zero (κ = 0 in those directions).
  */
-function whitenedInverse(xTilde: DenseMatrix, aTildeInverse: DenseMatrix, backend: LinearAlgebraBackend): DenseMatrix {
+function whitenedMatrix(
+  xTilde: DenseMatrix,
+  aTilde: DenseMatrix,
+  aTildeInverse: () => DenseMatrix,
+  backend: LinearAlgebraBackend,
+): { matrix: DenseMatrix; singularValues: 'kappa' | 'inverseKappa' } {
   const lower = backend.cholesky(xTilde);
-  if (lower) return backend.multiply(lower, backend.multiply(aTildeInverse, lower), { transposeA: true });
-  const root = symmetricSquareRoot(xTilde, backend);
-  return backend.multiply(root, backend.multiply(aTildeInverse, root));
+  if (lower) {
+    // C = (L⁻¹ Ã) L⁻ᵀ, so Cᵀ = L⁻¹ (L⁻¹ Ã)ᵀ; Cᵀ has the singular values of C
+    const left = backend.solveTriangular(lower, aTilde, { lower: true });
+    return { matrix: backend.solveTriangular(lower, transposed(left), { lower: true }), singularValues: 'inverseKappa' };
+  }
+  const eig = backend.symmetricEigen(xTilde);
+  if (eig.values[0] > 0) {
+    const inverseRoot = symmetricFunction(eig, (v) => 1 / Math.sqrt(v), backend);
+    return { matrix: backend.multiply(inverseRoot, backend.multiply(aTilde, inverseRoot)), singularValues: 'inverseKappa' };
+  }
+  const root = symmetricFunction(eig, (v) => Math.sqrt(Math.max(v, 0)), backend);
+  return { matrix: backend.multiply(root, backend.multiply(aTildeInverse(), root)), singularValues: 'kappa' };
 }
 
 /** (κ + ½) ln(κ + ½) − (κ − ½) ln(κ − ½), with 0 ln 0 = 0 and κ < ½ (rounding) clamped to ½. */
@@ -117,10 +149,12 @@ function bosonicTerm(kappa: number): number {
  * 2k × 2k reduction of the factored state): S and the nonzero spectrum of A do not change.
  * The cut: with `doubleTruncation` the modes of AᵀA with σ ≤ √n/(4π) are dropped (n = elements of O,
  * whatever the basis size), otherwise only the numerical kernel (σ ≤ KERNEL_RELATIVE_THRESHOLD σ_max).
- * U = kept eigenvectors of AᵀA, Ã = UᵀAU, X̃ = UᵀXU, B = X̃^½ Ã⁻¹ X̃^½ (or its orthogonal equivalent
- * Lᵀ Ã⁻¹ L, see `whitenedInverse`); the eigenvalues κ² of BᵀB (each
- * twice) give S = ½ Σ_i [(κ_i+½) ln(κ_i+½) − (κ_i−½) ln(κ_i−½)] and μ = ½ ± κ. Ã⁻¹ = diag(σ⁻²) Ãᵀ since
- * ÃᵀÃ = UᵀAᵀAU = diag(σ²) on the invariant subspace spanned by U. X is symmetrised in place.
+ * U = kept eigenvectors of AᵀA (then A U σ⁻¹, one step of subspace iteration), Ã = UᵀAU, X̃ = UᵀXU,
+ * B = X̃^½ Ã⁻¹ X̃^½; the eigenvalues κ² of BᵀB (each
+ * twice) give S = ½ Σ_i [(κ_i+½) ln(κ_i+½) − (κ_i−½) ln(κ_i−½)] and μ = ½ ± κ. The κ are taken as the
+ * reciprocal singular values of B⁻¹ = X̃^(−½) Ã X̃^(−½), in its orthogonal equivalent L⁻¹ Ã L⁻ᵀ with
+ * X̃ = L Lᵀ, which needs no Ã⁻¹ (see `whitenedMatrix` for why that keeps κ = ½ to rounding).
+ * X is symmetrised in place.
  */
 export function restrictedEntropy(
   x: DenseMatrix,
@@ -146,13 +180,34 @@ export function restrictedEntropy(
     u.data.set(vectors.subarray(source * m, (source + 1) * m), c * m);
     gramKept[c] = eig.values[source];
   }
-  const aTilde = backend.multiply(u, backend.multiply(a, u), { transposeA: true });
-  const xTilde = backend.multiply(u, backend.multiply(x, u), { transposeA: true });
+  // U leans into the dropped modes by about ε‖A‖²/(σ² − σ_dropped²), which X̃ feels at first order
+  // (S 1e-8 off, relative, with kept σ down to 2e-5 σ_max over a numerical kernel); one step of subspace
+  // iteration, A U σ⁻¹, shrinks the lean by σ_dropped/σ, for a numerical kernel to rounding (a dropped σ
+  // close to a kept one far below σ_max keeps most of it). The basis stays orthonormal to about
+  // ε(σ_max/σ)², which does not matter: the κ depend only on the subspace (X̃ and Ã change by the same
+  // congruence).
+  const basis = backend.multiply(a, u);
+  for (let c = 0; c < kept; c++) {
+    const scale = 1 / Math.sqrt(gramKept[c]);
+    for (let i = 0; i < m; i++) basis.data[i + c * m] *= scale;
+  }
+  const aTilde = backend.multiply(basis, backend.multiply(a, basis), { transposeA: true });
+  const xTilde = backend.multiply(basis, backend.multiply(x, basis), { transposeA: true });
   symmetrise(xTilde);
-  const aTildeInverse = denseMatrix(kept, kept);
-  for (let j = 0; j < kept; j++) for (let i = 0; i < kept; i++) aTildeInverse.data[i + j * kept] = aTilde.data[j + i * kept] / gramKept[i];
-  const b = whitenedInverse(xTilde, aTildeInverse, backend);
-  const kappaSquared = backend.symmetricEigen(backend.gram(b), { vectors: false }).values;
+  const aTildeInverse = () => {
+    const inverse = denseMatrix(kept, kept);
+    for (let j = 0; j < kept; j++) for (let i = 0; i < kept; i++) inverse.data[i + j * kept] = aTilde.data[j + i * kept] / gramKept[i];
+    return inverse;
+  };
+  const whitened = whitenedMatrix(xTilde, aTilde, aTildeInverse, backend);
+  const squares = backend.symmetricEigen(backend.gram(whitened.matrix), { vectors: false }).values;
+  let kappaSquared = squares;
+  if (whitened.singularValues === 'inverseKappa') {
+    // ascending 1/κ² give descending κ²; a 1/κ² under the resolution ε‖C‖² of CᵀC is held at it
+    // (κ ≳ 1e8 / ‖C‖, which no state with W_O ≥ 0 and σ above the cut reaches) so that S stays finite
+    const resolution = Number.EPSILON * squares[squares.length - 1];
+    kappaSquared = Float64Array.from(squares, (_, i) => 1 / Math.max(squares[squares.length - 1 - i], resolution));
+  }
   let sum = 0;
   for (let i = 0; i < kappaSquared.length; i++) sum += bosonicTerm(Math.sqrt(Math.max(kappaSquared[i], 0)));
   const mu: number[] = [];
