@@ -1,5 +1,13 @@
 import { z } from 'zod';
-import { engineRequestSchema, sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, vacuumSettingsSchema, vacuumStages } from './vacuum';
+import {
+  engineRequestSchema,
+  restrictedCutSchema,
+  sprinklingSpecSchema,
+  subregionSpecSchema,
+  truncationRuleSchema,
+  vacuumSettingsSchema,
+  vacuumStages,
+} from './vacuum';
 
 /**
  * Vacuum runs: one computation of the SJ state (and optionally a subregion's entropy) on one causal set.
@@ -36,6 +44,8 @@ export const reanalyseRunRequestSchema = z.strictObject({
   truncation: truncationRuleSchema.optional(),
   subregion: subregionSpecSchema.nullable().optional(),
   doubleTruncation: z.boolean().optional(),
+  /** the second cut of double truncation; carries over from the parent when absent, null for the default √n/(4π) */
+  restrictedCut: restrictedCutSchema.nullable().optional(),
   /** the parent's engine request carries over when absent; auto lets the rule pick for the new cut */
   engine: engineRequestSchema.optional(),
 });
@@ -74,6 +84,8 @@ export const runSummarySchema = z.object({
   N: z.number().int().nullable(),
   /** short text form of the truncation rule, e.g. "sqrtN" or "lambda:0.5" */
   truncation: z.string(),
+  /** short text form of the restricted cut of double truncation ("sqrtN" for √n/(4π), "lambda:0.2"); null without double truncation */
+  restrictedCut: z.string().nullable(),
   /** entropy of the subregion when one was asked and the run is done */
   S: z.number().nullable(),
   parentRunId: z.string().nullable(),
@@ -128,9 +140,16 @@ export const runResultSchema = z.object({
       S: z.number(),
       n: z.number().int(),
       modesKept: z.number().int(),
+      /** |λ| of the restricted iΔ at or below which modes were dropped */
+      cutoff: z.number().optional(),
+      doubleTruncation: z.boolean().optional(),
+      /** the second cut of double truncation; null without it */
+      restrictedCut: restrictedCutSchema.nullable().optional(),
       generalizedEigenvalues: z.array(z.number()),
     })
     .nullable(),
+  /** cautions for the rule on this dimension (e.g. a 2D cut on a 4D region), to show beside the result */
+  cautions: z.array(z.string()).optional(),
   backend: z.string(),
   engineVersion: z.string(),
   /** seconds per stage */

@@ -1,5 +1,16 @@
 import { z } from 'zod';
-import { eventSchema, formatTruncationRule, prngSchema, regionSpecSchema, truncationRuleSchema, type TruncationRule } from './vacuum';
+import {
+  effectiveRestrictedCut,
+  entropyRuleLabel,
+  eventSchema,
+  formatRestrictedCut,
+  formatTruncationRule,
+  prngSchema,
+  regionSpecSchema,
+  restrictedCutSchema,
+  truncationRuleSchema,
+  type EntropyRuleSettings,
+} from './vacuum';
 
 /**
  * Scaling studies: a grid of N values × subregions × seeds × cut rules on one kind of region, with
@@ -22,27 +33,36 @@ export const STUDY_MIN_SUBREGION_ELEMENTS = 8;
 /**
  * How entropies are computed for one column of the study:
  * - `truncation` cuts the SJ state of the whole region (shared/vacuum.ts rules);
- * - `doubleTruncation` also drops the modes of the restricted iΔ_c below √n/(4π) (Sorkin–Yazdi 2018).
+ * - `doubleTruncation` also drops the modes of the restricted iΔ_c at or below `restrictedCut`
+ *   (√n/(4π) when absent, Sorkin–Yazdi 2018; or a fixed λ).
  * Untruncated = { none, false }; the usual double truncation = { sqrtN, true }.
  */
-export const studyRuleSchema = z.strictObject({
-  truncation: truncationRuleSchema,
-  doubleTruncation: z.boolean().default(false),
-});
+export const studyRuleSchema = z
+  .strictObject({
+    truncation: truncationRuleSchema,
+    doubleTruncation: z.boolean().default(false),
+    restrictedCut: restrictedCutSchema.optional(),
+  })
+  .refine((r) => r.restrictedCut === undefined || r.doubleTruncation === true, {
+    message: 'a restricted cut applies only with double truncation',
+    path: ['restrictedCut'],
+  });
 export type StudyRule = z.infer<typeof studyRuleSchema>;
 export type StudyRuleInput = z.input<typeof studyRuleSchema>;
 
-/** Stable short key of a rule, used in exports and aggregate rows: "none", "sqrtN+double", "lambda:0.5". */
-export function studyRuleKey(rule: { truncation: TruncationRule; doubleTruncation?: boolean }): string {
-  return `${formatTruncationRule(rule.truncation)}${rule.doubleTruncation ? '+double' : ''}`;
+/**
+ * Stable short key of a rule, used in exports and aggregate rows: "none", "sqrtN+double" (restricted cut
+ * √n/(4π)), "sqrtN+double:lambda:0.2" (a fixed restricted cut), "lambda:0.5".
+ */
+export function studyRuleKey(rule: EntropyRuleSettings): string {
+  const restricted = effectiveRestrictedCut(rule);
+  const second = restricted === null ? '' : restricted.rule === 'sqrtN' ? '+double' : `+double:${formatRestrictedCut(restricted)}`;
+  return `${formatTruncationRule(rule.truncation)}${second}`;
 }
 
-/** Human label of a rule for tables and legends. */
-export function studyRuleLabel(rule: { truncation: TruncationRule; doubleTruncation?: boolean }): string {
-  if (rule.truncation.rule === 'none' && !rule.doubleTruncation) return 'untruncated';
-  if (rule.truncation.rule === 'sqrtN' && rule.doubleTruncation) return 'double-truncated (√N/4π, √n/4π)';
-  const whole = rule.truncation.rule === 'none' ? 'untruncated state' : `state cut ${formatTruncationRule(rule.truncation)}`;
-  return rule.doubleTruncation ? `${whole}, restricted cut √n/4π` : whole;
+/** Human label of a rule for tables and legends (the same words as the run page). */
+export function studyRuleLabel(rule: EntropyRuleSettings): string {
+  return entropyRuleLabel(rule);
 }
 
 const fraction = z
@@ -112,7 +132,7 @@ const rulesSchema = z
   .array(studyRuleSchema)
   .min(1, { message: 'give at least one cut rule' })
   .max(4, { message: 'at most 4 cut rules' })
-  .refine((r) => new Set(r.map((x) => studyRuleKey({ truncation: x.truncation, doubleTruncation: x.doubleTruncation ?? false }))).size === r.length, {
+  .refine((r) => new Set(r.map((x) => studyRuleKey(x))).size === r.length, {
     message: 'cut rules must differ',
   });
 
@@ -333,6 +353,8 @@ export const studyDetailSchema = studySummarySchema.extend({
   /** the imported causal sets of an imported study, in cell order (a cell's seed is the set's id); empty otherwise */
   causalSets: z.array(studyCausalSetSchema),
   ruleLabels: z.record(z.string(), z.string()),
+  /** cautions for the study's rules on its dimension (e.g. a 2D cut on 4D regions), to show beside the results */
+  cautions: z.array(z.string()),
   cells: z.array(studyCellSchema),
   aggregates: z.array(studyAggregateSchema),
   fits: z.array(studyFitSchema),

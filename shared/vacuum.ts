@@ -159,6 +159,114 @@ export function formatTruncationRule(rule: TruncationRule): string {
 }
 
 /**
+ * The second cut of double truncation (Sorkin–Yazdi 2018, CQG 35 074004): after restricting the truncated
+ * state of the whole region to a subregion of n elements, the modes of the restricted iΔ_c with |λ| at or
+ * below this cut are dropped before the entropy is solved.
+ * - sqrtN: λ_c = √n/(4π) with n the subregion's element count (the published rule, from 2D work; default);
+ * - lambda: a fixed λ_c.
+ * Without double truncation ("none") only the numerical kernel of the restricted iΔ is dropped.
+ */
+export const restrictedCutSchema = z.discriminatedUnion('rule', [
+  z.strictObject({ rule: z.literal('sqrtN') }),
+  z.strictObject({ rule: z.literal('lambda'), cut: finite.refine((v) => v >= 0, { message: 'must be ≥ 0' }) }),
+]);
+export type RestrictedCut = z.infer<typeof restrictedCutSchema>;
+export const DEFAULT_RESTRICTED_CUT: RestrictedCut = { rule: 'sqrtN' };
+
+/** Parses `sqrtN | lambda:X` (the restricted cut of double truncation); `none` gives null (no second cut). */
+export function parseRestrictedCut(text: string): RestrictedCut | null {
+  const [head, arg, extra] = text.trim().split(':');
+  if (extra === undefined && head === 'none' && arg === undefined) return null;
+  let candidate: unknown = null;
+  if (extra === undefined && head === 'sqrtN' && arg === undefined) candidate = { rule: 'sqrtN' };
+  else if (extra === undefined && head === 'lambda') candidate = { rule: 'lambda', cut: arg !== undefined && arg.trim() !== '' ? Number(arg) : Number.NaN };
+  const parsed = restrictedCutSchema.safeParse(candidate);
+  if (!parsed.success) throw new Error(`restricted cut must be one of none, sqrtN (√n/4π), lambda:X (X ≥ 0); got "${text}"`);
+  return parsed.data;
+}
+
+export function formatRestrictedCut(cut: RestrictedCut): string {
+  return cut.rule === 'sqrtN' ? 'sqrtN' : `lambda:${cut.cut}`;
+}
+
+/** The restricted cut in words and symbols: "√n/(4π)" or "λ = 0.5". */
+export function restrictedCutText(cut: RestrictedCut): string {
+  return cut.rule === 'sqrtN' ? '√n/(4π)' : `λ = ${cut.cut}`;
+}
+
+/** The restricted cut in LaTeX (math mode). */
+export function restrictedCutLatex(cut: RestrictedCut): string {
+  return cut.rule === 'sqrtN' ? '\\sqrt{n}/(4\\pi)' : `\\lambda_c = ${cut.cut}`;
+}
+
+/** The whole-region rule in words and symbols, for labels: "√N/(4π)", "knee", "λ = 0.5", "48 modes". */
+export function truncationRuleText(rule: TruncationRule): string {
+  switch (rule.rule) {
+    case 'none':
+      return 'none';
+    case 'sqrtN':
+      return '√N/(4π)';
+    case 'lambda':
+      return `λ = ${rule.cut}`;
+    case 'modes':
+      return `${rule.count} modes`;
+    case 'knee':
+      return rule.tolerance === undefined ? 'knee' : `knee (tolerance ${rule.tolerance})`;
+  }
+}
+
+/** How an entropy was computed: the whole-region rule and, with double truncation, the restricted cut. */
+export interface EntropyRuleSettings {
+  truncation: TruncationRule;
+  doubleTruncation?: boolean;
+  /** the second cut; absent with double truncation means the default √n/(4π) */
+  restrictedCut?: RestrictedCut | null;
+}
+
+/** The restricted cut that applies, or null without double truncation. */
+export function effectiveRestrictedCut(settings: EntropyRuleSettings): RestrictedCut | null {
+  return settings.doubleTruncation ? (settings.restrictedCut ?? DEFAULT_RESTRICTED_CUT) : null;
+}
+
+/**
+ * One label for an entropy rule, the same on the run page, in tables, exports and e-mails. A whole-region
+ * rule `none` with double truncation cuts only the restricted state: it is named "restricted cut only".
+ */
+export function entropyRuleLabel(settings: EntropyRuleSettings): string {
+  const restricted = effectiveRestrictedCut(settings);
+  const whole = settings.truncation;
+  if (!restricted) return whole.rule === 'none' ? 'untruncated' : `state cut ${truncationRuleText(whole)}`;
+  if (whole.rule === 'none') return `restricted cut only (${restrictedCutText(restricted)}; whole-region state untruncated)`;
+  return `double-truncated (state ${truncationRuleText(whole)}, restricted ${restrictedCutText(restricted)})`;
+}
+
+/**
+ * Cautions to show beside results computed with a rule on a region of the given dimension. The cut
+ * √N/(4π) (and its restricted form √n/(4π)) comes from 2D work (Sorkin–Yazdi 2018); in 4D it is not
+ * derived — on a 500-element 4D diamond it keeps about half of the positive modes — so a 4D result that
+ * uses it says so, and the forms offer the knee there.
+ */
+export function ruleCautions(dimension: 2 | 4, settings: EntropyRuleSettings, kept?: { modes: number; of: number }): string[] {
+  if (dimension !== 4) return [];
+  const cautions: string[] = [];
+  if (settings.truncation.rule === 'sqrtN') {
+    const here = kept ? ` Here it keeps ${kept.modes} of ${kept.of} positive modes.` : '';
+    cautions.push(
+      `The whole-region cut √N/(4π) is a rule from 2D work (Sorkin–Yazdi 2018); in 4D it is not derived and keeps a large share of the spectrum (about half the positive modes of a 500-element diamond).${here} Treat 4D results with it as a modelling choice; the knee rule is the 4D default.`,
+    );
+  }
+  if (effectiveRestrictedCut(settings)?.rule === 'sqrtN') {
+    cautions.push('The restricted cut √n/(4π) of double truncation is a 2D rule as well; in 4D its value is a modelling choice, not a derived cut.');
+  }
+  return cautions;
+}
+
+/** The truncation a new run or study proposes for a region of this dimension: √N/(4π) in 2D, the knee in 4D. */
+export function defaultTruncationFor(dimension: 2 | 4): TruncationRule {
+  return dimension === 4 ? { rule: 'knee' } : { rule: 'sqrtN' };
+}
+
+/**
  * Subregion for the entanglement entropy: a causal diamond between two events (membership by the
  * causal order of the whole region, so it respects a periodic x), or an explicit list of element labels.
  */
@@ -203,8 +311,10 @@ export const vacuumSettingsSchema = z.strictObject({
   mass: finite.refine((v) => v >= 0, { message: 'mass must be ≥ 0' }).default(0),
   truncation: truncationRuleSchema.default({ rule: 'none' }),
   subregion: subregionSpecSchema.optional(),
-  /** truncate the restricted state again at √n/(4π) before the entropy (Sorkin–Yazdi 2018) */
+  /** truncate the restricted state again before the entropy (Sorkin–Yazdi 2018), at `restrictedCut` */
   doubleTruncation: z.boolean().default(false),
+  /** the second cut of double truncation: √n/(4π) when absent; refused without double truncation */
+  restrictedCut: restrictedCutSchema.optional(),
   /**
    * dense (N×N matrices, N ≤ 6000), structured (2D non-periodic with sqrtN, lambda or modes: only the
    * modes above the cut, N ≤ 100 000) or auto (the rule in shared/engineChoice.ts)

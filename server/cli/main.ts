@@ -2,7 +2,10 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import {
+  entropyRuleLabel,
+  formatRestrictedCut,
   formatTruncationRule,
+  parseRestrictedCut,
   parseSubregion,
   parseTruncationRule,
   regionKinds,
@@ -27,7 +30,8 @@ usage:
   tacet vacuum   --points points.csv [--mass M] [--density RHO | --region R [size options]]
                  [--truncation none|sqrtN|lambda:X|modes:K|knee[:TOL]] [--json]
   tacet entropy  --points points.csv --subregion diamond:T0,X0:T1,X1 | elements:I,J,...
-                 [--truncation RULE] [--double] [--mass M] [--density RHO | --region R ...] [--json]
+                 [--truncation RULE] [--double] [--restricted-cut sqrtN|lambda:X|none]
+                 [--mass M] [--density RHO | --region R ...] [--json]
 
 region size options (defaults in brackets):
   diamond2d   --proper-time T [2√2]  or  --tips T0,X0:T1,X1
@@ -39,6 +43,9 @@ points files are CSV with a header t,x (2D) or t,x,y,z (4D). A massive field or 
 needs the density: --density, or --region with its size so the volume is known (ρ = N/V).
 --poisson: N ~ Poisson(ρV) with mean --n (or with --density RHO instead of --n).
 --double: double truncation (Sorkin–Yazdi); the whole-region rule defaults to sqrtN.
+--restricted-cut: the second cut of double truncation, on |λ| of the restricted iΔ: sqrtN [default]
+  is √n/(4π) with n the subregion's elements, lambda:X a fixed cut; sqrtN or lambda:X imply --double,
+  none means no second cut. With --truncation none it is the restricted cut only.
 --backend auto|native|ml-matrix selects the dense linear algebra.
 --engine auto|dense|structured: dense diagonalises N×N matrices (N ≤ 6000 native, 3000 ml-matrix);
   structured (2D, non-periodic, truncation sqrtN, lambda:X or modes:K) computes only the modes above
@@ -270,6 +277,7 @@ function common(result: VacuumResult) {
     mass: result.mass,
     truncation: formatTruncationRule(result.truncation),
     cutoff: result.cutoff,
+    cautions: result.cautions,
   };
 }
 
@@ -295,12 +303,13 @@ async function runVacuum(args: string[], io: Io): Promise<void> {
       `largest eigenvalues of iΔ: ${out.eigenvalues.slice(0, 5).map((v) => v.toPrecision(6)).join(', ')}`,
       `truncation ${out.truncation}: λ_c = ${out.cutoff.toPrecision(6)}, ${out.modesKept} of ${out.eigenvalues.length} positive modes kept`,
       `checks: ‖W−W†‖ ${d.hermiticityError.toExponential(1)}, min eig W ${d.smallestEigenvalue.toExponential(2)} (${d.smallestEigenvalueMethod}), ‖W−W̄−iΔc‖ ${d.commutatorError.toExponential(1)}, ‖WW̄‖ ${d.orthogonalityError.toExponential(1)}, tr W ${d.trace.toPrecision(8)}`,
+      ...result.cautions.map((c) => `caution: ${c}`),
     ].join('\n') + '\n',
   );
 }
 
 async function runEntropy(args: string[], io: Io): Promise<void> {
-  const values = parse(args, { ...computeOptions, subregion: { type: 'string' }, double: { type: 'boolean' } });
+  const values = parse(args, { ...computeOptions, subregion: { type: 'string' }, double: { type: 'boolean' }, 'restricted-cut': { type: 'string' } });
   if (values.help) return io.stdout(HELP);
   if (values.subregion === undefined) throw new UsageError('entropy needs --subregion diamond:T0,X0:T1,X1 or elements:I,J,...');
   const request = vacuumRequest(values);
@@ -310,6 +319,19 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
     throw new UsageError((error as Error).message);
   }
   request.doubleTruncation = values.double === true;
+  if (values['restricted-cut'] !== undefined) {
+    let cut;
+    try {
+      cut = parseRestrictedCut(values['restricted-cut'] as string);
+    } catch (error) {
+      throw new UsageError((error as Error).message);
+    }
+    if (cut === null && request.doubleTruncation) throw new UsageError('--double asks for a second cut and --restricted-cut none for none: give one of them');
+    if (cut !== null) {
+      request.doubleTruncation = true;
+      request.restrictedCut = cut;
+    }
+  }
   const result = await computeVacuum(request, progressHooks(io));
   const e = result.entropy!;
   const out = {
@@ -320,12 +342,15 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
     modesKept: e.modesKept,
     subregionCutoff: e.cutoff,
     doubleTruncation: e.doubleTruncation,
+    restrictedCut: e.restrictedCut ? formatRestrictedCut(e.restrictedCut) : null,
+    rule: entropyRuleLabel({ truncation: result.truncation, doubleTruncation: e.doubleTruncation, restrictedCut: e.restrictedCut }),
     generalizedEigenvalues: Array.from(e.generalizedEigenvalues),
     timings: result.timings,
   };
   if (values.json) return io.stdout(JSON.stringify(out) + '\n');
   io.stdout(
-    `S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${e.doubleTruncation ? 'double-truncated' : 'whole-region truncation ' + out.truncation}), ${e.modesKept} modes of iΔ_O kept\n`,
+    `S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${out.rule}), ${e.modesKept} modes of iΔ_O kept\n` +
+      result.cautions.map((c) => `caution: ${c}\n`).join(''),
   );
 }
 

@@ -1,6 +1,6 @@
 import { EntitySchema } from 'typeorm';
 import type { RunStatus } from '@shared/runs';
-import type { TruncationRule, VacuumStage } from '@shared/vacuum';
+import type { RestrictedCut, TruncationRule, VacuumStage } from '@shared/vacuum';
 
 /**
  * Runs and cut rules (issue 4). Like ./entities.ts: EntitySchemas only, tables made by the
@@ -19,7 +19,10 @@ export interface RunSummaryRecord {
   knee: unknown;
   diagnostics: Record<string, unknown>;
   timings: Record<string, number>;
-  entropy: { S: number; n: number; modesKept: number; cutoff: number; doubleTruncation: boolean } | null;
+  /** restrictedCut: the second cut applied (null without double truncation; absent in runs stored before it was a setting, which used √n/(4π)) */
+  entropy: { S: number; n: number; modesKept: number; cutoff: number; doubleTruncation: boolean; restrictedCut?: RestrictedCut | null } | null;
+  /** cautions for the rule on this dimension (absent in runs stored before them) */
+  cautions?: string[];
   /** which engine ran and why (absent in runs stored before the structured engine) */
   engine?: 'dense' | 'structured';
   engineReason?: string;

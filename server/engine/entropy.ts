@@ -1,10 +1,10 @@
-import type { SubregionSpec } from '../../shared/vacuum';
+import type { RestrictedCut, SubregionSpec } from '../../shared/vacuum';
 import type { DenseMatrix, LinearAlgebraBackend } from './linalg/backend';
 import { denseMatrix, getBackend } from './linalg';
 import { pairedSingularValues } from './pauliJordan';
 import { separationX } from './regions';
 import { restrictedWightman, type SjState } from './sjState';
-import { sqrtNCutoff } from './truncation';
+import { restrictedCutoff } from './truncation';
 
 export interface EntropyResult {
   S: number;
@@ -15,6 +15,8 @@ export interface EntropyResult {
   /** |λ| of iΔ_O below which modes were dropped */
   cutoff: number;
   doubleTruncation: boolean;
+  /** the second cut of double truncation that was applied; null without double truncation */
+  restrictedCut: RestrictedCut | null;
   /** the generalized eigenvalues μ of W_O v = μ iΔ_O v, in pairs μ, 1 − μ, descending */
   generalizedEigenvalues: Float64Array;
 }
@@ -147,8 +149,8 @@ function bosonicTerm(kappa: number): number {
  * CQG 35 074004). X = Re W_c|_O (symmetric) and A = Δ_c|_O (antisymmetric) may be given in any
  * orthonormal basis of a subspace holding their joint range (the n × n restriction itself, or the
  * 2k × 2k reduction of the factored state): S and the nonzero spectrum of A do not change.
- * The cut: with `doubleTruncation` the modes of AᵀA with σ ≤ √n/(4π) are dropped (n = elements of O,
- * whatever the basis size), otherwise only the numerical kernel (σ ≤ KERNEL_RELATIVE_THRESHOLD σ_max).
+ * The cut: with `doubleTruncation` the modes of AᵀA with σ at or below the restricted cut are dropped
+ * (√n/(4π) by default, n = elements of O whatever the basis size, or a fixed λ), otherwise only the numerical kernel (σ ≤ KERNEL_RELATIVE_THRESHOLD σ_max).
  * U = kept eigenvectors of AᵀA (then A U σ⁻¹, one step of subspace iteration), Ã = UᵀAU, X̃ = UᵀXU,
  * B = X̃^½ Ã⁻¹ X̃^½; the eigenvalues κ² of BᵀB (each
  * twice) give S = ½ Σ_i [(κ_i+½) ln(κ_i+½) − (κ_i−½) ln(κ_i−½)] and μ = ½ ± κ. The κ are taken as the
@@ -159,19 +161,20 @@ function bosonicTerm(kappa: number): number {
 export function restrictedEntropy(
   x: DenseMatrix,
   a: DenseMatrix,
-  cut: { n: number; doubleTruncation: boolean },
+  cut: { n: number; doubleTruncation: boolean; restrictedCut?: RestrictedCut | null },
   backend: LinearAlgebraBackend,
 ): EntropyResult {
   const { n, doubleTruncation } = cut;
+  const restrictedCut = doubleTruncation ? (cut.restrictedCut ?? { rule: 'sqrtN' as const }) : null;
   const m = a.rows;
   symmetrise(x);
   const eig = backend.symmetricEigen(backend.gram(a));
   const sigmas = pairedSingularValues(eig.values);
-  const cutoff = doubleTruncation ? sqrtNCutoff(n) : KERNEL_RELATIVE_THRESHOLD * (sigmas[0] ?? 0);
+  const cutoff = restrictedCut ? restrictedCutoff(n, restrictedCut) : KERNEL_RELATIVE_THRESHOLD * (sigmas[0] ?? 0);
   let pairs = 0;
   while (pairs < sigmas.length && sigmas[pairs] > cutoff) pairs++;
   const kept = 2 * pairs;
-  if (kept === 0) return { S: 0, n, modesKept: 0, cutoff, doubleTruncation, generalizedEigenvalues: new Float64Array(0) };
+  if (kept === 0) return { S: 0, n, modesKept: 0, cutoff, doubleTruncation, restrictedCut, generalizedEigenvalues: new Float64Array(0) };
   const u = denseMatrix(m, kept);
   const gramKept = new Float64Array(kept);
   const vectors = (eig.vectors as DenseMatrix).data;
@@ -213,20 +216,20 @@ export function restrictedEntropy(
   const mu: number[] = [];
   for (const kappa of pairedSingularValues(kappaSquared)) mu.push(0.5 + kappa, 0.5 - kappa);
   mu.sort((p, q) => q - p);
-  return { S: 0.5 * sum, n, modesKept: kept, cutoff, doubleTruncation, generalizedEigenvalues: Float64Array.from(mu) };
+  return { S: 0.5 * sum, n, modesKept: kept, cutoff, doubleTruncation, restrictedCut, generalizedEigenvalues: Float64Array.from(mu) };
 }
 
 /**
  * Sorkin's spacetime entanglement entropy of a subregion O (Sorkin 2012, arXiv:1205.2953;
  * Saravani–Sorkin–Yazdi 2014, CQG 31 214006): S = Σ μ ln|μ| over W_O v = μ iΔ_O v outside the kernel of
  * iΔ_O. Double truncation (Sorkin–Yazdi 2018): restrict the truncated W_c, iΔ_c and drop the modes of the
- * restricted iΔ_c with |λ| ≤ √n/(4π); otherwise only the numerical kernel is dropped. Restricts the
+ * restricted iΔ_c with |λ| at or below the restricted cut (√n/(4π) unless another is given); otherwise only the numerical kernel is dropped. Restricts the
  * dense state to O (A = Δ_c|_O = 2 Im W_c|_O, X = Re W_c|_O) and hands both to restrictedEntropy.
  */
 export function entanglementEntropy(
   state: SjState,
   elements: ArrayLike<number>,
-  options: { doubleTruncation?: boolean; backend?: LinearAlgebraBackend } = {},
+  options: { doubleTruncation?: boolean; restrictedCut?: RestrictedCut | null; backend?: LinearAlgebraBackend } = {},
 ): EntropyResult {
   const backend = options.backend ?? getBackend();
   const n = elements.length;
@@ -235,5 +238,5 @@ export function entanglementEntropy(
   const { real, imaginary } = restrictedWightman(state, elements, backend);
   const a = denseMatrix(n, n);
   for (let k = 0; k < a.data.length; k++) a.data[k] = 2 * imaginary.data[k];
-  return restrictedEntropy(real, a, { n, doubleTruncation }, backend);
+  return restrictedEntropy(real, a, { n, doubleTruncation, restrictedCut: options.restrictedCut }, backend);
 }

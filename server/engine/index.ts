@@ -1,9 +1,12 @@
 import {
   regionSpecSchema,
+  restrictedCutSchema,
+  ruleCautions,
   sprinklingSpecSchema,
   subregionSpecSchema,
   truncationRuleSchema,
   type RegionSpec,
+  type RestrictedCut,
   type SprinklingSpecInput,
   type SubregionSpec,
   type TruncationRule,
@@ -93,6 +96,8 @@ export interface VacuumRequest {
   truncation?: TruncationRule;
   subregion?: SubregionSpec;
   doubleTruncation?: boolean;
+  /** the second cut of double truncation (default √n/(4π)); only with doubleTruncation */
+  restrictedCut?: RestrictedCut;
   backend?: BackendPreference | LinearAlgebraBackend;
   /** also return the SJ state (kept eigenvectors and Δ) for further use (dense engine only) */
   keepState?: boolean;
@@ -149,6 +154,8 @@ export interface VacuumResult {
   knee: KneeFit | null;
   diagnostics: SjDiagnostics;
   entropy: (EntropyResult & { elements: Int32Array }) | null;
+  /** cautions for the rule used on this dimension (shared/vacuum.ts ruleCautions), to show beside the result */
+  cautions: string[];
   /** seconds per stage */
   timings: Partial<Record<VacuumStage, number>>;
   state?: SjState;
@@ -330,6 +337,11 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
     }
   }
   if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion', 'doubleTruncation');
+  if (request.restrictedCut !== undefined) {
+    if (!request.doubleTruncation) fail('restrictedCut: a restricted cut applies only with double truncation (doubleTruncation: true)');
+    const parsed = restrictedCutSchema.safeParse(request.restrictedCut);
+    if (!parsed.success) fail(`invalid restrictedCut: ${zodMessage(parsed.error)}`);
+  }
 }
 
 function relationFromWords(words: Uint32Array, count: number): BitRelation {
@@ -459,7 +471,7 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
       if (elements.length < 2) {
         throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
       }
-      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, backend }), elements };
+      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements };
     });
   }
 
@@ -485,6 +497,11 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     knee: truncation.knee ?? null,
     diagnostics,
     entropy,
+    cautions: ruleCautions(
+      dimension,
+      { truncation: truncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut },
+      { modes: truncation.modesKept, of: spectrum.positive.length },
+    ),
     timings,
     ...(request.keepState ? { state } : {}),
   };

@@ -1,4 +1,4 @@
-import type { TruncationRule } from '../../shared/vacuum';
+import type { RestrictedCut, TruncationRule } from '../../shared/vacuum';
 
 export interface KneeFit {
   /** the continuum-like law of the kept modes, λ_k ≈ amplitude · k^(−exponent) */
@@ -28,6 +28,11 @@ export interface TruncationResult {
 /** Sorkin–Yazdi 2018 (CQG 35 074004; recalled from memory): the 2D cut √N/(4π). */
 export function sqrtNCutoff(size: number): number {
   return Math.sqrt(size) / (4 * Math.PI);
+}
+
+/** The second cut of double truncation on a subregion of `elements` elements: √n/(4π) or a fixed λ. */
+export function restrictedCutoff(elements: number, cut: RestrictedCut): number {
+  return cut.rule === 'sqrtN' ? sqrtNCutoff(elements) : cut.cut;
 }
 
 function countAbove(descending: Float64Array, cut: number): number {

@@ -138,7 +138,7 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
     }
     for (const { rule, key, state } of states) {
       if (hooks.shouldCancel?.()) throw new CancelledError('entropy');
-      const e = entanglementEntropy(state, elements, { doubleTruncation: rule.doubleTruncation, backend });
+      const e = entanglementEntropy(state, elements, { doubleTruncation: rule.doubleTruncation, restrictedCut: rule.restrictedCut, backend });
       entropies.push({ subregion: subregion.key, rule: key, n: e.n, S: e.S, modesKept: e.modesKept, cutoff: e.cutoff });
       hooks.onProgress?.('entropy', entropies.length / total);
       await new Promise((resolve) => setImmediate(resolve));

@@ -1,6 +1,13 @@
-import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyStatus } from '../../shared/studies';
+import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyRule, StudyStatus } from '../../shared/studies';
 import { studyRuleKey, studyRuleLabel } from '../../shared/studies';
-import type { RegionSpec } from '../../shared/vacuum';
+import {
+  effectiveRestrictedCut,
+  formatRestrictedCut,
+  formatTruncationRule,
+  restrictedCutText,
+  ruleCautions,
+  type RegionSpec,
+} from '../../shared/vacuum';
 
 /** What every export of a study is made from (the service loads it; these functions are pure). */
 export interface StudyExportInput {
@@ -44,25 +51,51 @@ export function csvField(value: string): string {
 const csv = (header: string[], rows: (string | number)[][]) =>
   [header.join(','), ...rows.map((r) => r.map((c) => csvField(String(c))).join(','))].join('\n') + '\n';
 
+/**
+ * The two cuts of each rule key as CSV columns: the whole-region rule and the restricted cut of double
+ * truncation ("none" without it), so a reader of the file needs no key to decode.
+ */
+function ruleColumns(rules: StudyRule[]): (key: string) => [string, string] {
+  const byKey = new Map(rules.map((r) => {
+    const restricted = effectiveRestrictedCut(r);
+    return [studyRuleKey(r), [formatTruncationRule(r.truncation), restricted ? formatRestrictedCut(restricted) : 'none'] as [string, string]];
+  }));
+  return (key) => byKey.get(key) ?? ['', ''];
+}
+
 /** Tidy CSV: one row per computed entropy (one sprinkling, subregion and rule). */
-export function tidyCsv(entropies: StudyEntropy[]): string {
+export function tidyCsv(entropies: StudyEntropy[], rules: StudyRule[]): string {
+  const columns = ruleColumns(rules);
   return csv(
-    ['cell', 'N', 'elements', 'seed', 'subregion', 'l_over_L', 'rule', 'n', 'S', 'modes_kept', 'cutoff', 'state_modes_kept', 'state_cutoff'],
+    ['cell', 'N', 'elements', 'seed', 'subregion', 'l_over_L', 'rule', 'state_rule', 'restricted_cut', 'n', 'S', 'modes_kept', 'cutoff', 'state_modes_kept', 'state_cutoff'],
     entropies.map((e) => [
-      e.cellId, e.N, e.elements, e.seed, e.subregion, e.fraction === null ? '' : String(e.fraction), e.rule, e.n, full(e.S),
+      e.cellId, e.N, e.elements, e.seed, e.subregion, e.fraction === null ? '' : String(e.fraction), e.rule, ...columns(e.rule), e.n, full(e.S),
       e.modesKept, full(e.cutoff), e.stateModesKept, full(e.stateCutoff),
     ]),
   );
 }
 
 /** The aggregate table: one row per (N, subregion, rule). */
-export function aggregatesCsv(aggregates: StudyAggregate[]): string {
+export function aggregatesCsv(aggregates: StudyAggregate[], rules: StudyRule[]): string {
+  const columns = ruleColumns(rules);
   return csv(
-    ['N', 'subregion', 'l_over_L', 'rule', 'seeds', 'mean_elements', 'mean_n', 'mean_S', 'sd_S', 'se_S'],
+    ['N', 'subregion', 'l_over_L', 'rule', 'state_rule', 'restricted_cut', 'seeds', 'mean_elements', 'mean_n', 'mean_S', 'sd_S', 'se_S'],
     aggregates.map((a) => [
-      a.N, a.subregion, a.fraction === null ? '' : String(a.fraction), a.rule, a.seeds, full(a.meanElements), full(a.meanN), full(a.meanS), full(a.sdS), full(a.seS),
+      a.N, a.subregion, a.fraction === null ? '' : String(a.fraction), a.rule, ...columns(a.rule), a.seeds, full(a.meanElements), full(a.meanN), full(a.meanS), full(a.sdS), full(a.seS),
     ]),
   );
+}
+
+/** The dimension of the study's regions: its region's, or that of its imported sets. */
+export function studyDimension(input: Pick<StudyExportInput, 'request' | 'causalSets'>): 2 | 4 {
+  if (input.request.source === 'sprinkled') return input.request.region.kind === 'diamond4d' ? 4 : 2;
+  return input.causalSets.some((c) => c.dimension === 4) ? 4 : 2;
+}
+
+/** The cautions of every rule of the study (shared/vacuum.ts ruleCautions), without repeats. */
+export function studyCautions(input: Pick<StudyExportInput, 'request' | 'causalSets'>): string[] {
+  const dimension = studyDimension(input);
+  return [...new Set(input.request.rules.flatMap((r) => ruleCautions(dimension, r)))];
 }
 
 // ---- LaTeX ----
@@ -84,6 +117,7 @@ export function escapeLatex(text: string): string {
     .replace(/ℓ/g, '$\\ell$')
     .replace(/√/g, '$\\surd$')
     .replace(/π/g, '$\\pi$')
+    .replace(/λ/g, '$\\lambda$')
     .replace(/≤/g, '$\\leq$')
     .replace(/–/g, '--');
 }
@@ -103,6 +137,11 @@ function latexRule(rule: string): string {
   if (rule === 'none') return 'untruncated';
   if (rule === 'sqrtN+double') return 'double-truncated';
   return `\\texttt{${escapeLatex(rule)}}`;
+}
+
+/** A rule in the caption: its key and its label, which names the restricted cut of double truncation. */
+function latexRuleDescription(rule: StudyRule): string {
+  return `${latexRule(studyRuleKey(rule))} (${escapeLatex(studyRuleLabel(rule))})`;
 }
 
 function regionText(region: RegionSpec): string {
@@ -158,7 +197,8 @@ export function latexTable(input: StudyExportInput): string {
       : `Spacetime entanglement entropy $S$ of ${what} of ${input.causalSets.length} imported causal set${input.causalSets.length === 1 ? '' : 's'} ` +
         `(${importedSetList(input.causalSets)}) with $N \\in \\{${[...new Set(input.causalSets.map((c) => c.N))].sort((a, b) => a - b).join(', ')}\\}$, field mass $m = ${request.mass}$. `,
     `Means over ${request.source === 'sprinkled' ? 'seeds' : 'the causal sets of each $N$'} with their standard errors; $\\langle n \\rangle$ is the mean number of elements in the subregion. `,
-    `Rules: ${request.rules.map((r) => `${latexRule(studyRuleKey(r))} (${escapeLatex(studyRuleLabel(r))})`).join('; ')}.`,
+    `Rules: ${request.rules.map(latexRuleDescription).join('; ')}.`,
+    ...studyCautions(input).map((c) => ` Caution: ${escapeLatex(c)}`),
   ].join('');
   lines.push(`  \\caption{${caption}}`);
   lines.push(`  \\label{tab:tacet-study-${id8}}`);
@@ -391,8 +431,13 @@ export function methodsParagraph(input: StudyExportInput): string {
   const unit = request.source === 'sprinkled' ? 'sprinkling' : 'causal set';
   const ruleTexts = request.rules.map((r) => {
     if (r.truncation.rule === 'none' && !r.doubleTruncation) return 'without truncation (only the numerical kernel of the restricted Pauli–Jordan operator, below 10⁻⁶ of its largest eigenvalue, is dropped)';
+    const restricted = effectiveRestrictedCut(r);
+    const second = restricted
+      ? `the restricted operator again at ${restricted.rule === 'sqrtN' ? 'λ = √n/(4π), n the number of elements in the subregion' : `the fixed ${restrictedCutText(restricted)}`} (double truncation, ${references.sorkin2018!.short})`
+      : '';
+    if (r.truncation.rule === 'none') return `without truncating the SJ state of the whole region but cutting ${second} (restricted cut only)`;
     const whole = r.truncation.rule === 'sqrtN' ? `truncating the SJ state of the whole region at λ_c = √N/(4π) ${cite('sorkin2018')}` : `truncating the SJ state of the whole region with the rule ${studyRuleKey({ truncation: r.truncation })}`;
-    return r.doubleTruncation ? `${whole} and the restricted operator again at √n/(4π) (double truncation, ${references.sorkin2018!.short})` : whole;
+    return restricted ? `${whole} and ${second}` : whole;
   });
   const versions = [...new Set(input.cells.map((c) => c.engineVersion).filter((v): v is string => v !== null))];
   const backends = [...new Set(input.cells.map((c) => c.backend).filter((v): v is string => v !== null))];
@@ -410,6 +455,7 @@ export function methodsParagraph(input: StudyExportInput): string {
     `On each causal set we built the retarded Green function of ${mass} ${cite('johnston2008', 'johnston2009')}, the Pauli–Jordan operator iΔ = i(K − Kᵀ), and the Sorkin–Johnston state as the positive spectral part of iΔ ${cite('sorkin2011', 'afshordi2012')}, from one real symmetric eigendecomposition of ΔᵀΔ.`,
     `For ${sizes} we computed Sorkin's spacetime entanglement entropy S = Σ μ ln|μ| from the generalised eigenvalue problem W_O v = μ iΔ_O v restricted to the subregion ${cite('sorkin2012', 'saravani2014')}, ${ruleTexts.join('; and ')}.`,
     `For each N, subregion and rule we report the mean over ${request.source === 'sprinkled' ? 'seeds' : 'the causal sets of that N'} of S and of the number n of elements in the subregion, with the standard error of the mean, and fit by weighted least squares (weights 1/σ² from the standard errors) S = b ln √n + c and S = a n + c′. In the continuum a free boson gives b = 1/3 ${cite('calabrese2004')}; on causal sets this is recovered only after double truncation, while the untruncated entropy follows a spacetime volume law ${cite('saravani2014', 'sorkin2018')}.`,
+    ...studyCautions(input).map((c) => `Caution: ${c}`),
     `Cautions: these are finite causal sets, so finite-size and finite-density effects bias the fitted coefficients, most at small n; the truncation rule is a modelling choice that changes the numbers, and a different cut gives a different b; and the quoted values are ensemble means over ${ensemble} ${unit}${ensemble === 1 ? '' : 's'} in all, whose single realisations scatter by a few tenths.`,
     `Computed with ${versions.join(', ') || 'the Tacet engine'} (linear algebra: ${backends.join(', ') || 'not recorded'}); study ${input.id}.`,
   ];
@@ -434,7 +480,14 @@ export function provenanceJson(input: StudyExportInput, exportedAt: Date = new D
     seeds: input.request.source === 'sprinkled' ? input.request.seeds : null,
     /** the imported sets in cell order: a cell's seed is its set's id */
     causalSets: input.request.source === 'imported' ? input.causalSets : null,
-    rules: input.request.rules.map((r) => ({ key: studyRuleKey(r), label: studyRuleLabel(r), truncation: r.truncation, doubleTruncation: r.doubleTruncation })),
+    rules: input.request.rules.map((r) => ({
+      key: studyRuleKey(r),
+      label: studyRuleLabel(r),
+      truncation: r.truncation,
+      doubleTruncation: r.doubleTruncation,
+      restrictedCut: effectiveRestrictedCut(r),
+      cautions: ruleCautions(studyDimension(input), r),
+    })),
     subregions: input.subregions,
     engine: {
       versions: [...new Set(input.cells.map((c) => c.engineVersion).filter((v) => v !== null))],

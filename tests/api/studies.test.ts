@@ -125,7 +125,9 @@ describe('a tiny study from POST to exports', () => {
     expect(done.fits.filter((f) => f.rule === 'sqrtN+double' && f.model === 'log').map((f) => f.subregion)).toEqual([null, 'l/L=0.5', 'l/L=0.7']);
     expect(done.spectra.map((s) => [s.N, s.seed])).toEqual([[80, 's-1'], [160, 's-1']]);
     expect(done.spectra[1]!.cuts).toEqual([{ rule: 'sqrtN+double', cutoff: Math.sqrt(160) / (4 * Math.PI) }]);
-    expect(done.ruleLabels).toEqual({ none: 'untruncated', 'sqrtN+double': 'double-truncated (√N/4π, √n/4π)' });
+    expect(done.ruleLabels).toEqual({ none: 'untruncated', 'sqrtN+double': 'double-truncated (state √N/(4π), restricted √n/(4π))' });
+    // a 2D study with these rules needs no caution
+    expect(done.cautions).toEqual([]);
     expect(done.backends.length).toBe(1);
     expect(done.engineVersion).toMatch(/^tacet-engine/);
   });
@@ -160,7 +162,10 @@ describe('a tiny study from POST to exports', () => {
     expect(parseCsv(tidy.text).rows).toHaveLength(16);
 
     const aggregates = parseCsv((await get('aggregates-csv')).text);
-    expect(aggregates.header).toEqual(['N', 'subregion', 'l_over_L', 'rule', 'seeds', 'mean_elements', 'mean_n', 'mean_S', 'sd_S', 'se_S']);
+    expect(aggregates.header).toEqual(['N', 'subregion', 'l_over_L', 'rule', 'state_rule', 'restricted_cut', 'seeds', 'mean_elements', 'mean_n', 'mean_S', 'sd_S', 'se_S']);
+    // each row spells out its two cuts: the whole-region rule and the restricted cut of double truncation
+    const cuts = new Set(aggregates.rows.map((r) => `${r[3]}|${r[4]}|${r[5]}`));
+    expect(cuts).toEqual(new Set(['none|none|none', 'sqrtN+double|sqrtN|sqrtN']));
     expect(aggregates.rows).toHaveLength(8);
 
     const latex = (await get('latex')).text;

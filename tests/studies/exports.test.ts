@@ -108,12 +108,13 @@ describe('CSV, JSON, BibTeX and methods', () => {
   it('quotes CSV fields that need it and writes full precision', () => {
     expect(csvField('a,1')).toBe('"a,1"');
     expect(csvField('say "hi"')).toBe('"say ""hi"""');
-    const tidy = tidyCsv(input().entropies).trimEnd().split('\n');
+    const tidy = tidyCsv(input().entropies, input().request.rules).trimEnd().split('\n');
     expect(tidy).toHaveLength(1 + 8);
     expect(tidy[1]).toContain('"a,1"');
     // S = n/4 = 12.5 for N = 200, seed a,1, untruncated: written with 17 significant digits
-    expect(tidy[1]).toContain(',none,50,12.500000000000000,');
-    const agg = aggregatesCsv(input().aggregates).trimEnd().split('\n');
+    // rule key, then its two cuts spelled out (state rule, restricted cut)
+    expect(tidy[1]).toContain(',none,none,none,50,12.500000000000000,');
+    const agg = aggregatesCsv(input().aggregates, input().request.rules).trimEnd().split('\n');
     expect(agg).toHaveLength(1 + 4);
   });
 

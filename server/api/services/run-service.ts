@@ -9,7 +9,7 @@ import {
   type RunResult,
   type RunSummary,
 } from '@shared/runs';
-import { formatTruncationRule, type SprinklingSpec, type SubregionSpec, type TruncationRule } from '@shared/vacuum';
+import { effectiveRestrictedCut, formatRestrictedCut, formatTruncationRule, ruleCautions, type RestrictedCut, type SprinklingSpec, type SubregionSpec, type TruncationRule } from '@shared/vacuum';
 import { decodeFloat64, decodeInt32 } from '../../db/arrays';
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
@@ -34,6 +34,8 @@ export interface StoredRunRequest {
   truncation: TruncationRule;
   subregion?: SubregionSpec;
   doubleTruncation: boolean;
+  /** the second cut of double truncation; absent: √n/(4π) */
+  restrictedCut?: RestrictedCut;
   sprinkling?: SprinklingSpec;
   reusedPoints?: { runId: string; N: number; density: number | null };
   /** an imported causal set; its elements are copied into the run's row */
@@ -57,6 +59,7 @@ export function toEngineRequest(
     truncation: request.truncation,
     subregion: request.subregion,
     doubleTruncation: request.doubleTruncation,
+    ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
     ...(request.engine ? { engine: request.engine } : {}),
   };
   if (request.causalSet?.kind === 'relations') {
@@ -109,6 +112,12 @@ function validateForEngine(request: Omit<VacuumRequest, 'backend'>): void {
 
 const id8 = (id: string) => id.slice(0, 8);
 
+/** The restricted cut a stored run applies, in short text form; null without double truncation. */
+function restrictedCutOf(request: StoredRunRequest): string | null {
+  const cut = request.subregion ? effectiveRestrictedCut({ truncation: request.truncation, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut }) : null;
+  return cut ? formatRestrictedCut(cut) : null;
+}
+
 export function toRunSummary(row: RunWithAuthor): RunSummary {
   return {
     id: row.id,
@@ -124,6 +133,7 @@ export function toRunSummary(row: RunWithAuthor): RunSummary {
     regionKind: row.regionKind,
     N: row.n ?? row.requestedN,
     truncation: row.truncationText,
+    restrictedCut: restrictedCutOf(row.request as unknown as StoredRunRequest),
     S: row.entropyS,
     parentRunId: row.parentRunId,
   };
@@ -172,9 +182,12 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         modesKept: s.modesKept,
         knee: (s.knee ?? null) as RunResult['knee'],
         diagnostics: s.diagnostics as RunResult['diagnostics'],
+        cautions: s.cautions ?? ruleCautions(row.dimension, row.request as unknown as StoredRunRequest),
         entropy: s.entropy
           ? {
               ...s.entropy,
+              // runs stored before the restricted cut was a setting cut at √n/(4π) when doubly truncated
+              restrictedCut: s.entropy.restrictedCut !== undefined ? s.entropy.restrictedCut : s.entropy.doubleTruncation ? { rule: 'sqrtN' } : null,
               generalizedEigenvalues: arrays!.generalizedEigenvalues ? Array.from(decodeFloat64(arrays!.generalizedEigenvalues)) : [],
             }
           : null,
@@ -227,6 +240,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           truncation: request.truncation,
           ...(request.subregion ? { subregion: request.subregion } : {}),
           doubleTruncation: request.doubleTruncation,
+          ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
           ...(request.engine ? { engine: request.engine } : {}),
           causalSet: imported.reference,
         };
@@ -255,6 +269,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         truncation: request.truncation,
         ...(request.subregion ? { subregion: request.subregion } : {}),
         doubleTruncation: request.doubleTruncation,
+        ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
         ...(request.engine ? { engine: request.engine } : {}),
         sprinkling,
       };
@@ -311,14 +326,18 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       if (!arrays?.points) throw conflict('points_missing', 'The run has no stored points to re-analyse.');
       const base = parent.request as unknown as StoredRunRequest;
       const subregion = changes.subregion === null ? undefined : (changes.subregion ?? base.subregion);
+      // a parent's double truncation lapses with its subregion unless asked for again
+      const doubleTruncation = changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false);
+      // the restricted cut carries over with double truncation; null asks for the default √n/(4π)
+      const restrictedCut = !doubleTruncation ? undefined : changes.restrictedCut === null ? undefined : (changes.restrictedCut ?? base.restrictedCut);
       const title = changes.title || (parent.title ? `${parent.title} (re-analysis)` : `Re-analysis of ${id8(parent.id)}`);
       const stored: StoredRunRequest = {
         title,
         mass: changes.mass ?? base.mass,
         truncation: changes.truncation ?? base.truncation,
         ...(subregion ? { subregion } : {}),
-        // a parent's double truncation lapses with its subregion unless asked for again
-        doubleTruncation: changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false),
+        doubleTruncation,
+        ...(restrictedCut ? { restrictedCut } : {}),
         ...(base.sprinkling ? { sprinkling: base.sprinkling } : {}),
         ...(base.causalSet ? { causalSet: base.causalSet } : {}),
         // the parent's engine request carries over unless the change names one (the rule may still

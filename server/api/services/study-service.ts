@@ -27,6 +27,7 @@ import { decodeRelationWords } from './causal-set-service';
 import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
 import {
   aggregatesCsv,
+  studyCautions,
   bibtex,
   latexTable,
   methodsParagraph,
@@ -378,6 +379,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
         subregions: row.subregions,
         causalSets: row.causalSets ?? [],
         ruleLabels: ruleLabels(request),
+        cautions: studyCautions({ request, causalSets: row.causalSets ?? [] }),
         cells: cells.map((c) => ({
           id: c.id,
           N: c.requestedN,
@@ -421,9 +423,9 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       const base = `tacet-study-${row.id.slice(0, 8)}`;
       switch (format) {
         case 'csv':
-          return { body: tidyCsv(input.entropies), contentType: 'text/csv; charset=utf-8', filename: `${base}-entropies.csv` };
+          return { body: tidyCsv(input.entropies, input.request.rules), contentType: 'text/csv; charset=utf-8', filename: `${base}-entropies.csv` };
         case 'aggregates-csv':
-          return { body: aggregatesCsv(input.aggregates), contentType: 'text/csv; charset=utf-8', filename: `${base}-aggregates.csv` };
+          return { body: aggregatesCsv(input.aggregates, input.request.rules), contentType: 'text/csv; charset=utf-8', filename: `${base}-aggregates.csv` };
         case 'latex':
           return { body: latexTable(input), contentType: 'text/x-tex; charset=utf-8', filename: `${base}-table.tex` };
         case 'json':

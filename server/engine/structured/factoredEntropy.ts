@@ -1,4 +1,5 @@
 import { restrictedEntropy, type EntropyResult } from '../entropy';
+import type { RestrictedCut } from '../../../shared/vacuum';
 import type { DenseMatrix, LinearAlgebraBackend } from '../linalg/backend';
 import { denseMatrix, getBackend } from '../linalg';
 import type { FactoredSjState } from './factoredState';
@@ -16,14 +17,14 @@ const NULL_DIRECTION_RELATIVE = 1e-14;
  * rank ≤ 2k. With the Gram matrix G = FᵀF = V Λ Vᵀ, the columns of Q = F V Λ^(−½) are an orthonormal basis
  * of their range and QᵀF = R = Λ^½ Vᵀ, so X and A act on that range as the 2k × 2k matrices R D Rᵀ and
  * R J Rᵀ — no division by Λ is ever done. The dense engine's inner routine (entropy.ts restrictedEntropy:
- * restricted modes of AᵀA above √n/(4π), B = X̃^½ Ã⁻¹ X̃^½, S from the κ of BᵀB) then runs on those small matrices, since
+ * restricted modes of AᵀA above the restricted cut, B = X̃^½ Ã⁻¹ X̃^½, S from the κ of BᵀB) then runs on those small matrices, since
  * S and the nonzero spectrum of A are unchanged by the orthonormal change of basis. Cost O(n k²) for G
  * and O(k³) for the rest.
  */
 export function factoredEntropy(
   state: FactoredSjState,
   elements: ArrayLike<number>,
-  options: { doubleTruncation?: boolean; backend?: LinearAlgebraBackend } = {},
+  options: { doubleTruncation?: boolean; restrictedCut?: RestrictedCut | null; backend?: LinearAlgebraBackend } = {},
 ): EntropyResult {
   const backend = options.backend ?? getBackend();
   const doubleTruncation = options.doubleTruncation === true;
@@ -79,5 +80,5 @@ export function factoredEntropy(
   }
   const x = backend.multiply(rd, reduced, { transposeB: true });
   const a = backend.multiply(rj, reduced, { transposeB: true });
-  return restrictedEntropy(x, a, { n, doubleTruncation }, backend);
+  return restrictedEntropy(x, a, { n, doubleTruncation, restrictedCut: options.restrictedCut }, backend);
 }

@@ -1,5 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq';
-import { vacuumStages, type VacuumStage } from '../../../shared/vacuum';
+import { entropyRuleLabel, vacuumStages, type VacuumStage } from '../../../shared/vacuum';
 import { decodeRelationWords } from '../../api/services/causal-set-service';
 import { toEngineRequest, vacuumRunJobName, type StoredRunRequest } from '../../api/services/run-service';
 import { decodeFloat64, encodeFloat64, encodeInt32 } from '../../db/arrays';
@@ -75,8 +75,10 @@ export function outcomeOf(result: VacuumResult): runs.RunOutcome {
           modesKept: result.entropy.modesKept,
           cutoff: result.entropy.cutoff,
           doubleTruncation: result.entropy.doubleTruncation,
+          restrictedCut: result.entropy.restrictedCut,
         }
       : null,
+    cautions: result.cautions,
     engine: result.engine,
     engineReason: result.engineReason,
   };
@@ -122,7 +124,11 @@ async function notifyAuthor(context: WorkerContext, run: RunRow, status: 'done' 
 
 function doneDetail(result: VacuumResult): string {
   const lines = [`N = ${result.N}, modes kept ${result.modesKept} of ${result.eigenvalues.length} (cut λ = ${result.cutoff.toPrecision(6)}).`];
-  if (result.entropy) lines.push(`Entropy of the subregion (${result.entropy.n} elements): S = ${result.entropy.S.toPrecision(6)}.`);
+  if (result.entropy) {
+    const rule = entropyRuleLabel({ truncation: result.truncation, doubleTruncation: result.entropy.doubleTruncation, restrictedCut: result.entropy.restrictedCut });
+    lines.push(`Entropy of the subregion (${result.entropy.n} elements, ${rule}): S = ${result.entropy.S.toPrecision(6)}.`);
+  }
+  for (const caution of result.cautions) lines.push(`Caution: ${caution}`);
   return lines.join('\n');
 }
 
