@@ -182,7 +182,15 @@ describe('light cone of the subregion tips (c = 1; common practice)', () => {
 });
 
 describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
-  const base = { title: '', mass: '0', truncation: { kind: 'sqrtN' as const, value: '' }, withSubregion: false, doubleTruncation: true, engine: 'auto' as const };
+  const base = {
+    title: '',
+    mass: '0',
+    truncation: { kind: 'sqrtN' as const, value: '' },
+    withSubregion: false,
+    doubleTruncation: true,
+    restrictedCut: { kind: 'sqrtN' as const, value: '' },
+    engine: 'auto' as const,
+  };
   const tips = { past: { t: '-0.5', x: '0', y: '0', z: '0' }, future: { t: '0.5', x: '0', y: '0', z: '0' } };
 
   it('sends subregion null to drop it, and no double truncation without one', () => {
@@ -202,9 +210,17 @@ describe('re-analysis form → POST /api/runs/:id/reanalyse body', () => {
     const values = initialReanalyseValues(parent);
     expect(values.truncation).toEqual({ kind: 'modes', value: '40' });
     expect(values.withSubregion).toBe(true);
-    // a parent without an engine request ran under auto, and says so explicitly now
-    expect(reanalyseRequestFromForm(values, 2)).toEqual({ ok: true, request: { ...parent, engine: 'auto' } });
-    expect(reanalyseRequestFromForm(initialReanalyseValues({ ...parent, engine: 'dense' }), 2)).toEqual({ ok: true, request: { ...parent, engine: 'dense' } });
+    // a parent without an engine request ran under auto, and says so explicitly now; its restricted cut
+    // was the default √n/(4π), which the form sends as null (the default)
+    expect(reanalyseRequestFromForm(values, 2)).toEqual({ ok: true, request: { ...parent, restrictedCut: null, engine: 'auto' } });
+    expect(reanalyseRequestFromForm(initialReanalyseValues({ ...parent, engine: 'dense' }), 2)).toEqual({
+      ok: true,
+      request: { ...parent, restrictedCut: null, engine: 'dense' },
+    });
+    // a fixed restricted λ of the parent is shown and sent again
+    const fixed = { ...parent, restrictedCut: { rule: 'lambda' as const, cut: 0.25 } };
+    expect(initialReanalyseValues(fixed).restrictedCut).toEqual({ kind: 'lambda', value: '0.25' });
+    expect(reanalyseRequestFromForm(initialReanalyseValues(fixed), 2)).toEqual({ ok: true, request: { ...fixed, engine: 'auto' } });
     expect(initialReanalyseValues(null).truncation).toEqual({ kind: 'sqrtN', value: '' });
   });
 

@@ -2,23 +2,27 @@ import { useState, type FormEvent } from 'react';
 import { useNavigate } from 'react-router';
 import type { CausalSetSummary } from '@shared/causalSets';
 import { createRunRequestSchema } from '@shared/runs';
-import { parseSubregion } from '@shared/vacuum';
+import { defaultTruncationFor, parseSubregion } from '@shared/vacuum';
 import { isApiError } from '../../../lib/apiClient';
 import { validate, type FieldErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
-import { parseNumber, truncationFieldMessages, truncationFromForm, truncationKinds, type TruncationFormValues } from '../../cutRules/lib/truncationForm';
+import { parseNumber, truncationFieldMessages, truncationFromForm, truncationKinds, truncationToForm, type TruncationFormValues } from '../../cutRules/lib/truncationForm';
 import { useCreateRun } from '../../runs/api/runs';
 import { Checkbox } from '../../runs/components/Checkbox';
+import { RestrictedCutFields } from '../../runs/components/SubregionFields';
+import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
 
 /** A vacuum run on this causal set in place of a sprinkling: truncation, mass and an optional subregion. */
 export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {
   const navigate = useNavigate();
   const createRun = useCreateRun();
-  const [truncation, setTruncation] = useState<TruncationFormValues>({ kind: 'sqrtN', value: '' });
+  // √N/(4π) is a 2D rule: a 4D set starts from the knee
+  const [truncation, setTruncation] = useState<TruncationFormValues>(() => truncationToForm(defaultTruncationFor(set.dimension)));
   const [mass, setMass] = useState('0');
   const [subregion, setSubregion] = useState('');
   const [doubleTruncation, setDoubleTruncation] = useState(false);
+  const [restrictedCut, setRestrictedCut] = useState<RestrictedCutFormValues>({ ...defaultRestrictedCutForm });
   const [errors, setErrors] = useState<FieldErrors>({});
   const [formError, setFormError] = useState<string | null>(null);
   const kind = truncationKinds.find((k) => k.kind === truncation.kind)!;
@@ -41,10 +45,11 @@ export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {
       title: `${set.name}`,
       mass: parseNumber(mass) ?? 0,
       truncation: truncationFromForm(truncation),
-      ...(parsedSubregion ? { subregion: parsedSubregion, doubleTruncation } : {}),
+      ...(parsedSubregion ? { subregion: parsedSubregion, doubleTruncation, restrictedCut: restrictedCutFromForm(doubleTruncation, restrictedCut) } : {}),
     };
     const checked = validate(createRunRequestSchema, body);
-    if (!checked.ok) for (const [path, message] of Object.entries(checked.errors)) found[path] ??= truncationFieldMessages[path] ?? message;
+    const messages: Record<string, string> = { ...truncationFieldMessages, 'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.' };
+    if (!checked.ok) for (const [path, message] of Object.entries(checked.errors)) found[path] ??= messages[path] ?? message;
     setErrors(found);
     if (!checked.ok || Object.keys(found).length) return;
     try {
@@ -73,7 +78,8 @@ export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {
         <TextField label="Mass m" name="mass" inputMode="decimal" className="figures" value={mass} onChange={(e) => setMass(e.target.value)} error={errors.mass} hint={set.density === null ? 'needs a density; this set has none' : 'units c = 1'} />
       </div>
       <TextField label="Subregion for the entropy (optional)" name="subregion" className="figures" value={subregion} onChange={(e) => setSubregion(e.target.value)} error={errors.subregion} placeholder={exampleSubregion} hint={set.kind === 'relations' ? 'elements:I,J,… (element labels)' : 'diamond:T0,X0:T1,X1 between two tips, or elements:I,J,…'} />
-      {subregion.trim() && <Checkbox label="Double truncation" hint="Cut the restricted state again at √n/(4π) before the entropy (Sorkin–Yazdi)." checked={doubleTruncation} onChange={setDoubleTruncation} />}
+      {subregion.trim() && <Checkbox label="Double truncation" hint="Cut the restricted state again before the entropy (Sorkin–Yazdi), at the restricted cut below." checked={doubleTruncation} onChange={setDoubleTruncation} />}
+      {subregion.trim() && doubleTruncation && <RestrictedCutFields value={restrictedCut} onChange={setRestrictedCut} error={errors['restrictedCut.cut']} />}
       <FormError message={formError} />
       <div>
         <Button type="submit" busy={createRun.isPending}>

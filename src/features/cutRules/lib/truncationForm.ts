@@ -85,6 +85,14 @@ export function describeTruncation(rule: TruncationRule): string {
   }
 }
 
+/** The restricted cut's short text form ("sqrtN", "lambda:0.2"), read for people: "√n/4π", "λ = 0.2". */
+export function describeRestrictedCutText(text: string): string {
+  const [head, arg] = text.split(':');
+  if (head === 'sqrtN') return '√n/4π';
+  if (head === 'lambda') return `λ = ${arg}`;
+  return text;
+}
+
 /** The short text form the API lists runs with ("sqrtN", "lambda:0.5", ...), read for people. */
 export function describeTruncationText(text: string): string {
   const [head, arg] = text.split(':');

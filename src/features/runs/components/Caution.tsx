@@ -1,3 +1,20 @@
+/**
+ * Cautions that belong to this result's settings (a 2D cut on a 4D region, for instance): shown beside
+ * the result, worded by the server (shared/vacuum.ts ruleCautions) so page, API and exports agree.
+ */
+export function RuleCautions({ cautions }: { cautions: string[] }) {
+  if (cautions.length === 0) return null;
+  return (
+    <aside className="border-l-2 border-danger py-1 pl-3 text-sm text-ink-soft" data-testid="rule-cautions">
+      {cautions.map((c) => (
+        <p key={c}>
+          <span className="font-medium text-ink">Caution.</span> {c}
+        </p>
+      ))}
+    </aside>
+  );
+}
+
 /** Said wherever results are shown: the numbers depend on choices as much as on the physics. */
 export function Caution() {
   return (

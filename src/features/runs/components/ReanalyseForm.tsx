@@ -88,6 +88,8 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
         onTipChange={(which, tip) => set(which, tip)}
         doubleTruncation={values.doubleTruncation}
         onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+        restrictedCut={values.restrictedCut}
+        onRestrictedCutChange={(v) => set('restrictedCut', v)}
         errors={errors.fieldErrors}
       />
       <FormError message={errors.formError} />

@@ -1,4 +1,5 @@
 import type { RunDetail, RunResult } from '@shared/runs';
+import { entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import { describeTruncation } from '../../cutRules/lib/truncationForm';
 import { diagnosticNote, engineRowText, probedCheckCount } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
@@ -27,11 +28,21 @@ export function singleCutNote(entropy: { n: number }, wholeRegionModesKept: numb
   return (
     `Only the whole-region cut was applied: the restricted state lives on at most 2k = ${2 * wholeRegionModesKept} modes, ` +
     `fewer than the n = ${entropy.n} elements of the subregion, so it is pure and S is zero up to rounding. ` +
-    'Double truncation (a second cut at √n/(4π), Sorkin–Yazdi 2018) gives the area-law entropy.'
+    'Double truncation (a second cut on the restricted state, √n/(4π) by default, Sorkin–Yazdi 2018) gives the area-law entropy.'
   );
 }
 
-/** The subregion's entropy: S, its size and the modes its restricted state kept. */
+/**
+ * The restricted cut as the run page states it: the rule, and the |λ| it came to on this subregion.
+ * Without double truncation only the numerical kernel (below 10⁻⁶ of the largest |λ|) is dropped.
+ */
+export function restrictedCutRowText(restrictedCut: RestrictedCut | null, cutoff: number | undefined): string {
+  if (!restrictedCut) return 'none (only the numerical kernel of iΔ_sub is dropped)';
+  const value = cutoff === undefined ? '' : ` = ${Number(cutoff.toPrecision(4))}`;
+  return restrictedCut.rule === 'sqrtN' ? `√n/(4π)${value}` : restrictedCutText(restrictedCut);
+}
+
+/** The subregion's entropy: S, its size, the restricted cut and the modes its restricted state kept. */
 export function EntropyTable({
   entropy,
   doubleTruncation,
@@ -42,6 +53,8 @@ export function EntropyTable({
   note?: string | null;
 }) {
   const positive = entropy.generalizedEigenvalues.filter((mu) => mu > 1).length;
+  // runs stored before the restricted cut was a setting used √n/(4π) when doubly truncated
+  const restrictedCut = entropy.restrictedCut !== undefined ? entropy.restrictedCut : doubleTruncation ? { rule: 'sqrtN' as const } : null;
   return (
     <>
       <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
@@ -54,7 +67,10 @@ export function EntropyTable({
           <Row label="Elements in the subregion n">
             <Figure value={entropy.n} />
           </Row>
-          <Row label="Modes kept in the subregion" note={doubleTruncation ? 'after the second cut at √n/(4π)' : undefined}>
+          <Row label="Restricted cut" note="second cut of double truncation, on |λ| of iΔ_sub">
+            <span data-testid="restricted-cut">{restrictedCutRowText(restrictedCut, doubleTruncation ? entropy.cutoff : undefined)}</span>
+          </Row>
+          <Row label="Modes kept in the subregion" note={restrictedCut ? 'after the restricted cut' : undefined}>
             <Figure value={entropy.modesKept} />
           </Row>
           <Row label="Generalised eigenvalues μ > 1" note="of W_sub v = μ iΔ_sub v; each contributes to S">
@@ -142,6 +158,7 @@ interface StoredRequest {
   mass?: number;
   truncation?: Parameters<typeof describeTruncation>[0];
   doubleTruncation?: boolean;
+  restrictedCut?: RestrictedCut;
   subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number>; indices?: number[] } | null;
   sprinkling?: {
     region: Record<string, unknown> & { kind: string };
@@ -187,6 +204,10 @@ export function SettingsTable({ run }: { run: RunDetail }) {
         : `${request.subregion.indices?.length ?? 0} listed elements`,
     ]);
     rows.push(['Double truncation', request.doubleTruncation ? 'yes' : 'no']);
+    rows.push(['Restricted cut', request.doubleTruncation ? restrictedCutText(request.restrictedCut ?? { rule: 'sqrtN' }) : 'none']);
+    if (request.truncation) {
+      rows.push(['Entropy rule', entropyRuleLabel({ truncation: request.truncation as TruncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut })]);
+    }
   }
   if (run.result) {
     rows.push(['Engine', engineRowText(run.result)]);

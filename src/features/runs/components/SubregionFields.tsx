@@ -1,5 +1,5 @@
-import { TextField } from '../../../ui/Field';
-import type { TipValues } from '../lib/runForm';
+import { SelectField, TextField } from '../../../ui/Field';
+import type { RestrictedCutFormValues, TipValues } from '../lib/runForm';
 import { Checkbox } from './Checkbox';
 
 interface SubregionFieldsProps {
@@ -11,9 +11,44 @@ interface SubregionFieldsProps {
   onTipChange(which: 'past' | 'future', values: TipValues): void;
   doubleTruncation: boolean;
   onDoubleTruncationChange(value: boolean): void;
+  restrictedCut: RestrictedCutFormValues;
+  onRestrictedCutChange(value: RestrictedCutFormValues): void;
   errors: Record<string, string | undefined>;
   /** when given, the subregion is a list of element labels (an imported causal set) instead of tips */
   elements?: { value: string; onChange(text: string): void; count: number | null; error?: string };
+}
+
+/** The second cut of double truncation: √n/(4π) of the subregion's n elements, or a fixed λ. */
+export function RestrictedCutFields({ value, onChange, error }: { value: RestrictedCutFormValues; onChange(value: RestrictedCutFormValues): void; error?: string }) {
+  return (
+    <div className="grid grid-cols-1 gap-6 sm:grid-cols-2">
+      <SelectField
+        label="Restricted cut"
+        name="restrictedCutKind"
+        value={value.kind}
+        onChange={(e) => onChange({ ...value, kind: e.target.value as RestrictedCutFormValues['kind'] })}
+        hint={
+          value.kind === 'sqrtN'
+            ? 'Drop the restricted modes with |λ| ≤ √n/(4π), n the elements of the subregion (the published 2D rule).'
+            : 'Drop the restricted modes with |λ| at or below a fixed λ.'
+        }
+      >
+        <option value="sqrtN">√n / 4π</option>
+        <option value="lambda">Fixed λ</option>
+      </SelectField>
+      {value.kind === 'lambda' && (
+        <TextField
+          label="Restricted λ"
+          name="restrictedCutValue"
+          inputMode="decimal"
+          className="font-mono"
+          value={value.value}
+          onChange={(e) => onChange({ ...value, value: e.target.value })}
+          error={error}
+        />
+      )}
+    </div>
+  );
 }
 
 /**
@@ -83,10 +118,11 @@ export function SubregionFields(props: SubregionFieldsProps) {
           <Checkbox
             name="doubleTruncation"
             label="Double truncation"
-            hint="Truncate the restricted state again at √n/(4π) before the entropy (Sorkin–Yazdi)."
+            hint="Cut the restricted state again before the entropy (Sorkin–Yazdi), at the restricted cut below."
             checked={props.doubleTruncation}
             onChange={props.onDoubleTruncationChange}
           />
+          {props.doubleTruncation && <RestrictedCutFields value={props.restrictedCut} onChange={props.onRestrictedCutChange} error={errors['restrictedCut.cut']} />}
         </>
       )}
     </div>

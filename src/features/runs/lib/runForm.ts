@@ -1,6 +1,6 @@
 import { AUTO_STRUCTURED_FROM, chooseEngine, sizeLimitForRequest, STRUCTURED_MAX_N_2D, type EngineRequest } from '@shared/engineChoice';
 import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
-import type { PrngName, RegionKind, TruncationRule } from '@shared/vacuum';
+import { defaultTruncationFor, type PrngName, type RegionKind, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import type { z } from 'zod';
 import type { FieldErrors } from '../../../lib/forms';
 import {
@@ -20,6 +20,37 @@ import {
  */
 export const denseLimits = { native: 6000, 'ml-matrix': 3000 } as const;
 export const denseLimitN = Math.max(...Object.values(denseLimits));
+
+/** The restricted cut of double truncation as typed: √n/(4π), or a fixed λ (its number as text). */
+export interface RestrictedCutFormValues {
+  kind: RestrictedCut['rule'];
+  value: string;
+}
+
+export const defaultRestrictedCutForm: RestrictedCutFormValues = { kind: 'sqrtN', value: '' };
+
+/**
+ * The restricted cut to send: none without double truncation; √n/(4π) is the server's default, so only
+ * a fixed λ is sent (unvalidated: the shared schema names a bad number at `restrictedCut.cut`).
+ */
+export function restrictedCutFromForm(doubleTruncation: boolean, values: RestrictedCutFormValues): unknown {
+  if (!doubleTruncation || values.kind === 'sqrtN') return undefined;
+  return { rule: 'lambda', cut: parseNumber(values.value) };
+}
+
+export function restrictedCutToForm(cut: RestrictedCut | null | undefined): RestrictedCutFormValues {
+  return cut?.rule === 'lambda' ? { kind: 'lambda', value: String(cut.cut) } : { ...defaultRestrictedCutForm };
+}
+
+/**
+ * The truncation the form proposes when the region changes: √N/(4π) in 2D, the knee in 4D (√N/(4π) is a
+ * 2D rule). A rule the user chose (any other than the old dimension's default) is kept.
+ */
+export function truncationForRegionChange(current: TruncationFormValues, from: RegionKind, to: RegionKind): TruncationFormValues {
+  const oldDefault = truncationToForm(defaultTruncationFor(regionDimension(from)));
+  if (current.kind !== oldDefault.kind || current.value !== oldDefault.value) return current;
+  return truncationToForm(defaultTruncationFor(regionDimension(to)));
+}
 
 export interface TipValues {
   t: string;
@@ -57,6 +88,7 @@ export interface RunFormValues {
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+  restrictedCut: RestrictedCutFormValues;
   /** which engine computes the run: the documented rule (auto) or a forced one */
   engine: EngineRequest;
 }
@@ -103,6 +135,7 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     past: { t: '-0.5', x: '0', y: '0', z: '0' },
     future: { t: '0.5', x: '0', y: '0', z: '0' },
     doubleTruncation: false,
+    restrictedCut: { ...defaultRestrictedCutForm },
     engine: 'auto',
   };
 }
@@ -172,6 +205,7 @@ const fieldMessages: Record<string, string> = {
   'sprinkling.region.properTime': 'The proper time between the tips is a positive number.',
   'sprinkling.region.circumference': 'The circumference is a positive number.',
   mass: 'The mass is a number ≥ 0.',
+  'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.',
   ...truncationFieldMessages,
 };
 
@@ -279,6 +313,7 @@ function importedRunRequest(v: RunFormValues, picked: PickedCausalSet | null): C
     mass: reader.read(v.mass, 'mass') ?? 0,
     truncation: truncationFromForm(v.truncation),
     doubleTruncation: v.withSubregion && v.doubleTruncation,
+    restrictedCut: restrictedCutFromForm(v.withSubregion && v.doubleTruncation, v.restrictedCut),
   };
   if (v.engine !== 'auto') candidate.engine = v.engine;
   if (v.engine === 'structured' && picked?.kind === 'relations') {
@@ -328,6 +363,7 @@ export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN,
     mass: reader.read(v.mass, 'mass') ?? 0,
     truncation: truncationFromForm(v.truncation),
     doubleTruncation: v.withSubregion && v.doubleTruncation,
+    restrictedCut: restrictedCutFromForm(v.withSubregion && v.doubleTruncation, v.restrictedCut),
   };
   if (v.title.trim()) candidate.title = v.title.trim();
   if (v.engine !== 'auto') candidate.engine = v.engine;
@@ -419,6 +455,7 @@ export interface ReanalyseFormValues {
   past: TipValues;
   future: TipValues;
   doubleTruncation: boolean;
+  restrictedCut: RestrictedCutFormValues;
   engine: EngineRequest;
 }
 
@@ -426,6 +463,7 @@ interface StoredSettings {
   mass?: number;
   truncation?: TruncationRule;
   doubleTruncation?: boolean;
+  restrictedCut?: RestrictedCut;
   engine?: EngineRequest;
   subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
 }
@@ -448,6 +486,7 @@ export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
     past: tipValues(diamond?.past, defaults.past),
     future: tipValues(diamond?.future, defaults.future),
     doubleTruncation: stored.doubleTruncation ?? false,
+    restrictedCut: restrictedCutToForm(stored.restrictedCut),
     engine: stored.engine ?? 'auto',
   };
 }
@@ -476,6 +515,8 @@ export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 
     truncation: truncationFromForm(v.truncation),
     subregion: v.withSubregion ? subregionFromForm(reader, { ...defaultRunForm(''), ...v }, dimension) : null,
     doubleTruncation: v.withSubregion && v.doubleTruncation,
+    // null: the default √n/(4π), so a parent's fixed λ does not carry over once the form shows √n/(4π)
+    restrictedCut: v.withSubregion && v.doubleTruncation ? (restrictedCutFromForm(true, v.restrictedCut) ?? null) : undefined,
     engine: v.engine,
   };
   if (v.title.trim()) candidate.title = v.title.trim();

@@ -25,6 +25,7 @@ import {
   regionLabels,
   runRequestFromForm,
   sizeHint,
+  truncationForRegionChange,
   type PickedCausalSet,
   type RunFormValues,
 } from '../lib/runForm';
@@ -130,7 +131,10 @@ function NewRunForm() {
               label="Region"
               name="regionKind"
               value={values.regionKind}
-              onChange={(e) => set('regionKind', e.target.value as RunFormValues['regionKind'])}
+              onChange={(e) => {
+                const regionKind = e.target.value as RunFormValues['regionKind'];
+                setValues((v) => ({ ...v, regionKind, truncation: truncationForRegionChange(v.truncation, v.regionKind, regionKind) }));
+              }}
               error={fe['sprinkling.region']}
             >
               {(['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d'] as const).map((kind) => (
@@ -354,6 +358,8 @@ function NewRunForm() {
             onTipChange={(which, tip) => set(which, tip)}
             doubleTruncation={values.doubleTruncation}
             onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+            restrictedCut={values.restrictedCut}
+            onRestrictedCutChange={(v) => set('restrictedCut', v)}
             errors={fe}
             elements={
               subregionBy === 'elements'

@@ -8,7 +8,7 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { downloadRunFile, isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
-import { Caution } from '../components/Caution';
+import { Caution, RuleCautions } from '../components/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
 import { DiagnosticsTable, EntropyTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
 import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
@@ -94,8 +94,9 @@ function RunView({ run }: { run: RunDetail }) {
 
       {result && (
         <>
-          <div className="mb-10">
+          <div className="mb-10 flex flex-col gap-3">
             <Caution />
+            <RuleCautions cautions={result.cautions ?? []} />
           </div>
           <Section title="Spectrum" aside={<span className="figures">N = {result.N}</span>}>
             {structuredSpectrumNote(result) && (

@@ -7,7 +7,7 @@ import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
-import { describeTruncationText } from '../../cutRules/lib/truncationForm';
+import { describeRestrictedCutText, describeTruncationText } from '../../cutRules/lib/truncationForm';
 import { useRuns, type RunFilters } from '../api/runs';
 import { Checkbox } from '../components/Checkbox';
 import { Figure } from '../components/Figure';
@@ -182,7 +182,10 @@ export function RunsPage() {
                   <td className="py-2.5 pr-4 text-right">
                     <span className="figures">{run.N ?? '—'}</span>
                   </td>
-                  <td className="py-2.5 pr-4 text-ink-soft">{describeTruncationText(run.truncation)}</td>
+                  <td className="py-2.5 pr-4 text-ink-soft">
+                    {describeTruncationText(run.truncation)}
+                    {run.restrictedCut && <span className="block text-xs text-ink-faint">restricted {describeRestrictedCutText(run.restrictedCut)}</span>}
+                  </td>
                   <td className="py-2.5 pr-4 text-right">
                     <Figure value={run.S} whole={3} fraction={6} />
                   </td>

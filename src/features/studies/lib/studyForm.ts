@@ -1,6 +1,7 @@
 import type { CreateStudyRequestInput } from '@shared/studies';
-import type { RegionSpec } from '@shared/vacuum';
+import { defaultTruncationFor, type RegionSpec } from '@shared/vacuum';
 import { regionFromForm } from '../../causalSets/lib/importForm';
+import { defaultRestrictedCutForm, regionDimension, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
 
 /** Regions a sprinkled study can use, in the order the form lists them; concentric sub-diamonds need a diamond. */
 export const studyRegionKinds = ['diamond2d', 'diamond4d', 'cylinder2d', 'slab2d'] as const;
@@ -38,6 +39,8 @@ export interface StudyFormValues {
   tips: string;
   untruncated: boolean;
   doubleTruncated: boolean;
+  /** the second cut of the double-truncated rule */
+  restrictedCut: RestrictedCutFormValues;
   mass: string;
 }
 
@@ -63,8 +66,19 @@ export const defaultStudyForm: StudyFormValues = {
   tips: defaultTips[2],
   untruncated: true,
   doubleTruncated: true,
+  restrictedCut: { ...defaultRestrictedCutForm },
   mass: '0',
 };
+
+/**
+ * The whole-region cut of the double-truncated rule: √N/(4π) in 2D (Sorkin–Yazdi 2018), the knee in 4D,
+ * where √N/(4π) is not derived (shared/vacuum.ts ruleCautions).
+ */
+export function doubleTruncatedRuleLabel(dimension: 2 | 4, restrictedCut: RestrictedCutFormValues): string {
+  const whole = dimension === 4 ? 'knee' : '√N/4π';
+  const second = restrictedCut.kind === 'sqrtN' ? '√n/4π' : `λ = ${restrictedCut.value.trim() || '…'}`;
+  return `Double-truncated (${whole}, then ${second})`;
+}
 
 /** "200, 400 800" → [200, 400, 800]; anything unreadable becomes NaN so the schema names the field. */
 export function parseNumberList(text: string): number[] {
@@ -112,11 +126,18 @@ function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subre
   return { kind: 'tips', diamonds: parseTips(values.tips) };
 }
 
-/** The POST body for the form's values (validated afterwards with the shared schema). */
-export function studyRequestFrom(values: StudyFormValues): CreateStudyRequestInput {
+/**
+ * The POST body for the form's values (validated afterwards with the shared schema). `dimension` is that
+ * of the picked imported sets (a sprinkled study takes its region's).
+ */
+export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 | 4 = 2): CreateStudyRequestInput {
+  const dimension = values.source === 'imported' ? importedDimension : regionDimension(values.regionKind);
   const rules: CreateStudyRequestInput['rules'] = [];
   if (values.untruncated) rules.push({ truncation: { rule: 'none' }, doubleTruncation: false });
-  if (values.doubleTruncated) rules.push({ truncation: { rule: 'sqrtN' }, doubleTruncation: true });
+  if (values.doubleTruncated) {
+    const restrictedCut = restrictedCutFromForm(true, values.restrictedCut) as CreateStudyRequestInput['rules'][number]['restrictedCut'];
+    rules.push({ truncation: defaultTruncationFor(dimension), doubleTruncation: true, ...(restrictedCut ? { restrictedCut } : {}) });
+  }
   const title = values.title.trim() ? { title: values.title.trim() } : {};
   if (values.source === 'imported') {
     return { source: 'imported', ...title, causalSetIds: values.causalSetIds, subregions: subregionsFrom(values), rules, mass: Number(values.mass) };
@@ -144,6 +165,7 @@ export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('subregions.fractions')) return 'fractions';
   if (path.startsWith('subregions.diamonds')) return 'tips';
   if (path.startsWith('subregions')) return 'subregionKind';
+  if (/^rules\.\d+\.restrictedCut/.test(path)) return 'restrictedCut';
   if (path.startsWith('rules')) return 'untruncated';
   if (path.startsWith('region.circumference')) return 'circumference';
   if (path.startsWith('region.t') || path.startsWith('region.x')) return 'tMin';

@@ -8,12 +8,15 @@ import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { useCan } from '../../auth/api/me';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
+import { useCausalSets } from '../../causalSets/api/causalSets';
 import { Checkbox } from '../../runs/components/Checkbox';
+import { RestrictedCutFields } from '../../runs/components/SubregionFields';
 import { regionDimension, regionLabels } from '../../runs/lib/runForm';
 import { useCreateStudy } from '../api/studies';
 import {
   defaultStudyForm,
   defaultTips,
+  doubleTruncatedRuleLabel,
   formFieldOf,
   parseNumberList,
   studyRegionKinds,
@@ -37,6 +40,10 @@ export function NewStudyPage() {
   const navigate = useNavigate();
   const canCompute = useCan('compute');
   const set = <K extends keyof StudyFormValues>(key: K, value: StudyFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));
+  const causalSets = useCausalSets();
+  // the picked imported sets decide the dimension of an imported study (and with it the 4D rule)
+  const importedDimension: 2 | 4 = (causalSets.data?.items ?? []).some((c) => values.causalSetIds.includes(c.id) && c.dimension === 4) ? 4 : 2;
+  const dimension = values.source === 'imported' ? importedDimension : regionDimension(values.regionKind);
   // a slab has no diamond to share a centre with; untouched tips follow the region's dimension
   const chooseRegion = (regionKind: StudyRegionKind) =>
     setValues((v) => ({
@@ -62,7 +69,7 @@ export function NewStudyPage() {
   async function submit(event: FormEvent) {
     event.preventDefault();
     setFormError(null);
-    const body = studyRequestFrom(values);
+    const body = studyRequestFrom(values, importedDimension);
     const checked = validate(createStudyRequestSchema, body);
     if (!checked.ok) {
       place(Object.entries(checked.errors).map(([path, message]) => ({ path, message })));
@@ -208,7 +215,17 @@ export function NewStudyPage() {
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-[1fr_12rem]">
             <div className="flex flex-col gap-3">
               <Checkbox label="Untruncated" hint="only the numerical kernel of the restricted iΔ is dropped; expect a volume law" checked={values.untruncated} onChange={(v) => set('untruncated', v)} />
-              <Checkbox label="Double-truncated (√N/4π, then √n/4π)" hint="Sorkin–Yazdi 2018; expect S ≈ b ln √n + c with b near 1/3" checked={values.doubleTruncated} onChange={(v) => set('doubleTruncated', v)} />
+              <Checkbox
+                label={doubleTruncatedRuleLabel(dimension, values.restrictedCut)}
+                hint={
+                  dimension === 4
+                    ? 'Sorkin–Yazdi 2018; in 4D the state is cut at the knee, since √N/4π is a 2D rule'
+                    : 'Sorkin–Yazdi 2018; expect S ≈ b ln √n + c with b near 1/3'
+                }
+                checked={values.doubleTruncated}
+                onChange={(v) => set('doubleTruncated', v)}
+              />
+              {values.doubleTruncated && <RestrictedCutFields value={values.restrictedCut} onChange={(v) => set('restrictedCut', v)} error={errors.restrictedCut} />}
               {errors.untruncated && <p className="text-xs text-danger" role="alert">{errors.untruncated}</p>}
             </div>
             <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} hint="0 for the massless field" />

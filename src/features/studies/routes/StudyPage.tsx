@@ -10,6 +10,7 @@ import { StatusLabel } from '../../runs/components/StatusLabel';
 import { regionLabels } from '../../runs/lib/runForm';
 import { downloadStudyExport, isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
+import { RuleCautions } from '../../runs/components/Caution';
 import { StudyPlots } from '../components/StudyPlots';
 import { AggregateTable, FitsTable } from '../components/StudyTables';
 
@@ -162,8 +163,9 @@ export function StudyPage() {
           </div>
         </Section>
       )}
-      <div className="mb-10">
+      <div className="mb-10 flex flex-col gap-3">
         <StudyCaution />
+        <RuleCautions cautions={s.cautions} />
       </div>
       {s.aggregates.length > 0 && (
         <>
