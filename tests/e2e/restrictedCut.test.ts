@@ -1,0 +1,71 @@
+import type { Worker } from 'bullmq';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoPassword } from '../../server/db/demo-team';
+import { startComputeWorker } from '../../server/worker/worker';
+import { screenshot, startApp, type RunningApp } from './browser';
+
+/**
+ * The restricted cut of double truncation and the 4D caution, as a researcher meets them in the browser:
+ * a 4D region proposes the knee, the researcher picks √N/4π anyway and a fixed restricted λ, and the run
+ * page states both the restricted cut and the caution that √N/(4π) is a 2D rule.
+ */
+describe('restricted cut and 4D caution in the browser', () => {
+  let running: RunningApp;
+  let worker: Worker;
+
+  beforeAll(async () => {
+    running = await startApp();
+    const { config, dataSource, mailer } = running.context;
+    worker = startComputeWorker({ context: { config, dataSource, mailer } });
+    await worker.waitUntilReady();
+  });
+  afterAll(async () => {
+    await worker?.close();
+    await running?.close();
+  });
+
+  it('a 4D run with √N/4π and a fixed restricted λ shows both on its page', async () => {
+    const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await context.newPage();
+    const pageErrors: string[] = [];
+    page.on('pageerror', (error) => pageErrors.push(error.message));
+    await page.goto(`${running.baseUrl}/signin`);
+    await page.getByLabel('E-mail').fill('tomas.okafor@tacet.example');
+    await page.getByLabel('Password').fill(demoPassword);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL('**/runs');
+
+    await page.goto(`${running.baseUrl}/runs/new`);
+    await expect(page.getByLabel('Truncation rule').inputValue()).resolves.toBe('sqrtN');
+    await page.getByLabel('Region', { exact: true }).selectOption('diamond4d');
+    // √N/(4π) is a 2D rule: a 4D region proposes the knee
+    await expect(page.getByLabel('Truncation rule').inputValue()).resolves.toBe('knee');
+    await page.getByLabel('Truncation rule').selectOption('sqrtN');
+    await page.getByLabel('N (elements)').fill('300');
+    await page.getByLabel('Seed').fill('browser-4d');
+    await page.getByLabel('Title').fill('4D restricted cut');
+    await page.getByLabel('Compute the entanglement entropy of a subregion').check();
+    await page.getByRole('checkbox', { name: /^Double truncation/ }).check();
+    await page.getByLabel('Restricted cut', { exact: true }).selectOption('lambda');
+    // a bad λ is refused beside its field
+    await page.getByLabel('Restricted λ').fill('-1');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.getByText('The restricted cut λ is a number ≥ 0.').waitFor();
+    await page.getByLabel('Restricted λ').fill('0.3');
+    await screenshot(page, 'restricted-01-form');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+
+    await page.getByRole('figure', { name: 'Spectrum' }).waitFor({ timeout: 90_000 });
+    await expect(page.getByTestId('restricted-cut').textContent()).resolves.toBe('λ = 0.3');
+    await expect(page.getByTestId('rule-cautions').textContent()).resolves.toMatch(/√N\/\(4π\) is a rule from 2D work.*Here it keeps \d+ of \d+ positive modes/s);
+    await expect(page.getByRole('table', { name: 'Settings' }).textContent()).resolves.toMatch(/Restricted cut\s*λ = 0\.3/);
+    await screenshot(page, 'restricted-02-run');
+
+    await page.getByRole('link', { name: 'Runs', exact: true }).click();
+    await page.getByText('restricted λ = 0.3').first().waitFor();
+    await screenshot(page, 'restricted-03-table');
+    expect(pageErrors).toEqual([]);
+    await context.close();
+  }, 150_000);
+});
