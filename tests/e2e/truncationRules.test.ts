@@ -4,12 +4,23 @@ import { demoPassword } from '../../server/db/demo-team';
 import { startComputeWorker } from '../../server/worker/worker';
 import { screenshot, startApp, type RunningApp } from './browser';
 
+async function signIn(running: RunningApp) {
+  const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 } });
+  const page = await context.newPage();
+  await page.goto(`${running.baseUrl}/signin`);
+  await page.getByLabel('E-mail').fill('tomas.okafor@tacet.example');
+  await page.getByLabel('Password').fill(demoPassword);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL('**/runs');
+  return { context, page };
+}
+
 /**
  * The restricted cut of double truncation and the 4D caution, as a researcher meets them in the browser:
  * a 4D region proposes the knee, the researcher picks √N/4π anyway and a fixed restricted λ, and the run
  * page states both the restricted cut and the caution that √N/(4π) is a 2D rule.
  */
-describe('restricted cut and 4D caution in the browser', () => {
+describe('truncation rules in the browser: restricted cut, 4D caution, knee', () => {
   let running: RunningApp;
   let worker: Worker;
 
@@ -25,15 +36,9 @@ describe('restricted cut and 4D caution in the browser', () => {
   });
 
   it('a 4D run with √N/4π and a fixed restricted λ shows both on its page', async () => {
-    const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await context.newPage();
+    const { context, page } = await signIn(running);
     const pageErrors: string[] = [];
     page.on('pageerror', (error) => pageErrors.push(error.message));
-    await page.goto(`${running.baseUrl}/signin`);
-    await page.getByLabel('E-mail').fill('tomas.okafor@tacet.example');
-    await page.getByLabel('Password').fill(demoPassword);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL('**/runs');
 
     await page.goto(`${running.baseUrl}/runs/new`);
     await expect(page.getByLabel('Truncation rule').inputValue()).resolves.toBe('sqrtN');
@@ -68,4 +73,24 @@ describe('restricted cut and 4D caution in the browser', () => {
     expect(pageErrors).toEqual([]);
     await context.close();
   }, 150_000);
+
+  it('a 2D knee run draws the knee, its tolerance band and the fitted law on the spectrum', async () => {
+    const { context, page } = await signIn(running);
+    await page.goto(`${running.baseUrl}/runs/new`);
+    await page.getByLabel('Truncation rule').selectOption('knee');
+    await page.getByLabel('N (elements)').fill('1000');
+    await page.getByLabel('Seed').fill('browser-knee');
+    await page.getByLabel('Title').fill('Knee on a 2D diamond');
+    await page.getByLabel('Engine').selectOption('dense');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+    const spectrum = page.getByRole('figure', { name: 'Spectrum' });
+    await spectrum.waitFor({ timeout: 120_000 });
+    await spectrum.locator('.scatterlayer .trace').first().waitFor();
+    const legend = (await spectrum.locator('.legend').textContent()) ?? '';
+    expect(legend).toMatch(/knee: \d+ modes follow the fitted law within 5 %/);
+    expect(legend).toMatch(/knee at tolerance 2\.5 % to 7\.5 %: \d+ to \d+ modes/);
+    await screenshot(page, 'knee-01-spectrum');
+    await context.close();
+  }, 180_000);
 });
