@@ -13,7 +13,7 @@ import {
   referencesUsed,
   tidyCsv,
   type StudyExportInput,
-} from '../../server/studies/exports';
+} from '../../server/exports/studies';
 import { resolveSubregions } from '../../server/studies/plan';
 
 const request = createStudyRequestSchema.parse({

@@ -34,7 +34,7 @@ import {
   provenanceJson,
   tidyCsv,
   type StudyExportInput,
-} from '../../studies/exports';
+} from '../../exports/studies';
 import {
   cellSprinkling,
   checkRulesFit,
