@@ -9,7 +9,7 @@ import { regionSpecSchema, type RegionSpec } from './vacuum';
  * - `relations`: one pair `i,j` per row meaning element i precedes element j (labels 0..count−1), an
  *   optional header `i,j`; the element count and the dimension go with it, the density for a massive
  *   field or 4D. The relation is transitively closed on import and must be acyclic.
- * Conventions (units c = 1, element labels, ≺) follow the shared physics notes §1.
+ * Conventions (units c = 1, element labels, ≺) follow server/engine/README.md §1.
  */
 
 export const causalSetKinds = ['coordinates', 'relations'] as const;

@@ -3,7 +3,7 @@ import { z } from 'zod';
 /**
  * Request vocabulary of a vacuum computation on a causal set: regions, sprinklings, truncation rules and
  * subregions. Used by the command-line tool, the run form and the API, so a setting means the same thing
- * everywhere. Conventions (units c = 1, coordinate order t, x[, y, z]) follow shared physics notes §1.
+ * everywhere. Conventions (units c = 1, coordinate order t, x[, y, z]) follow server/engine/README.md §1.
  */
 
 const finite = z.number({ message: 'must be a number' }).refine(Number.isFinite, { message: 'must be a finite number' });

@@ -37,7 +37,7 @@ export function tanEqualsTwoXRoots(count: number): Float64Array {
 
 /**
  * Continuum spectrum of iΔ for N elements in a 2D causal diamond (Afshordi–Aslanbeigi–Sorkin 2012,
- * JHEP 08 137; recalled from memory and confirmed numerically, physics notes §4): the k-th largest
+ * JHEP 08 137; recalled from memory and confirmed numerically, server/engine/README.md §8): the k-th largest
  * positive eigenvalue is N/(4 x_k), the x_k being nπ (n ≥ 1) and the positive roots of tan x = 2x,
  * merged in ascending order. Returns the first `count`, descending.
  */

@@ -23,7 +23,7 @@ export interface EntropyResult {
 
 /**
  * Without truncation only the numerical kernel of iΔ_O is dropped: true zeros sit near 1e-8 of the
- * largest |λ| through ΔᵀΔ while the smallest genuine modes are about 5e-4 of it (physics notes §5).
+ * largest |λ| through ΔᵀΔ while the smallest genuine modes are about 5e-4 of it (server/engine/README.md §6).
  */
 export const KERNEL_RELATIVE_THRESHOLD = 1e-6;
 
@@ -144,7 +144,7 @@ function bosonicTerm(kappa: number): number {
 }
 
 /**
- * The inner SSEE routine, the real-arithmetic route of physics notes §5 (Sorkin 2012,
+ * The inner SSEE routine, the real-arithmetic route of server/engine/README.md §11 (Sorkin 2012,
  * arXiv:1205.2953; Saravani–Sorkin–Yazdi 2014, CQG 31 214006; double truncation Sorkin–Yazdi 2018,
  * CQG 35 074004). X = Re W_c|_O (symmetric) and A = Δ_c|_O (antisymmetric) may be given in any
  * orthonormal basis of a subspace holding their joint range (the n × n restriction itself, or the

@@ -378,7 +378,7 @@ function resolveBackend(choice: VacuumRequest['backend']): LinearAlgebraBackend 
 }
 
 /**
- * The whole dense pipeline of physics notes §1–5: sprinkle (or take the given points), causal order,
+ * The whole dense pipeline of server/engine/README.md §1–§11: sprinkle (or take the given points), causal order,
  * retarded Green function, Pauli–Jordan spectrum, (truncated) SJ state with its diagnostics, and the
  * entanglement entropy of a subregion when one is given. Reports progress per stage and checks
  * `shouldCancel()` before each stage (throws CancelledError).

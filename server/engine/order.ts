@@ -61,7 +61,7 @@ function popcount(x: number): number {
 }
 
 /**
- * Causal matrix C[i][j] = 1 iff i ≺ j (physics notes §1), for points from a sprinkling or from outside.
+ * Causal matrix C[i][j] = 1 iff i ≺ j (server/engine/README.md §1), for points from a sprinkling or from outside.
  * `periodX` makes x periodic: the relation is then through the image points on the universal cover.
  */
 export function causalMatrix(points: ArrayLike<number>, dimension: 2 | 4, periodX?: number): BitRelation {
@@ -107,7 +107,7 @@ export function imageCount(points: ArrayLike<number>, i: number, j: number, peri
 }
 
 /**
- * Link matrix L[i][j] = 1 iff i ≺ j with nothing between (physics notes §1): the pair (i, j) of C is a
+ * Link matrix L[i][j] = 1 iff i ≺ j with nothing between (server/engine/README.md §1): the pair (i, j) of C is a
  * link iff the future of i and the past of j share no element, tested one 32-bit word at a time.
  */
 export function linkMatrix(causal: BitRelation): BitRelation {

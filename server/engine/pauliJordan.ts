@@ -76,7 +76,7 @@ export function pairedSingularValues(ascendingGramValues: Float64Array): Float64
 }
 
 /**
- * Spectrum of iΔ in real arithmetic (physics notes §4; Afshordi–Aslanbeigi–Sorkin 2012): iΔ has
+ * Spectrum of iΔ in real arithmetic (server/engine/README.md §5–§6; Afshordi–Aslanbeigi–Sorkin 2012): iΔ has
  * eigenvalues ±σ where σ² are the eigenvalues of the real symmetric positive semidefinite ΔᵀΔ = −Δ², so
  * one symmetric eigendecomposition gives both the spectrum and, through its eigenvectors, the SJ state.
  * Accuracy: σ comes out to about ε‖Δ‖²/σ, excellent above the knee, poor for near-zero modes.

@@ -1,8 +1,8 @@
 import type { RegionSpec } from '../../shared/vacuum';
 
 /**
- * Spacetime regions with exact volume, exact membership and their causal relation (shared physics
- * notes §1; units c = 1). Points are flat arrays of `dimension` coordinates (t, x[, y, z]).
+ * Spacetime regions with exact volume, exact membership and their causal relation
+ * (server/engine/README.md §1–§2; units c = 1). Points are flat arrays of `dimension` coordinates (t, x[, y, z]).
  */
 export interface Region {
   readonly spec: RegionSpec;
@@ -25,7 +25,7 @@ export function separationX(dx: number, period?: number): number {
 }
 
 /**
- * i ≺ j for two events given as flat coordinates: strict causal future (physics notes §1); on the
+ * i ≺ j for two events given as flat coordinates: strict causal future (server/engine/README.md §1); on the
  * cylinder the relation is that of the universal cover, i.e. j is in the future of some image of i.
  */
 export function precedes(points: ArrayLike<number>, dimension: 2 | 4, i: number, j: number, periodX?: number): boolean {
@@ -44,7 +44,7 @@ const SQRT1_2 = Math.SQRT1_2;
 
 /**
  * 2D causal diamond between tips p ≺ q: a square in light-cone coordinates u = (t+x)/√2, v = (t−x)/√2,
- * volume Δu Δv = τ²/2 (physics notes §1).
+ * volume Δu Δv = τ²/2 (server/engine/README.md §2).
  */
 function diamond2d(spec: Extract<RegionSpec, { kind: 'diamond2d' }>): Region {
   const half = spec.properTime !== undefined ? spec.properTime / 2 : 0;
@@ -108,7 +108,7 @@ function slab2d(spec: Extract<RegionSpec, { kind: 'slab2d' }>): Region {
   };
 }
 
-/** 4D causal diamond with tips (±τ/2, 0⃗): volume πτ⁴/24 (physics notes §1). */
+/** 4D causal diamond with tips (±τ/2, 0⃗): volume πτ⁴/24 (server/engine/README.md §2). */
 function diamond4d(spec: Extract<RegionSpec, { kind: 'diamond4d' }>): Region {
   const h = spec.properTime / 2;
   return {

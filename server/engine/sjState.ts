@@ -7,7 +7,7 @@ import type { PauliJordanSpectrum } from './pauliJordan';
  * matrix of kept eigenvectors (orthonormal columns), s their σ = √(eigenvalue of ΔᵀΔ) and
  * A = Bᵀ Δ B (r × r):
  *   Re W_c = ½ B diag(s) Bᵀ = ½ P|Δ|P,   Im W_c = ½ B A Bᵀ = ½ P Δ P,   P = B Bᵀ,
- * so W_c = B W̃ Bᵀ with the small Hermitian W̃ = ½(diag(s) + iA) (physics notes §4; Sorkin 2011;
+ * so W_c = B W̃ Bᵀ with the small Hermitian W̃ = ½(diag(s) + iA) (server/engine/README.md §5; Sorkin 2011;
  * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used:
  * W = ½(B diag(s) Bᵀ + iΔ), and nothing of size N × N beyond B is formed for the state (A and ΔB are
  * then left null; `sjDiagnostics` forms what its checks need).
@@ -66,7 +66,7 @@ export interface SjDiagnostics {
 
 /**
  * σ/σ_max below which a mode of ΔᵀΔ is taken as an exact zero: rounding puts true zeros near
- * √ε ≈ 1e-8 of σ_max, while genuine modes in the reference data stay above 5e-4 (physics notes §4–5).
+ * √ε ≈ 1e-8 of σ_max, while genuine modes in the reference data stay above 5e-4 (server/engine/README.md §6).
  */
 export const KERNEL_RESOLUTION = 1e-6;
 
@@ -273,7 +273,7 @@ function probedCompleteChecks(
 }
 
 /**
- * Checks of physics notes §4 on a state: W Hermitian and positive semidefinite, W − W̄ = iΔ_c,
+ * Checks of server/engine/README.md §5 on a state: W Hermitian and positive semidefinite, W − W̄ = iΔ_c,
  * W W̄ = 0, tr W = sum of the positive eigenvalues.
  *
  * Cost. Everything of the form B M Bᵀ is measured through M in the kept basis, since ‖B M Bᵀ‖_F = ‖M‖_F

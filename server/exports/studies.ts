@@ -261,7 +261,7 @@ interface Reference {
 }
 
 /**
- * The published methods a study uses (physics notes §2–5). Bibliographic details recalled from
+ * The published methods a study uses (server/engine/README.md §3–§11). Bibliographic details recalled from
  * memory: check them against the journals before submission.
  */
 const references: Record<string, Reference> = {

@@ -127,7 +127,7 @@ export const logSqrt = (n: number) => 0.5 * Math.log(n);
 
 /**
  * Fits of each rule's aggregates: S against ln √n̄ (slope b, expected near 1/3 with double truncation,
- * physics notes §5) and S against n̄ (the volume-law slope), once over every aggregate of the rule
+ * server/engine/README.md §9) and S against n̄ (the volume-law slope), once over every aggregate of the rule
  * (`subregion` null) and once per subregion across N (the ultraviolet scaling at fixed ℓ/L). A group
  * whose points share one x (or has fewer than two) gets no fit.
  */

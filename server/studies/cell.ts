@@ -70,7 +70,7 @@ export interface StudyCellResult {
 
 /**
  * One cell of a scaling study: one sprinkling, one eigendecomposition, the SJ state once per rule,
- * then the entropy of every subregion under every rule (physics notes §4–5: the SJ state, its truncation, Sorkin's spacetime
+ * then the entropy of every subregion under every rule (server/engine/README.md §5–§10: the SJ state, its truncation, Sorkin's spacetime
  * entanglement entropy and the double truncation of Sorkin–Yazdi 2018). Progress: the vacuum stages,
  * then `entropy` with the fraction of (subregion, rule) pairs done; cancellation is checked between them.
  * The stages are those of computeVacuum (server/engine/index.ts) without its state diagnostics, whose

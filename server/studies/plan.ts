@@ -47,7 +47,7 @@ export function concentricTips(tips: Tips, fraction: number): Tips {
   return { past: toEvent(centre.map((c, k) => c - fraction * half[k]!)), future: toEvent(centre.map((c, k) => c + fraction * half[k]!)) };
 }
 
-/** Spacetime volume of the causal diamond between two tips: τ²/2 in 2D, πτ⁴/24 in 4D (physics notes §1). */
+/** Spacetime volume of the causal diamond between two tips: τ²/2 in 2D, πτ⁴/24 in 4D (server/engine/README.md §2). */
 export function diamondVolume(tips: Tips): number {
   const p = coordinates(tips.past);
   const q = coordinates(tips.future);

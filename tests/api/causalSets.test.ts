@@ -75,7 +75,7 @@ describe('POST /api/causal-sets and reading back', () => {
       checksum: createHash('sha256').update(csv).digest('hex'),
       createdBy: { id: researcher.id },
     });
-    // physics notes §1: a 2D diamond of proper time τ has volume τ²/2, so ρ = N/V = 4/2
+    // server/engine/README.md §2: a 2D diamond of proper time τ has volume τ²/2, so ρ = N/V = 4/2
     expect(item.volume).toBeCloseTo(2, 14);
     expect(item.density).toBeCloseTo(2, 14);
     // (−0.5,0.25) ≺ (0,0) ≺ (0.5,−0.25) and (−0.5,0.25) ≺ (0.1,0.2), (−0.5, 0.25) ≺ (0.5, −0.25): 4 relations
@@ -236,7 +236,7 @@ describe('bad uploads: a 4xx that says where and what, and nothing stored', () =
     expect(res.body.error.message).toMatch(/multipart field "file"/);
   });
 
-  it('accepts the reference sprinkling of the physics notes (§6) in its diamond', async () => {
+  it('accepts the reference sprinkling (server/engine/README.md §13) in its diamond', async () => {
     // 300 points numpy placed in |t| + |x| ≤ √2, i.e. the 2D diamond of proper time 2√2
     const csv = readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url));
     const res = await upload(csv, { fileName: 'diamond300.csv', fields: { name: 'diamond300', kind: 'coordinates', region: JSON.stringify({ kind: 'diamond2d', properTime: 2 * Math.SQRT2 }) } });

@@ -63,7 +63,7 @@ function expectSameNumbers(actual: ArrayLike<number>, expected: ArrayLike<number
   for (let k = 0; k < expected.length; k++) expect(Math.abs(actual[k] - expected[k])).toBeLessThanOrEqual(tolerance * scale);
 }
 
-// The reference sprinkling of the physics notes §6: 300 points numpy placed in |t| + |x| ≤ √2 (the 2D
+// The reference sprinkling of server/engine/README.md §13: 300 points numpy placed in |t| + |x| ≤ √2 (the 2D
 // diamond of proper time 2√2), and what numpy/LAPACK computed on them (fixtures/diamond300.ref.json).
 const csv = readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url));
 const reference = JSON.parse(readFileSync(new URL('../../fixtures/diamond300.ref.json', import.meta.url), 'utf8')) as {
@@ -108,7 +108,7 @@ describe('a vacuum run on an uploaded coordinates CSV', () => {
     expect(Math.abs(result.entropy!.S / direct.entropy!.S - 1)).toBeLessThan(1e-10);
     expectSameNumbers(result.entropy!.generalizedEigenvalues, direct.entropy!.generalizedEigenvalues, 1e-9);
 
-    // and the numbers numpy/LAPACK computed on these points (fixtures/diamond300.ref.json, physics notes §6)
+    // and the numbers numpy/LAPACK computed on these points (fixtures/diamond300.ref.json, server/engine/README.md §13)
     expect(result.cutoff).toBeCloseTo(reference.lam_cut, 12);
     expect(result.modesKept).toBe(reference.n_pos_above_cut);
     expect(result.entropy!.n).toBe(reference.n_sub);
@@ -150,7 +150,7 @@ describe('a vacuum run on an uploaded coordinates CSV', () => {
 
 describe('runs on imported causal sets: inputs', () => {
   it('uses a given density for a massive field and matches the engine', async () => {
-    const density = 300 / 4; // the diamond of proper time 2√2 has volume (2√2)²/2 = 4 (physics notes §1)
+    const density = 300 / 4; // the diamond of proper time 2√2 has volume (2√2)²/2 = 4 (server/engine/README.md §2)
     const id = await uploadCsv(ctx.app, researcher, csv, { name: 'with density', kind: 'coordinates', density: String(density) });
     const run = await runToEnd(ctx.app, researcher, { causalSetId: id, mass: 1.5, truncation: { rule: 'sqrtN' } });
     expect(run.status).toBe('done');

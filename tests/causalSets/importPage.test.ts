@@ -51,7 +51,7 @@ describe('importing a causal set in the browser', () => {
     await expect(problems.textContent()).resolves.toContain('row 4: 3 columns, but the header t,x has 2');
     await shot(page, '01-problems');
 
-    // the reference sprinkling (physics notes §6) in its diamond of proper time 2√2
+    // the reference sprinkling (server/engine/README.md §13) in its diamond of proper time 2√2
     await page.getByLabel('CSV file').setInputFiles(fixture);
     await page.getByLabel('Name').fill('numpy diamond 300');
     await page.getByLabel('Proper time τ between the tips').fill(String(2 * Math.SQRT2));

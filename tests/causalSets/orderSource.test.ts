@@ -8,7 +8,7 @@ import { runPython } from '../support/python';
 /**
  * The engine's `order` source: a causal set known only by its (closed) relation, as a relation list
  * upload gives it. Checked against the same set given by coordinates, under a random relabelling, and
- * against numpy on the definitions of the physics notes §3–4.
+ * against numpy on the definitions of server/engine/README.md §4–§5.
  */
 
 function shuffled(n: number, seed: number): number[] {
@@ -30,7 +30,7 @@ function relabelledLinks(points: Float64Array, dimension: 2 | 4, label: number[]
 }
 
 /**
- * Physics notes §4: through ΔᵀΔ a large eigenvalue is exact to a few ε relatively, while the
+ * server/engine/README.md §6: through ΔᵀΔ a large eigenvalue is exact to a few ε relatively, while the
  * near-zero ones come out near √ε λ_max whatever the labelling; so large ones are compared relatively
  * and every one absolutely to 1e-7 of the largest.
  */
@@ -80,7 +80,7 @@ describe('vacuum on a causal set given by its relation', () => {
   }
 
   it('agrees with numpy: K = ½Cᵀ(I + (m²/2ρ)Cᵀ)⁻¹ built from the relation, eigenvalues of iΔ', async () => {
-    // physics notes §3 (Johnston 2008): 2D massive K_m = ½Cᵀ (I + (m²/2ρ) Cᵀ)⁻¹; §4: Δ = K − Kᵀ
+    // server/engine/README.md §4 (Johnston 2008): 2D massive K_m = ½Cᵀ (I + (m²/2ρ) Cᵀ)⁻¹; §5: Δ = K − Kᵀ
     const s = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 150, seed: 'order-numpy', prng: 'alea' });
     const label = shuffled(s.count, 99);
     const closed = parseRelationList(relabelledLinks(s.points, 2, label), { count: s.count, limit }).causal;
@@ -100,7 +100,7 @@ print(json.dumps(sorted([float(v) for v in ev if v>1e-6*max(ev)], reverse=True))
       { n: s.count, pairs, m: mass, rho: s.density },
     );
     // numpy's kernel modes come out as ±1e-16 in either sign, ours (through ΔᵀΔ) near 1e-8 λ_max, so
-    // both lists are compared above 1e-6 λ_max, where genuine modes of these sets lie (physics notes §4–5);
+    // both lists are compared above 1e-6 λ_max, where genuine modes of these sets lie (server/engine/README.md §6);
     // ours holds ⌊N/2⌋ values in all
     expect(ours.eigenvalues.length).toBe(Math.floor(s.count / 2));
     expect(ours.eigenvalues.filter((v) => v > 1e-6 * ours.eigenvalues[0]).length).toBe(reference.length);

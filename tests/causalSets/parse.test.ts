@@ -84,7 +84,7 @@ describe('coordinates CSV', () => {
   });
 
   it('rejects points outside the stated region with the exact membership test', () => {
-    // 2D diamond of proper time 2: |t| + |x| < 1 (physics notes §1)
+    // 2D diamond of proper time 2: |t| + |x| < 1 (server/engine/README.md §2)
     const region = { kind: 'diamond2d', properTime: 2 } as const;
     expect(parseCoordinatesCsv('t,x\n0,0.99\n0.5,-0.49\n', { region, limit }).n).toBe(2);
     const e = fileError(() => parseCoordinatesCsv('t,x\n0,0.99\n0.5,0.51\n', { region, limit }));

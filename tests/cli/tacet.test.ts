@@ -28,7 +28,7 @@ describe('tacet command line', () => {
     expect(vacuum.dimension).toBe(2);
     expect(vacuum.eigenvalues).toHaveLength(75);
     for (let k = 1; k < vacuum.eigenvalues.length; k++) expect(vacuum.eigenvalues[k]).toBeLessThanOrEqual(vacuum.eigenvalues[k - 1]);
-    expect(vacuum.cutoff).toBeCloseTo(Math.sqrt(150) / (4 * Math.PI), 12); // Sorkin–Yazdi cut, physics notes §4
+    expect(vacuum.cutoff).toBeCloseTo(Math.sqrt(150) / (4 * Math.PI), 12); // Sorkin–Yazdi cut, server/engine/README.md §7
     expect(vacuum.modesKept).toBe(vacuum.eigenvalues.filter((l: number) => l > vacuum.cutoff).length);
     expect(vacuum.diagnostics.hermiticityError).toBeLessThan(1e-12);
 

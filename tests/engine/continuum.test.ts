@@ -32,11 +32,11 @@ print(json.dumps([brentq(g, 0.5 if n == 0 else n*math.pi, n*math.pi + math.pi/2,
       null,
     );
     theirs.forEach((x, k) => expect(ours[k]).toBeCloseTo(x, 12));
-    expect(ours[0]).toBeCloseTo(1.165561, 6); // physics notes §4
+    expect(ours[0]).toBeCloseTo(1.165561, 6); // server/engine/README.md §8
   });
 
   it('matches λ_1/N and each of the top 20 eigenvalues at N = 1000', () => {
-    // Afshordi–Aslanbeigi–Sorkin 2012 via physics notes §4: λ_k ≈ N/(4 x_k); single sprinklings at
+    // Afshordi–Aslanbeigi–Sorkin 2012 via server/engine/README.md §8: λ_k ≈ N/(4 x_k); single sprinklings at
     // N = 1000–2000 agree within 3 % for λ_1 and 5 % for each of the top 20 (numpy check there)
     expect(Math.abs(spectrum.positive[0] / N / 0.21449 - 1)).toBeLessThan(0.03);
     const continuum = continuumDiamondSpectrum(N, 20);
@@ -44,7 +44,7 @@ print(json.dumps([brentq(g, 0.5 if n == 0 else n*math.pi, n*math.pi + math.pi/2,
   });
 
   it('has about 2√N positive eigenvalues above √N/(4π)', () => {
-    // Sorkin–Yazdi 2018 cut with the count from physics notes §4 (numpy: 62 at N = 1000)
+    // Sorkin–Yazdi 2018 cut with the count from server/engine/README.md §7 (numpy: 62 at N = 1000)
     const t = applyTruncation(spectrum.positive, N, { rule: 'sqrtN' });
     expect(t.cutoff).toBeCloseTo(Math.sqrt(N) / (4 * Math.PI), 12);
     expect(Math.abs(t.modesKept - 2 * Math.sqrt(N))).toBeLessThan(0.1 * 2 * Math.sqrt(N));
@@ -66,7 +66,7 @@ print(json.dumps([brentq(g, 0.5 if n == 0 else n*math.pi, n*math.pi + math.pi/2,
   });
 
   it('satisfies the SJ identities for every truncation rule', () => {
-    // physics notes §4: Hermitian, positive semidefinite, W − W̄ = iΔ_c, W W̄ = 0, tr W = Σ kept λ₊
+    // server/engine/README.md §5: Hermitian, positive semidefinite, W − W̄ = iΔ_c, W W̄ = 0, tr W = Σ kept λ₊
     const lambdaMax = spectrum.positive[0];
     // (the untruncated state is checked on diamond300 and the entropy ensemble, where it is cheaper)
     for (const rule of [{ rule: 'sqrtN' }, { rule: 'knee' }, { rule: 'modes', count: 40 }, { rule: 'lambda', cut: 5 }] as const) {

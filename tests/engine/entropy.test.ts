@@ -13,7 +13,7 @@ import type { LinearAlgebraBackend } from '../../server/engine/linalg/backend';
 
 // Statistical test, seeded: three fixed-N sprinklings of N = 600 into the diamond with tips t = ±√2, and
 // centred sub-diamonds of growing size. Expected behaviour from Sorkin 2012 / Saravani–Sorkin–Yazdi 2014
-// and Sorkin–Yazdi 2018 (physics notes §5): untruncated S grows like the subregion's spacetime volume,
+// and Sorkin–Yazdi 2018 (server/engine/README.md §9–§10): untruncated S grows like the subregion's spacetime volume,
 // double-truncated S ≈ b ln √n + c with b near 1/3 is far smaller.
 const seeds = ['ssee-a', 'ssee-b', 'ssee-c'];
 const fractions = [0.25, 0.35, 0.5];
@@ -81,7 +81,7 @@ describe('spacetime entanglement entropy of sub-diamonds (statistical, seeded)',
       doubleTruncation: true,
     });
     // double truncation keeps S of order one; with the whole-region cut alone the restricted state of
-    // this subregion is pure and S is rounding noise of 1e-6 (physics notes §5), nothing to compare
+    // this subregion is pure and S is rounding noise of 1e-6 (server/engine/README.md §6, §9), nothing to compare
     const direct = entanglementEntropy(cut, elements, { doubleTruncation: true });
     expect(direct.S).toBeGreaterThan(0.1);
     expect(viaPipeline.entropy?.n).toBe(elements.length);

@@ -139,14 +139,14 @@ function prepare(region: RegionSpec, count: number, seed: string, mass: number, 
 /**
  * Tolerances: after the second cut the generalized problem is well conditioned (agreement near 1e-13
  * measured), so 1e-9 relative; untruncated or single-cut, the smallest kept modes of iΔ_O are far
- * smaller and the engine's W carries its ΔᵀΔ rounding of the near-zero modes (physics notes §4;
+ * smaller and the engine's W carries its ΔᵀΔ rounding of the near-zero modes (server/engine/README.md §6;
  * agreement 1e-13 to 4e-9 measured), so 1e-7. Both are well below the ~1e-6 asked of the engine.
  */
 function expectAgreement(result: VacuumResult, reference: Reference, expected: ReferenceCase, c: Case) {
   const tolerance = c.doubleTruncation ? 1e-9 : 1e-7;
   expect(Math.abs(result.density! / reference.density - 1)).toBeLessThan(1e-12);
   if (result.engine === 'dense') {
-    // physics notes §4: large eigenvalues compare relatively, the near-zero ones absolutely (relative
+    // server/engine/README.md §6: large eigenvalues compare relatively, the near-zero ones absolutely (relative
     // to λ_max), as through ΔᵀΔ they come out near √ε λ_max
     expect(result.eigenvalues.length).toBe(reference.positive.length);
     const top = reference.positive[0]!;

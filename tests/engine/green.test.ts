@@ -7,7 +7,7 @@ import { runPython } from '../support/python';
 
 describe('2D massive retarded Green function', () => {
   it('averages to ½ J₀(mτ) over related pairs binned by proper time', () => {
-    // Johnston 2008 (CQG 25 202001), check of physics notes §3: N = 1500, m = 2, diamond u, v ∈ [−1, 1];
+    // Johnston 2008 (CQG 25 202001), check of server/engine/README.md §4: N = 1500, m = 2, diamond u, v ∈ [−1, 1];
     // numpy agreed within 0.005 absolute for τ from 0.1 to 2.3. J₀ from scipy.special.j0.
     // Statistical: single sprinklings scatter by several thousandths at large τ (the pairs of one
     // sprinkling are strongly correlated), so the bins pool three seeded sprinklings.
@@ -62,7 +62,7 @@ print(json.dumps(k.tolist()))`,
 
 describe('4D massless retarded Green function', () => {
   it('integrates to T²/8 on the axis, approaching from below as T grows', () => {
-    // derived from G_R = θ(Δt) δ(τ²)/(2π), physics notes §3: (1/ρ) Σ_y K[x][y] → T²/8 for x on the axis at
+    // derived from G_R = θ(Δt) δ(τ²)/(2π), server/engine/README.md §4: (1/ρ) Σ_y K[x][y] → T²/8 for x on the axis at
     // height T above the bottom tip; numpy at N = 6000 (tips t = ±1) gave ratios 0.63, 0.77, 0.88, 0.92
     // at T ≈ 0.75, 1.05, 1.35, 1.65. K = (√ρ/(2π√6)) Lᵀ, so Σ_y K[x][y] = weight × (links below x).
     const s = sprinkle({ region: { kind: 'diamond4d', properTime: 2 }, process: 'fixed', count: 6000, seed: 'four-d', prng: 'arc4' });

@@ -1,7 +1,7 @@
 /**
  * The two dense backends against each other, against numpy/scipy (Debian's /usr/bin/python3) and on the
- * reference causal set of /work/shared/reference (fixtures/diamond300.*, computed with numpy 1.24.2 and
- * LAPACK). The native half runs when the addon is built (npm run build:native); the fallback half always.
+ * reference causal set fixtures/diamond300.* (server/engine/README.md §13, computed with numpy 1.24.2
+ * and LAPACK). The native half runs when the addon is built (npm run build:native); the fallback half always.
  */
 import { spawnSync } from 'node:child_process';
 import { createRequire } from 'node:module';
@@ -312,7 +312,7 @@ describe.skipIf(!native.backend)(`native (OpenBLAS/LAPACK) against ml-matrix${na
     const { gram } = pauliJordanGram(300, 5);
     const n = gram.rows;
     const all = mlMatrixBackend.symmetricEigen(gram, { vectors: false }).values;
-    // √N/(4π) on σ, squared for ΔᵀΔ (Sorkin–Yazdi 2018 cut, physics notes §4)
+    // √N/(4π) on σ, squared for ΔᵀΔ (Sorkin–Yazdi 2018 cut, server/engine/README.md §7)
     const cut = n / (16 * Math.PI ** 2);
     const expected = all.filter((x) => x > cut);
     const above = nativeBackend.symmetricEigen(gram, { above: cut });
@@ -456,7 +456,7 @@ describe.skipIf(!native.backend)(`native (OpenBLAS/LAPACK) against ml-matrix${na
   });
 });
 
-describe('dense pipeline on both backends, fixtures/diamond300 (numpy 1.24.2 + LAPACK reference, /work/shared/reference)', () => {
+describe('dense pipeline on both backends, fixtures/diamond300 (numpy 1.24.2 + LAPACK reference, server/engine/README.md §13)', () => {
   const fixtureDir = path.resolve(import.meta.dirname, '..', '..', 'fixtures');
   const reference = JSON.parse(readFileSync(path.join(fixtureDir, 'diamond300.ref.json'), 'utf8')) as {
     positive_eigs: number[];
@@ -502,7 +502,7 @@ describe('dense pipeline on both backends, fixtures/diamond300 (numpy 1.24.2 + L
       expect(fallback.backend).toBe('ml-matrix');
       const top = reference.positive_eigs[0];
       // the decomposed matrix is ΔᵀΔ: its eigenvalues σ² agree to 1e-10 of the largest; σ near zero
-      // inherits an absolute error of about √ε‖Δ‖ from the square root (physics notes §4)
+      // inherits an absolute error of about √ε‖Δ‖ from the square root (server/engine/README.md §6)
       const squares = (values: Float64Array) => values.map((x) => x * x);
       expect(maxAbsDifference(squares(ours.eigenvalues), squares(fallback.eigenvalues)) / top ** 2).toBeLessThan(1e-10);
       // above the kernel the eigenvalues match numpy's complex Hermitian eigh closely

@@ -25,7 +25,7 @@ const maxDiff = (a: ArrayLike<number>, b: ArrayLike<number>) => Array.from(a).re
 
 // The reference throughout is the dense engine (server/engine/order.ts linkMatrix from the bit-packed
 // causal matrix, green.ts retardedGreen with its unit-triangular solve): the brute-force definitions of
-// physics notes §1 and §3 (Johnston 2009, PRL 103 180401), common practice for checking a fast operator.
+// server/engine/README.md §1 and §4 (Johnston 2009, PRL 103 180401), common practice for checking a fast operator.
 describe('4D links as sparse rows and Δ as a sparse product, against the dense 4D engine', () => {
   const s = diamond4(600, 'links-4d');
   const causal = causalMatrix(s.points, 4);

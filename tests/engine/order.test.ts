@@ -4,7 +4,7 @@ import { makeRegion } from '../../server/engine/regions';
 import { poissonVariate, seededUniform, sprinkle } from '../../server/engine/sprinkle';
 
 function bruteForceLinks(n: number, related: (i: number, j: number) => boolean): boolean[][] {
-  // definition of physics notes §1: i ≺ j with no k such that i ≺ k ≺ j
+  // definition of server/engine/README.md §1: i ≺ j with no k such that i ≺ k ≺ j
   return Array.from({ length: n }, (_, i) =>
     Array.from({ length: n }, (_, j) => {
       if (!related(i, j)) return false;
@@ -24,7 +24,7 @@ describe('causal order and links', () => {
       const d = s.dimension;
       const p = s.points;
       const light = (i: number, j: number) => {
-        // physics notes §1: i ≺ j iff t_j − t_i > |x⃗_j − x⃗_i|
+        // server/engine/README.md §1: i ≺ j iff t_j − t_i > |x⃗_j − x⃗_i|
         let r2 = 0;
         for (let k = 1; k < d; k++) r2 += (p[j * d + k] - p[i * d + k]) ** 2;
         return p[j * d] - p[i * d] > Math.sqrt(r2);
@@ -80,7 +80,7 @@ describe('regions and sprinkling', () => {
     expect(Buffer.from(a.points.buffer).equals(Buffer.from(c.points.buffer))).toBe(false);
   });
 
-  it('has exact volumes: τ²/2 and πτ⁴/24 (physics notes §1) and the wrapped cylinder diamond', () => {
+  it('has exact volumes: τ²/2 and πτ⁴/24 (server/engine/README.md §2) and the wrapped cylinder diamond', () => {
     expect(makeRegion({ kind: 'diamond2d', properTime: 3 }).volume).toBeCloseTo(4.5, 14);
     expect(makeRegion({ kind: 'diamond2d', past: { t: 0, x: 0 }, future: { t: 2, x: 1 } }).volume).toBeCloseTo(1.5, 14); // τ² = 4 − 1
     expect(makeRegion({ kind: 'diamond4d', properTime: 2 }).volume).toBeCloseTo((Math.PI * 16) / 24, 14);

@@ -14,7 +14,7 @@ describe('computeVacuum', () => {
     expect(seen).toEqual([...vacuumStages]);
     expect(r.N).toBe(120);
     expect(r.points).toHaveLength(240);
-    expect(r.density).toBeCloseTo(60, 12); // N / (τ²/2), physics notes §1
+    expect(r.density).toBeCloseTo(60, 12); // N / (τ²/2), server/engine/README.md §2
     expect(r.eigenvalues).toHaveLength(60);
     expect(r.cutoff).toBeCloseTo(Math.sqrt(120) / (4 * Math.PI), 12);
     expect(r.entropy?.doubleTruncation).toBe(true);

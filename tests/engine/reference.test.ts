@@ -47,7 +47,7 @@ describe('diamond300 against the numpy/LAPACK reference', () => {
     expect(spectrum.positive.length).toBe(ref.positive_eigs.length);
     const top = ref.positive_eigs[0];
     ref.positive_eigs.forEach((expected, k) => {
-      // physics notes §4: through ΔᵀΔ a mode comes out to about ε‖Δ‖²/σ, so large eigenvalues are
+      // server/engine/README.md §6: through ΔᵀΔ a mode comes out to about ε‖Δ‖²/σ, so large eigenvalues are
       // compared relatively (1e-8) and the near-zero ones (true zeros, here down to 1e-16, which come
       // out near √ε λ_max) absolutely, relative to λ_max (1e-8)
       const error = Math.abs(spectrum.positive[k] - expected);
@@ -76,7 +76,7 @@ describe('diamond300 against the numpy/LAPACK reference', () => {
     expect(Math.abs(doubled.S / ref.S_double_truncated - 1)).toBeLessThan(1e-8);
     expect(doubled.modesKept).toBe(ref.kept_sub_tr);
 
-    // the generalized eigenvalues come in pairs μ, 1 − μ and reproduce S = Σ μ ln|μ| (physics notes §5)
+    // the generalized eigenvalues come in pairs μ, 1 − μ and reproduce S = Σ μ ln|μ| (server/engine/README.md §9)
     const mu = doubled.generalizedEigenvalues;
     let sum = 0;
     for (const m of mu) sum += m * Math.log(Math.abs(m));
@@ -86,7 +86,7 @@ describe('diamond300 against the numpy/LAPACK reference', () => {
   });
 
   it('satisfies the SJ identities, with tr W equal to the reference trace', () => {
-    // physics notes §4: W Hermitian, positive semidefinite, W − W̄ = iΔ_c, W W̄ = 0, tr W = Σ λ₊
+    // server/engine/README.md §5: W Hermitian, positive semidefinite, W − W̄ = iΔ_c, W W̄ = 0, tr W = Σ λ₊
     for (const rule of [{ rule: 'none' as const }, { rule: 'sqrtN' as const }, { rule: 'knee' as const }]) {
       const truncation = applyTruncation(spectrum.positive, ref.N, rule);
       const d = sjDiagnostics(sjState(delta, spectrum, truncation), spectrum.positive);

@@ -8,7 +8,7 @@ import { runPython } from '../support/python';
  * Entropy with only the whole-region cut (no second cut in the subregion). The restricted W_c and iΔ_c
  * have rank at most 2k for k kept positive modes, so when the subregion holds more than 2k elements the
  * restricted state is pure and S = 0 in exact arithmetic. Reference: numpy (complex Hermitian eigh of
- * iΔ, the definitions of physics.md §4–5) on the same points; the run page explains the zero.
+ * iΔ, the definitions of server/engine/README.md §5 and §9) on the same points; the run page explains the zero.
  */
 const points = readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url), 'utf8')
   .trim()

@@ -1,6 +1,6 @@
 /**
  * The SJ-state checks as sjDiagnostics computes them (in the kept basis, reusing the state's products)
- * against the same checks computed directly from their definitions (physics notes §4: W Hermitian and
+ * against the same checks computed directly from their definitions (server/engine/README.md §5: W Hermitian and
  * positive semidefinite, W − W̄ = iΔ_c with iΔ_c = iΔP, W W̄ = 0, tr W), on N × N matrices formed
  * explicitly, for the untruncated and the √N/(4π)-truncated state, on both linear-algebra backends;
  * and the probe estimates that replace the untruncated N³ checks at large N against the exact ones.

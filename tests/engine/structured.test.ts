@@ -72,7 +72,7 @@ describe('2D dominance-sum operator against the brute-force dense Δ (common pra
 });
 
 // Source: fixtures/diamond300.ref.json — numpy 1.24.2 / LAPACK on exactly the points of fixtures/diamond300.csv
-describe('structured engine on the diamond300 reference (physics notes §6)', () => {
+describe('structured engine on the diamond300 reference (server/engine/README.md §13)', () => {
   const ref = JSON.parse(readFileSync(new URL('../../fixtures/diamond300.ref.json', import.meta.url), 'utf8'));
   const points = Float64Array.from(
     readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url), 'utf8')
@@ -122,7 +122,7 @@ describe('structured against dense on the same points (issue 9: eigenvalues 1e-8
     expect(progress.length).toBeGreaterThan(1);
   });
 
-  it('returns orthonormal pairs with Δa = σb and Δb = −σa (physics notes §4)', () => {
+  it('returns orthonormal pairs with Δa = σb and Δb = −σa (server/engine/README.md §12)', () => {
     const k = pairs.sigma.length;
     let worst = 0;
     for (let i = 0; i < k; i += 7) {
@@ -145,7 +145,7 @@ describe('structured against dense on the same points (issue 9: eigenvalues 1e-8
     }
   });
 
-  it('factored state: tr W_c = Σσ and W − W̄ = iΔ_c on a vector (physics notes §4)', () => {
+  it('factored state: tr W_c = Σσ and W − W̄ = iΔ_c on a vector (server/engine/README.md §5)', () => {
     const state = factoredState(pairs, cut);
     const sum = pairs.sigma.reduce((p, q) => p + q, 0);
     expect(Math.abs(factoredTrace(state) / sum - 1)).toBeLessThan(1e-12);
@@ -168,7 +168,7 @@ describe('structured against dense on the same points (issue 9: eigenvalues 1e-8
   });
 });
 
-describe('large-N outside check: continuum spectrum of the 2D diamond (AAS 2012, physics notes §4)', () => {
+describe('large-N outside check: continuum spectrum of the 2D diamond (AAS 2012, server/engine/README.md §8)', () => {
   it('λ_1/N within 3 % and the top 20 within 5 % of N/(4x_k) at N = 4000', () => {
     const n = 4000;
     const s = diamond(n, 'continuum');
@@ -176,7 +176,7 @@ describe('large-N outside check: continuum spectrum of the 2D diamond (AAS 2012,
     const continuum = continuumDiamondSpectrum(n, 20);
     expect(Math.abs(pairs.sigma[0] / continuum[0] - 1)).toBeLessThan(0.03);
     for (let i = 0; i < 20; i++) expect(Math.abs(pairs.sigma[i] / continuum[i] - 1)).toBeLessThan(0.05);
-    // about 2√N positive eigenvalues above √N/(4π) (physics notes §4: 90 at N = 2000)
+    // about 2√N positive eigenvalues above √N/(4π) (server/engine/README.md §7; numpy: 90 at N = 2000)
     expect(Math.abs(pairs.sigma.length / (2 * Math.sqrt(n)) - 1)).toBeLessThan(0.1);
   });
 });

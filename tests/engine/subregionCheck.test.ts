@@ -8,7 +8,7 @@ import { diamondPlacementIssue, elementListIssue } from '../../server/engine/sub
 /**
  * The refusal of subregions that can never be computed. The geometric claims behind the rule are checked
  * by sampling, independently of the rule's own formulas: a sub-diamond accepted in a region must have
- * every event e with p ≺ e ≺ q (the order of physics notes §1, periodic on the cylinder) inside the
+ * every event e with p ≺ e ≺ q (the order of server/engine/README.md §1, periodic on the cylinder) inside the
  * closed region, and one refused in a slab must have such events outside it.
  */
 

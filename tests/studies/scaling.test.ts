@@ -8,7 +8,7 @@ import { backendSelection } from '../../server/engine/linalg';
 /**
  * A statistical check of the physics a study exists for (seeded, so it always draws the same
  * sprinklings; statistical in that it tests ensemble means, not single values). Expected behaviour
- * (physics notes §5): without truncation S grows like the subregion's spacetime volume (Saravani–Sorkin–
+ * (server/engine/README.md §9–§10): without truncation S grows like the subregion's spacetime volume (Saravani–Sorkin–
  * Yazdi 2014, CQG 31 214006); with double truncation S ≈ b ln √n + c with b = c/3 = 1/3 for one free
  * boson (Calabrese–Cardy 2004, J. Stat. Mech. P06002; on causal sets with double truncation Sorkin–Yazdi
  * 2018, CQG 35 074004; both values recalled from memory).

@@ -2,7 +2,7 @@
  * The 2D Pauli–Jordan operator applied to vectors without ever forming a matrix.
  *
  * In light-cone coordinates u = (t+x)/√2, v = (t−x)/√2 the order is i ≺ j iff u_i < u_j and v_i < v_j
- * (physics notes §1), so (Cᵀw)_x = Σ_{y≺x} w_y is a two-dimensional dominance sum: sweep the elements in
+ * (server/engine/README.md §1), so (Cᵀw)_x = Σ_{y≺x} w_y is a two-dimensional dominance sum: sweep the elements in
  * increasing u and keep the already-swept weights in a Fenwick (binary indexed) tree over the rank of v;
  * the sum over y ≺ x is a prefix query below v_x. Each product costs O(N log N) time and O(N) memory.
  */
@@ -65,7 +65,7 @@ export function lightConeSweep(t: ArrayLike<number>, x: ArrayLike<number>): Ligh
  * One sweep of the retarded (or, with `future`, advanced) dominance sum with optional massive
  * substitution. With c = 0 it returns sums[x] = Σ_{y≺x} w_y (Cᵀw). With c > 0 it solves
  * (I + c·Cᵀ) z = w by forward substitution in the sweep order — legitimate because the system is unit
- * lower triangular in any order respecting ≺ (physics notes §3) — and returns sums = Cᵀz. `future`
+ * lower triangular in any order respecting ≺ (server/engine/README.md §4) — and returns sums = Cᵀz. `future`
  * mirrors everything: Cw and (I + c·C) z = w.
  *
  * Elements with equal u are never related, so each group is queried before any of it is inserted.
@@ -153,7 +153,7 @@ export interface PauliJordan2DOptions {
 
 /**
  * Δ = K − Kᵀ for the 2D retarded Green function of Johnston 2008 (CQG 25 202001): K = ½Cᵀ massless,
- * K_m = ½Cᵀ(I + (m²/2ρ)Cᵀ)⁻¹ massive (physics notes §3). K_m·w = ½·Cᵀz with (I + cCᵀ)z = w, and
+ * K_m = ½Cᵀ(I + (m²/2ρ)Cᵀ)⁻¹ massive (server/engine/README.md §4). K_m·w = ½·Cᵀz with (I + cCᵀ)z = w, and
  * K_mᵀ·w = ½·Cz' with (I + cC)z' = w, c = m²/(2ρ): two sweeps per product, the substitution and the
  * dominance sum done together.
  */

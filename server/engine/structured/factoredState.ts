@@ -4,7 +4,7 @@ import type { SjDiagnostics, SjState } from '../sjState';
 import type { SkewPairs } from './lanczos';
 
 /**
- * The truncated SJ state kept as N × k factors, never as an N × N matrix (physics notes §4).
+ * The truncated SJ state kept as N × k factors, never as an N × N matrix (server/engine/README.md §5, §12).
  * With orthonormal pairs Δ a_i = σ_i b_i, Δ b_i = −σ_i a_i for the k kept σ_i > λ_c:
  *   |Δ|_c = Σ σ_i (a_i a_iᵀ + b_i b_iᵀ),  Δ_c = Σ σ_i (b_i a_iᵀ − a_i b_iᵀ),
  *   W_c = ½(|Δ|_c + iΔ_c) = Σ σ_i e_i e_i†  with e_i = (a_i + i b_i)/√2,
@@ -26,7 +26,7 @@ export function factoredState(pairs: SkewPairs, cutoff: number): FactoredSjState
   return { size: pairs.size, sigma: pairs.sigma, a: pairs.a, b: pairs.b, cutoff };
 }
 
-/** tr W_c = Σ σ_i (each e_i is a unit vector), what physics notes §4 asks to equal the kept positive eigenvalues. */
+/** tr W_c = Σ σ_i (each e_i is a unit vector), what server/engine/README.md §5 asks to equal the kept positive eigenvalues. */
 export function factoredTrace(state: FactoredSjState): number {
   let trace = 0;
   for (let i = 0; i < state.sigma.length; i++) {
@@ -90,7 +90,7 @@ export function toDenseSjState(state: FactoredSjState, delta: DenseMatrix): SjSt
 }
 
 /**
- * The checks of physics notes §4 on the factored state, in the same form as the dense engine's
+ * The checks of server/engine/README.md §5 on the factored state, in the same form as the dense engine's
  * SjDiagnostics, from the one Gram product H = FᵀF of F = [a_1, b_1, a_2, b_2, …] (O(N k²), dsyrk on
  * native) and the Lanczos residuals:
  * - W_c = E S E† with S = diag(σ) ≥ 0 is Hermitian and positive semidefinite by construction, and has a

@@ -2,7 +2,7 @@
  * The 4D Pauli–Jordan operator as a sparse product over the links (issue 9).
  *
  * In 4D the massless retarded Green function is K = (√ρ / (2π√6)) Lᵀ (Johnston 2009, PRL 103 180401;
- * physics notes §3): only links enter, and a sprinkled 4D causal set has far fewer links than relations.
+ * server/engine/README.md §4): only links enter, and a sprinkled 4D causal set has far fewer links than relations.
  * The links are found from bit-packed causal rows in time order and kept as compressed sparse rows
  * (CSR) twice — each element's past links and its future links — so K·w and Kᵀ·w cost O(links).
  */
@@ -41,7 +41,7 @@ function precedes4(points: ArrayLike<number>, a: number, b: number): boolean {
 }
 
 /**
- * The links of 4D points (t, x, y, z per element; physics notes §1: i ⋖ j iff i ≺ j with nothing
+ * The links of 4D points (t, x, y, z per element; server/engine/README.md §1: i ⋖ j iff i ≺ j with nothing
  * between). Sorted by t, the past of element q is a bit row over the positions before q (N²/16 bytes in
  * all). For each q its past is scanned latest first: p is a link iff no later predecessor k of q has
  * p ≺ k. Every non-link p lies in the past of some link k of q (take a maximal element between), so it
@@ -116,7 +116,7 @@ export interface PauliJordan4DOptions {
 
 /**
  * Δ = K − Kᵀ for the 4D retarded Green function: massless K = (√ρ/(2π√6)) Lᵀ (Johnston 2009, PRL 103
- * 180401), massive K_m = Φ(I + (m²/ρ)Φ)⁻¹ with Φ the massless K (Johnston 2008/2009; physics notes §3).
+ * 180401), massive K_m = Φ(I + (m²/ρ)Φ)⁻¹ with Φ the massless K (Johnston 2008/2009; server/engine/README.md §4).
  * K_m·w = Φs with (I + cΦ)s = w, c = m²/ρ: Φ is strictly lower triangular in time order, so s is
  * found by forward substitution over the past links and Φs in the same pass (row q needs only s at
  * its past links, all earlier). K_mᵀ·w = Φᵀs' with (I + cΦᵀ)s' = w likewise, backwards over the future
