@@ -363,7 +363,3 @@ export const studyDetailSchema = studySummarySchema.extend({
   backends: z.array(z.string()),
 });
 export type StudyDetail = z.infer<typeof studyDetailSchema>;
-
-export const studyExportFormats = ['csv', 'aggregates-csv', 'latex', 'json', 'bibtex', 'methods'] as const;
-export const studyExportQuerySchema = z.strictObject({ format: z.enum(studyExportFormats) });
-export type StudyExportFormat = (typeof studyExportFormats)[number];

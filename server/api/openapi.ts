@@ -16,6 +16,7 @@ import {
   userSchema,
 } from '@shared/auth';
 import { causalSetDetailSchema, causalSetListResponseSchema, causalSetMetadataSchema } from '@shared/causalSets';
+import { runExportFormats, runExports, studyExportQuerySchema, type RunExportRow } from '@shared/exports';
 import { engineLimitsSchema } from '@shared/limits';
 import { permissions, roleSchema, type Permission } from '@shared/roles';
 import {
@@ -28,7 +29,7 @@ import {
   runListResponseSchema,
   runPointsSchema,
 } from '@shared/runs';
-import { createStudyRequestSchema, studyDetailSchema, studyExportQuerySchema, studyListResponseSchema } from '@shared/studies';
+import { createStudyRequestSchema, studyDetailSchema, studyListResponseSchema } from '@shared/studies';
 import {
   changeRoleRequestSchema,
   createInvitationRequestSchema,
@@ -109,9 +110,11 @@ export const apiRoutes: ApiRouteDescription[] = [
   { method: 'post', path: '/api/runs/:id/reanalyse', summary: 'A new run on the same points with other settings', tag: 'runs', access: 'compute', status: 202, body: reanalyseRunRequestSchema, response: idAnswer },
   { method: 'delete', path: '/api/runs/:id', summary: 'Delete a run (cancels it first when running)', tag: 'runs', access: 'compute', status: 204 },
   { method: 'get', path: '/api/runs/:id/points', summary: 'The causal set elements of a done run', tag: 'runs', access: 'read', status: 200, response: runPointsSchema },
-  { method: 'get', path: '/api/runs/:id/points.csv', summary: 'Elements as CSV (t,x or t,x,y,z)', tag: 'runs', access: 'read', status: 200, produces: 'text/csv' },
-  { method: 'get', path: '/api/runs/:id/spectrum.csv', summary: 'Spectrum as CSV: rank,eigenvalue,continuum,kept', tag: 'runs', access: 'read', status: 200, produces: 'text/csv' },
-  { method: 'get', path: '/api/runs/:id/spectrum.json', summary: 'Spectrum with cut and continuum', tag: 'runs', access: 'read', status: 200, response: z.object({ eigenvalues: z.array(z.number()), continuum: z.array(z.number()).nullable(), cutoff: z.number(), modesKept: z.number().int(), N: z.number().int() }) },
+  ...runExportFormats.map((format): ApiRouteDescription => {
+    const row: RunExportRow = runExports[format];
+    const answer = row.schema ? { response: row.schema } : { produces: row.contentType.split(';')[0]! };
+    return { method: 'get', path: `/api/runs/:id/${format}`, summary: row.summary, tag: 'runs', access: 'read', status: 200, ...answer };
+  }),
 
   { method: 'get', path: '/api/cut-rules', summary: "The team's saved truncation rules", tag: 'cut rules', access: 'read', status: 200, response: list(cutRuleSchema) },
   { method: 'post', path: '/api/cut-rules', summary: 'Save a truncation rule', tag: 'cut rules', access: 'compute', status: 201, body: createCutRuleRequestSchema, response: cutRuleSchema },

@@ -1,3 +1,4 @@
+import type { StudyExportFormat } from '../../shared/exports';
 import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyRule, StudyStatus } from '../../shared/studies';
 import { studyRuleKey, studyRuleLabel } from '../../shared/studies';
 import {
@@ -502,3 +503,13 @@ export function provenanceJson(input: StudyExportInput, exportedAt: Date = new D
     references: referencesUsed(input.request),
   };
 }
+
+/** One renderer per format of shared/exports.ts `studyExports`. */
+export const studyRenderers: Record<StudyExportFormat, (input: StudyExportInput) => string> = {
+  csv: (input) => tidyCsv(input.entropies, input.request.rules),
+  'aggregates-csv': (input) => aggregatesCsv(input.aggregates, input.request.rules),
+  latex: (input) => latexTable(input),
+  json: (input) => JSON.stringify(provenanceJson(input), null, 2) + '\n',
+  methods: (input) => methodsParagraph(input),
+  bibtex: (input) => bibtex(input.request),
+};

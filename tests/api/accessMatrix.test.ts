@@ -2,6 +2,7 @@ import { randomBytes, randomUUID } from 'node:crypto';
 import type { Worker } from 'bullmq';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runExportFormats } from '@shared/exports';
 import { permissions, roles, type Role } from '@shared/roles';
 import { apiRoutes, openApiPath, type RouteAccess } from '../../server/api/openapi';
 import { insertMembership } from '../../server/db/repositories/teams';
@@ -176,9 +177,13 @@ const matrix: Record<string, MatrixCase> = {
   },
   'DELETE /api/runs/:id': { access: 'compute', success: 204, prepare: async () => ({ path: `/api/runs/${await newRun()}` }) },
   'GET /api/runs/:id/points': { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/points` }) },
-  'GET /api/runs/:id/points.csv': { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/points.csv` }) },
-  'GET /api/runs/:id/spectrum.csv': { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/spectrum.csv` }) },
-  'GET /api/runs/:id/spectrum.json': { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/spectrum.json` }) },
+  // one route per run export of shared/exports.ts (points.csv, spectrum.csv, spectrum.json)
+  ...Object.fromEntries(
+    runExportFormats.map((format): [string, MatrixCase] => [
+      `GET /api/runs/:id/${format}`,
+      { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/${format}` }) },
+    ]),
+  ),
 
   'GET /api/cut-rules': { access: 'read', success: 200 },
   'POST /api/cut-rules': { access: 'compute', success: 201, prepare: async () => ({ body: { name: `rule ${unique()}`, rule: { rule: 'sqrtN' } } }) },

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { createRunRequestSchema } from '@shared/runs';
 import { DENSE_SIZE_LIMITS } from '../../server/engine/index';
-import { attachmentName, runsQueryString } from '../../src/features/runs/api/runs';
+import { runsQueryString } from '../../src/features/runs/api/runs';
+import { attachmentName } from '../../src/lib/download';
 import {
   describeTruncation,
   describeTruncationText,

@@ -1,19 +1,12 @@
-import { Router, type Response } from 'express';
+import { Router } from 'express';
+import { runExportFormats } from '@shared/exports';
 import { listRunsQuerySchema } from '@shared/runs';
 import { requireAuth, requireTeam } from '../context';
+import { sendExportFile } from '../exportResponse';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
 import type { AuthService } from '../services/auth-service';
 import type { RunService } from '../services/run-service';
 import type { TeamService } from '../services/team-service';
-
-/** 17 significant digits: enough for every float64 to read back as the same number (IEEE 754 §5.12.2). */
-const fullPrecision = (value: number) => value.toPrecision(17);
-
-function sendCsv(res: Response, filename: string, header: string, rows: string[]): void {
-  res.set('Content-Type', 'text/csv; charset=utf-8');
-  res.attachment(filename);
-  res.send([header, ...rows].join('\n') + '\n');
-}
 
 /** Vacuum runs of the current team; other teams' ids answer 404 like missing ones. */
 export function runRoutes(deps: { auth: AuthService; teams: TeamService; runs: RunService }): Router {
@@ -47,27 +40,15 @@ export function runRoutes(deps: { auth: AuthService; teams: TeamService; runs: R
   });
 
   router.get('/runs/:id/points', requirePermission('read'), async (req, res) => {
-    const { id: _id, ...points } = await runs.points(requireTeam(req), req.params.id as string);
-    res.json(points);
+    res.json(await runs.points(requireTeam(req), req.params.id as string));
   });
 
-  router.get('/runs/:id/points.csv', requirePermission('read'), async (req, res) => {
-    const { id, columns, points } = await runs.points(requireTeam(req), req.params.id as string);
-    sendCsv(res, `tacet-run-${id.slice(0, 8)}-points.csv`, columns.join(','), points.map((p) => p.map(fullPrecision).join(',')));
-  });
-
-  router.get('/runs/:id/spectrum.csv', requirePermission('read'), async (req, res) => {
-    const { id, eigenvalues, continuum, modesKept } = await runs.spectrum(requireTeam(req), req.params.id as string);
-    const rows = eigenvalues.map(
-      (value, k) => `${k + 1},${fullPrecision(value)},${continuum ? fullPrecision(continuum[k]!) : ''},${k < modesKept ? 1 : 0}`,
-    );
-    sendCsv(res, `tacet-run-${id.slice(0, 8)}-spectrum.csv`, 'rank,eigenvalue,continuum,kept', rows);
-  });
-
-  router.get('/runs/:id/spectrum.json', requirePermission('read'), async (req, res) => {
-    const { id: _id, ...spectrum } = await runs.spectrum(requireTeam(req), req.params.id as string);
-    res.json(spectrum);
-  });
+  // one route per export of shared/exports.ts, at /runs/:id/<format>
+  for (const format of runExportFormats) {
+    router.get(`/runs/:id/${format}`, requirePermission('read'), async (req, res) => {
+      sendExportFile(res, await runs.exportRun(requireTeam(req), req.params.id as string, format));
+    });
+  }
 
   return router;
 }

@@ -1,6 +1,7 @@
 import { Router } from 'express';
-import { studyExportQuerySchema } from '@shared/studies';
+import { studyExportQuerySchema } from '@shared/exports';
 import { requireAuth, requireTeam } from '../context';
+import { sendExportFile } from '../exportResponse';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
 import type { AuthService } from '../services/auth-service';
 import type { StudyService } from '../services/study-service';
@@ -35,11 +36,7 @@ export function studyRoutes(deps: { auth: AuthService; teams: TeamService; studi
 
   router.get('/studies/:id/export', requirePermission('read'), async (req, res) => {
     const { format } = studyExportQuerySchema.parse(req.query);
-    const { body, contentType, filename } = await studies.exportStudy(requireTeam(req), req.params.id as string, format);
-    // attachment() guesses a type from the extension, so the real one is set after it
-    res.attachment(filename);
-    res.set('Content-Type', contentType);
-    res.send(body);
+    sendExportFile(res, await studies.exportStudy(requireTeam(req), req.params.id as string, format));
   });
 
   return router;

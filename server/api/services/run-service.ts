@@ -9,6 +9,7 @@ import {
   type RunResult,
   type RunSummary,
 } from '@shared/runs';
+import type { RunExportFormat, RunSpectrumExport } from '@shared/exports';
 import { effectiveRestrictedCut, formatRestrictedCut, formatTruncationRule, ruleCautions, type RestrictedCut, type SprinklingSpec, type SubregionSpec, type TruncationRule } from '@shared/vacuum';
 import { decodeFloat64, decodeInt32 } from '../../db/arrays';
 import * as runs from '../../db/repositories/runs';
@@ -16,6 +17,7 @@ import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
 import { decodeRelationWords, loadCausalSetRunInput, type CausalSetReference } from './causal-set-service';
 import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 
@@ -220,12 +222,45 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
     }
   }
 
-  async function doneRunWithArrays(team: TeamContext, id: string) {
-    const row = await findOrThrow(team, id);
+  function requireDone(row: RunWithAuthor): RunWithAuthor {
     if (row.status !== 'done') {
       throw conflict('run_not_done', `The run is ${row.status}; its spectrum and points are available once it is done.`);
     }
     return row;
+  }
+
+  async function doneRunWithArrays(team: TeamContext, id: string) {
+    return requireDone(await findOrThrow(team, id));
+  }
+
+  async function pointsOf(row: RunWithAuthor): Promise<RunPoints> {
+    const arrays = await runs.loadRunArrays(m, row.teamId, row.id, ['points', 'subregionElements']);
+    if (!arrays?.points) {
+      throw conflict('points_not_ready', `The run is ${row.status}; its points are stored once it has sprinkled them.`);
+    }
+    const flat = decodeFloat64(arrays.points);
+    const d = row.dimension;
+    const points: number[][] = [];
+    for (let i = 0; i < flat.length / d; i++) points.push(Array.from(flat.subarray(i * d, (i + 1) * d)));
+    return {
+      dimension: d,
+      columns: d === 2 ? ['t', 'x'] : ['t', 'x', 'y', 'z'],
+      points,
+      subregionElements: arrays.subregionElements ? Array.from(decodeInt32(arrays.subregionElements)) : null,
+    };
+  }
+
+  async function spectrumOf(row: RunWithAuthor): Promise<RunSpectrumExport> {
+    requireDone(row);
+    const arrays = await runs.loadRunArrays(m, row.teamId, row.id, ['eigenvalues']);
+    const eigenvalues = Array.from(decodeFloat64(arrays!.eigenvalues!));
+    return {
+      eigenvalues,
+      continuum: continuumFor(row, eigenvalues.length),
+      cutoff: row.summary!.cutoff,
+      modesKept: row.summary!.modesKept,
+      N: row.n!,
+    };
   }
 
   return {
@@ -365,37 +400,15 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       };
     },
 
-    async points(team: TeamContext, id: string): Promise<RunPoints & { id: string }> {
-      const row = await findOrThrow(team, id);
-      const arrays = await runs.loadRunArrays(m, team.id, row.id, ['points', 'subregionElements']);
-      if (!arrays?.points) {
-        throw conflict('points_not_ready', `The run is ${row.status}; its points are stored once it has sprinkled them.`);
-      }
-      const flat = decodeFloat64(arrays.points);
-      const d = row.dimension;
-      const points: number[][] = [];
-      for (let i = 0; i < flat.length / d; i++) points.push(Array.from(flat.subarray(i * d, (i + 1) * d)));
-      return {
-        id: row.id,
-        dimension: d,
-        columns: d === 2 ? ['t', 'x'] : ['t', 'x', 'y', 'z'],
-        points,
-        subregionElements: arrays.subregionElements ? Array.from(decodeInt32(arrays.subregionElements)) : null,
-      };
+    async points(team: TeamContext, id: string): Promise<RunPoints> {
+      return pointsOf(await findOrThrow(team, id));
     },
 
-    async spectrum(team: TeamContext, id: string) {
-      const row = await doneRunWithArrays(team, id);
-      const arrays = await runs.loadRunArrays(m, team.id, row.id, ['eigenvalues']);
-      const eigenvalues = Array.from(decodeFloat64(arrays!.eigenvalues!));
-      return {
-        id: row.id,
-        eigenvalues,
-        continuum: continuumFor(row, eigenvalues.length),
-        cutoff: row.summary!.cutoff,
-        modesKept: row.summary!.modesKept,
-        N: row.n!,
-      };
+    /** One export of a run: body, content type and the attachment's file name. */
+    async exportRun(team: TeamContext, id: string, format: RunExportFormat): Promise<ExportFile> {
+      const row = await findOrThrow(team, id);
+      const body = await runRenderers[format]({ points: () => pointsOf(row), spectrum: () => spectrumOf(row) });
+      return exportFile('run', row.id, format, body);
     },
   };
 }

@@ -11,7 +11,6 @@ import {
   type StudyCausalSet,
   type StudyDetail,
   type StudyEntropy,
-  type StudyExportFormat,
   type StudySpectrum,
   type StudySummary,
 } from '@shared/studies';
@@ -25,16 +24,9 @@ import type { StudyCellRow } from '../../db/study-entities';
 import { EngineInputError, validateVacuumRequest } from '../../engine/index';
 import { decodeRelationWords } from './causal-set-service';
 import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
-import {
-  aggregatesCsv,
-  studyCautions,
-  bibtex,
-  latexTable,
-  methodsParagraph,
-  provenanceJson,
-  tidyCsv,
-  type StudyExportInput,
-} from '../../exports/studies';
+import type { StudyExportFormat } from '@shared/exports';
+import { exportFile, studyRenderers, type ExportFile } from '../../exports/index';
+import { studyCautions, type StudyExportInput } from '../../exports/studies';
 import {
   cellSprinkling,
   checkRulesFit,
@@ -414,27 +406,13 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     },
 
     /** One export of a study: body, content type and the attachment's file name. */
-    async exportStudy(team: TeamContext, id: string, format: StudyExportFormat): Promise<{ body: string; contentType: string; filename: string }> {
+    async exportStudy(team: TeamContext, id: string, format: StudyExportFormat): Promise<ExportFile> {
       const row = await findOrThrow(team, id);
       const input = await exportInput(row);
       if (input.entropies.length === 0) {
         throw conflict('study_not_ready', `The study is ${row.status} and no sprinkling has finished yet; exports need at least one.`);
       }
-      const base = `tacet-study-${row.id.slice(0, 8)}`;
-      switch (format) {
-        case 'csv':
-          return { body: tidyCsv(input.entropies, input.request.rules), contentType: 'text/csv; charset=utf-8', filename: `${base}-entropies.csv` };
-        case 'aggregates-csv':
-          return { body: aggregatesCsv(input.aggregates, input.request.rules), contentType: 'text/csv; charset=utf-8', filename: `${base}-aggregates.csv` };
-        case 'latex':
-          return { body: latexTable(input), contentType: 'text/x-tex; charset=utf-8', filename: `${base}-table.tex` };
-        case 'json':
-          return { body: JSON.stringify(provenanceJson(input), null, 2) + '\n', contentType: 'application/json; charset=utf-8', filename: `${base}.json` };
-        case 'bibtex':
-          return { body: bibtex(input.request), contentType: 'text/x-bibtex; charset=utf-8', filename: `${base}-references.bib` };
-        case 'methods':
-          return { body: methodsParagraph(input), contentType: 'text/plain; charset=utf-8', filename: `${base}-methods.txt` };
-      }
+      return exportFile('study', row.id, format, studyRenderers[format](input));
     },
   };
 }

@@ -6,7 +6,7 @@ import { api, ApiError, csrfHeaders } from '../../../lib/apiClient';
 import { getCurrentTeamId } from '../../../lib/currentTeam';
 import { queryKeys } from '../../../lib/queryKeys';
 import { useCurrentTeamId } from '../../auth/api/me';
-import { attachmentName } from '../../runs/api/runs';
+import { attachmentName } from '../../../lib/download';
 
 const setPath = (id: string, rest = '') => `/api/causal-sets/${encodeURIComponent(id)}${rest}`;
 

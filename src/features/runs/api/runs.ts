@@ -1,8 +1,6 @@
 import { keepPreviousData, useMutation, useQueries, useQuery, useQueryClient } from '@tanstack/react-query';
-import { teamHeaderName } from '@shared/auth';
 import type { CreateRunRequest, ListRunsQuery, ReanalyseRunRequest, RunDetail, RunPoints, RunSummary } from '@shared/runs';
-import { api, ApiError } from '../../../lib/apiClient';
-import { getCurrentTeamId } from '../../../lib/currentTeam';
+import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
 import { useCurrentTeamId } from '../../auth/api/me';
 
@@ -123,44 +121,4 @@ export function useDeleteRun() {
       return queryClient.invalidateQueries({ queryKey: [...queryKeys.runs.all(teamId), 'list'] });
     },
   });
-}
-
-/** The file name a response asks to be saved as (Content-Disposition), or the fallback. */
-export function attachmentName(disposition: string | null, fallback: string): string {
-  if (!disposition) return fallback;
-  const star = /filename\*=UTF-8''([^;]+)/i.exec(disposition);
-  if (star) return decodeURIComponent(star[1].trim());
-  const plain = /filename="?([^";]+)"?/i.exec(disposition);
-  return plain ? plain[1].trim() : fallback;
-}
-
-/**
- * Downloads one of a run's exports. Fetched (not a bare link) so the current team's header goes with
- * it, then handed to the browser as a file with the name the server gives.
- */
-export async function downloadRunFile(runId: string, file: 'points.csv' | 'spectrum.csv' | 'spectrum.json'): Promise<void> {
-  const headers: Record<string, string> = {};
-  const teamId = getCurrentTeamId();
-  if (teamId) headers[teamHeaderName] = teamId;
-  const response = await fetch(runPath(runId, `/${file}`), { credentials: 'include', headers });
-  if (!response.ok) {
-    let message = `The download failed (${response.status} ${response.statusText}).`;
-    try {
-      const payload = (await response.json()) as { error?: { message?: string } };
-      if (payload.error?.message) message = payload.error.message;
-    } catch {
-      // not JSON: keep the status line
-    }
-    throw new ApiError(response.status, 'download_failed', message);
-  }
-  const blob = await response.blob();
-  const name = attachmentName(response.headers.get('content-disposition'), `tacet-run-${runId.slice(0, 8)}-${file}`);
-  const url = URL.createObjectURL(blob);
-  const link = document.createElement('a');
-  link.href = url;
-  link.download = name;
-  document.body.append(link);
-  link.click();
-  link.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }

@@ -4,10 +4,11 @@ import type { RunDetail } from '@shared/runs';
 import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
+import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
-import { downloadRunFile, isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
+import { isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
 import { Caution, RuleCautions } from '../components/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
 import { DiagnosticsTable, EntropyTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
@@ -128,7 +129,9 @@ function RunView({ run }: { run: RunDetail }) {
             </Section>
           </div>
           <Section title="Downloads">
-            <Downloads runId={run.id} />
+            <ExportDownloads kind="run" id={run.id}>
+              Each plot has its own PNG and SVG download beneath it.
+            </ExportDownloads>
           </Section>
         </>
       )}
@@ -180,49 +183,6 @@ function RunActions({ run }: { run: RunDetail }) {
       {error && (
         <p role="alert" className="text-xs text-danger">
           {error.message}
-        </p>
-      )}
-    </div>
-  );
-}
-
-function Downloads({ runId }: { runId: string }) {
-  const [error, setError] = useState<string | null>(null);
-  const [busy, setBusy] = useState<string | null>(null);
-  const files = [
-    { file: 'points.csv', label: 'Points (CSV)', note: 't,x[,y,z] per element, 17 significant digits' },
-    { file: 'spectrum.csv', label: 'Spectrum (CSV)', note: 'rank, eigenvalue, continuum, kept' },
-    { file: 'spectrum.json', label: 'Spectrum (JSON)', note: 'eigenvalues, continuum, cut, modes kept, N' },
-  ] as const;
-
-  async function get(file: (typeof files)[number]['file']) {
-    setError(null);
-    setBusy(file);
-    try {
-      await downloadRunFile(runId, file);
-    } catch (cause) {
-      setError(cause instanceof Error ? cause.message : String(cause));
-    } finally {
-      setBusy(null);
-    }
-  }
-
-  return (
-    <div className="flex flex-col gap-2">
-      <ul className="flex flex-col text-sm">
-        {files.map(({ file, label, note }) => (
-          <li key={file} className="flex items-baseline gap-4 border-b border-rule py-1.5">
-            <Button variant="quiet" busy={busy === file} onClick={() => get(file)}>
-              {label}
-            </Button>
-            <span className="text-xs text-ink-faint">{note}</span>
-          </li>
-        ))}
-      </ul>
-      <p className="text-xs text-ink-faint">Each plot has its own PNG and SVG download beneath it.</p>
-      {error && (
-        <p role="alert" className="text-xs text-danger">
-          {error}
         </p>
       )}
     </div>

@@ -1,11 +1,8 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { teamHeaderName } from '@shared/auth';
-import type { CreateStudyRequestInput, StudyDetail, StudyExportFormat, StudySummary } from '@shared/studies';
-import { api, ApiError } from '../../../lib/apiClient';
-import { getCurrentTeamId } from '../../../lib/currentTeam';
+import type { CreateStudyRequestInput, StudyDetail, StudySummary } from '@shared/studies';
+import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
 import { useCurrentTeamId } from '../../auth/api/me';
-import { attachmentName } from '../../runs/api/runs';
 
 export function isStudyActive(status: StudySummary['status']): boolean {
   return status === 'queued' || status === 'running';
@@ -57,31 +54,4 @@ export function useCancelStudy(id: string) {
 export function useDeleteStudy(id: string) {
   const invalidate = useInvalidateStudies();
   return useMutation({ mutationFn: () => api.delete(studyPath(id)), onSuccess: () => invalidate() });
-}
-
-/** Fetches one export with the session and team header, then saves it under the server's file name. */
-export async function downloadStudyExport(id: string, format: StudyExportFormat): Promise<void> {
-  const headers: Record<string, string> = {};
-  const teamId = getCurrentTeamId();
-  if (teamId) headers[teamHeaderName] = teamId;
-  const response = await fetch(studyPath(id, `/export?format=${format}`), { credentials: 'include', headers });
-  if (!response.ok) {
-    let message = `The download failed (${response.status} ${response.statusText}).`;
-    try {
-      const payload = (await response.json()) as { error?: { message?: string } };
-      if (payload.error?.message) message = payload.error.message;
-    } catch {
-      // not JSON: keep the status line
-    }
-    throw new ApiError(response.status, 'download_failed', message);
-  }
-  const blob = await response.blob();
-  const url = URL.createObjectURL(blob);
-  const link = document.createElement('a');
-  link.href = url;
-  link.download = attachmentName(response.headers.get('content-disposition'), `tacet-study-${id.slice(0, 8)}-${format}`);
-  document.body.append(link);
-  link.click();
-  link.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }

@@ -1,67 +1,17 @@
-import { useState } from 'react';
 import { Link, useNavigate, useParams } from 'react-router';
-import type { StudyDetail, StudyExportFormat } from '@shared/studies';
 import { formatDateTime } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
+import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { StatusLabel } from '../../runs/components/StatusLabel';
 import { regionLabels } from '../../runs/lib/runForm';
-import { downloadStudyExport, isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
+import { isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
 import { RuleCautions } from '../../runs/components/Caution';
 import { StudyPlots } from '../components/StudyPlots';
 import { AggregateTable, FitsTable } from '../components/StudyTables';
-
-const exportsList: { format: StudyExportFormat; label: string; note: string }[] = [
-  { format: 'csv', label: 'Entropies (CSV)', note: 'tidy: one row per N, seed, subregion and rule, 17 significant digits' },
-  { format: 'aggregates-csv', label: 'Aggregates (CSV)', note: 'mean n, mean S, deviation, standard error, seeds' },
-  { format: 'latex', label: 'Table (LaTeX)', note: 'booktabs, ⟨S⟩ ± SE per rule, fits, a caption with the parameters' },
-  { format: 'json', label: 'Provenance (JSON)', note: 'request, seeds, rules, engine version, backend, times, every number' },
-  { format: 'methods', label: 'Methods paragraph (text)', note: 'what was computed, with citations and cautions' },
-  { format: 'bibtex', label: 'References (BibTeX)', note: 'the published methods used' },
-];
-
-function Downloads({ study }: { study: StudyDetail }) {
-  const [busy, setBusy] = useState<string | null>(null);
-  const [error, setError] = useState<string | null>(null);
-  const ready = study.progress.done > 0;
-  async function get(format: StudyExportFormat) {
-    setBusy(format);
-    setError(null);
-    try {
-      await downloadStudyExport(study.id, format);
-    } catch (cause) {
-      setError(cause instanceof Error ? cause.message : String(cause));
-    } finally {
-      setBusy(null);
-    }
-  }
-  return (
-    <div className="flex flex-col gap-2" data-testid="study-downloads">
-      <ul className="flex flex-col text-sm">
-        {exportsList.map(({ format, label, note }) => (
-          <li key={format} className="flex items-baseline gap-4 border-b border-rule py-1.5">
-            <Button variant="quiet" busy={busy === format} disabled={!ready} onClick={() => get(format)}>
-              {label}
-            </Button>
-            <span className="text-xs text-ink-faint">{note}</span>
-          </li>
-        ))}
-      </ul>
-      <p className="text-xs text-ink-faint">
-        {ready ? 'Exports cover the sprinklings finished so far.' : 'Exports become available when the first sprinkling has finished.'} Each
-        figure has its own PNG and SVG download beneath it.
-      </p>
-      {error && (
-        <p role="alert" className="text-xs text-danger">
-          {error}
-        </p>
-      )}
-    </div>
-  );
-}
 
 export function StudyPage() {
   const { studyId = '' } = useParams();
@@ -185,7 +135,10 @@ export function StudyPage() {
         </>
       )}
       <Section title="Downloads">
-        <Downloads study={s} />
+        <ExportDownloads kind="study" id={s.id} disabled={s.progress.done === 0} testId="study-downloads">
+          {s.progress.done > 0 ? 'Exports cover the sprinklings finished so far.' : 'Exports become available when the first sprinkling has finished.'} Each
+          figure has its own PNG and SVG download beneath it.
+        </ExportDownloads>
       </Section>
     </>
   );

@@ -1,0 +1,141 @@
+import { z } from 'zod';
+
+/**
+ * Every file a run or a study downloads as, in one table read by the API (its routes, content types,
+ * attachment names and OpenAPI description) and by the client (its download buttons). Each format's
+ * renderer is in server/exports/; the tables are `Record<format, row>` and the renderers
+ * `Record<format, renderer>`, so a format missing either is a compile error.
+ */
+export interface ExportFormatRow {
+  /** the download button's text */
+  label: string;
+  /** the line beside the button */
+  note: string;
+  /** the Content-Type the API sends */
+  contentType: string;
+  /** what follows `tacet-<run|study>-<first 8 characters of the id>` in the file name, before the extension */
+  nameSuffix: string;
+  extension: string;
+}
+
+/** A run's exports; the format is also the last segment of its URL, `/api/runs/:id/<format>`. */
+export const runExportFormats = ['points.csv', 'spectrum.csv', 'spectrum.json'] as const;
+export type RunExportFormat = (typeof runExportFormats)[number];
+
+/** The spectrum as `spectrum.json` gives it. */
+export const runSpectrumExportSchema = z.object({
+  eigenvalues: z.array(z.number()),
+  continuum: z.array(z.number()).nullable(),
+  cutoff: z.number(),
+  modesKept: z.number().int(),
+  N: z.number().int(),
+});
+export type RunSpectrumExport = z.infer<typeof runSpectrumExportSchema>;
+
+export interface RunExportRow extends ExportFormatRow {
+  /** the route's summary in the OpenAPI description */
+  summary: string;
+  /** the answer's shape, for a JSON format */
+  schema?: z.ZodType;
+}
+
+export const runExports = {
+  'points.csv': {
+    label: 'Points (CSV)',
+    note: 't,x[,y,z] per element, 17 significant digits',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-points',
+    extension: 'csv',
+    summary: 'Elements as CSV (t,x or t,x,y,z)',
+  },
+  'spectrum.csv': {
+    label: 'Spectrum (CSV)',
+    note: 'rank, eigenvalue, continuum, kept',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-spectrum',
+    extension: 'csv',
+    summary: 'Spectrum as CSV: rank,eigenvalue,continuum,kept',
+  },
+  'spectrum.json': {
+    label: 'Spectrum (JSON)',
+    note: 'eigenvalues, continuum, cut, modes kept, N',
+    contentType: 'application/json; charset=utf-8',
+    nameSuffix: '-spectrum',
+    extension: 'json',
+    summary: 'Spectrum with cut and continuum',
+    schema: runSpectrumExportSchema,
+  },
+} as const satisfies Record<RunExportFormat, RunExportRow>;
+
+/** A study's exports, in the order of the study page's buttons; `/api/studies/:id/export?format=<format>`. */
+export const studyExportFormats = ['csv', 'aggregates-csv', 'latex', 'json', 'methods', 'bibtex'] as const;
+export type StudyExportFormat = (typeof studyExportFormats)[number];
+export const studyExportQuerySchema = z.strictObject({ format: z.enum(studyExportFormats) });
+
+export const studyExports = {
+  csv: {
+    label: 'Entropies (CSV)',
+    note: 'tidy: one row per N, seed, subregion and rule, 17 significant digits',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-entropies',
+    extension: 'csv',
+  },
+  'aggregates-csv': {
+    label: 'Aggregates (CSV)',
+    note: 'mean n, mean S, deviation, standard error, seeds',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-aggregates',
+    extension: 'csv',
+  },
+  latex: {
+    label: 'Table (LaTeX)',
+    note: 'booktabs, ⟨S⟩ ± SE per rule, fits, a caption with the parameters',
+    contentType: 'text/x-tex; charset=utf-8',
+    nameSuffix: '-table',
+    extension: 'tex',
+  },
+  json: {
+    label: 'Provenance (JSON)',
+    note: 'request, seeds, rules, engine version, backend, times, every number',
+    contentType: 'application/json; charset=utf-8',
+    nameSuffix: '',
+    extension: 'json',
+  },
+  methods: {
+    label: 'Methods paragraph (text)',
+    note: 'what was computed, with citations and cautions',
+    contentType: 'text/plain; charset=utf-8',
+    nameSuffix: '-methods',
+    extension: 'txt',
+  },
+  bibtex: {
+    label: 'References (BibTeX)',
+    note: 'the published methods used',
+    contentType: 'text/x-bibtex; charset=utf-8',
+    nameSuffix: '-references',
+    extension: 'bib',
+  },
+} as const satisfies Record<StudyExportFormat, ExportFormatRow>;
+
+/** What is exported: a run or a study. */
+export type ExportKind = 'run' | 'study';
+export type ExportFormatOf<K extends ExportKind> = K extends 'run' ? RunExportFormat : StudyExportFormat;
+
+/** Both tables by kind, each with its formats in display order. */
+export const exportTables: { [K in ExportKind]: { formats: readonly ExportFormatOf<K>[]; rows: Record<ExportFormatOf<K>, ExportFormatRow> } } = {
+  run: { formats: runExportFormats, rows: runExports },
+  study: { formats: studyExportFormats, rows: studyExports },
+};
+
+/** The attachment's name, e.g. `tacet-run-2a2f7d25-points.csv`, `tacet-study-0123abcd.json`. */
+export function exportFileName<K extends ExportKind>(kind: K, id: string, format: ExportFormatOf<K>): string {
+  const row = exportTables[kind].rows[format];
+  return `tacet-${kind}-${id.slice(0, 8)}${row.nameSuffix}.${row.extension}`;
+}
+
+/** The URL the API serves the export at. */
+export function exportUrl<K extends ExportKind>(kind: K, id: string, format: ExportFormatOf<K>): string {
+  return kind === 'run'
+    ? `/api/runs/${encodeURIComponent(id)}/${format}`
+    : `/api/studies/${encodeURIComponent(id)}/export?format=${format}`;
+}
