@@ -9,8 +9,11 @@ import type { PauliJordanSpectrum } from './pauliJordan';
  *   Re W_c = ½ B diag(s) Bᵀ = ½ P|Δ|P,   Im W_c = ½ B A Bᵀ = ½ P Δ P,   P = B Bᵀ,
  * so W_c = B W̃ Bᵀ with the small Hermitian W̃ = ½(diag(s) + iA) (server/engine/README.md §5; Sorkin 2011;
  * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used:
- * W = ½(B diag(s) Bᵀ + iΔ), and nothing of size N × N beyond B is formed for the state (A and ΔB are
- * then left null; `sjDiagnostics` forms what its checks need).
+ * Im W = ½Δ, and Re W = ½|Δ| is restricted as ¼(B s Bᵀ + Δ B s⁺ Bᵀ Δᵀ), the mean of two forms that
+ * agree for exact eigenvectors and whose first-order rounding cancels where it would show as entropy
+ * of a pure state (`completeRestrictedReal`). Nothing of size N × N beyond B is formed for the state
+ * (A and ΔB are then left null; `sjDiagnostics` forms what its checks need, which check the form
+ * ½ B s Bᵀ: it differs from the mean by rounding, 1e-11 of ‖Re W‖_F at N = 2000).
  */
 export interface SjState {
   size: number;
@@ -104,7 +107,51 @@ export function sjState(
   return { size: n, complete, modesKept: Math.min(truncation.modesKept, spectrum.positive.length), cutoff: truncation.cutoff, basis, sigma, deltaInBasis, delta, deltaTimesBasis: deltaBasis };
 }
 
-/** Real and imaginary parts of W_c restricted to the given elements (both |O| × |O|, column-major). */
+/**
+ * Re W_O of an untruncated state, ¼(B_O s B_Oᵀ + (ΔB)_O s⁺ (ΔB)_Oᵀ): the restriction of the mean of
+ * two estimates of |Δ| from the same eigenvectors, B s Bᵀ and Δ (B s⁺ Bᵀ) Δᵀ (equal for exact ones,
+ * since Δ|Δ|⁺Δᵀ = |Δ|; s⁺ inverts s > 0 and keeps the kernel at 0). B comes from ΔᵀΔ, so its
+ * rounding is of order ε‖Δ‖², and in the normal modes of Δ (complex structure J = |Δ|⁺Δ) it enters
+ * B s Bᵀ as +F and Δ(B s⁺ Bᵀ)Δᵀ as −JFJᵀ to first order, for both the rotation of the vectors and
+ * the error of s (σ²/s ≈ σ − δs). The part of F that commutes with J is the one that moves the
+ * symplectic eigenvalues κ of a pure state off ½ at first order, by about ε(σ_max/σ)² in a mode of σ
+ * (the whole region of an untruncated state had S ≈ 5e-9 at N = 300 and 1e-5 at N = 2000); in the
+ * mean it cancels, and S of the whole region comes out near 1e-11 to 1e-10, as numpy's complex route
+ * finds (tests/engine/entropyFloor.test.ts). Cost: one product Bᵀ Δ_{:,O} (2 r N |O| flops) and a
+ * second Gram product of r × |O|, paid only when the state is restricted.
+ */
+function completeRestrictedReal(state: SjState, elements: ArrayLike<number>, backend: LinearAlgebraBackend): DenseMatrix {
+  const m = elements.length;
+  const n = state.size;
+  let r = 0;
+  while (r < state.sigma.length && state.sigma[r] > 0) r++;
+  // the kernel (σ = 0, trailing) adds nothing to either term
+  const kept: DenseMatrix = { rows: n, cols: r, data: state.basis.data.subarray(0, n * r) };
+  const direct = denseMatrix(r, m);
+  for (let a = 0; a < m; a++) {
+    const row = elements[a];
+    for (let c = 0; c < r; c++) direct.data[a * r + c] = Math.sqrt(0.25 * state.sigma[c]) * state.basis.data[row + c * n];
+  }
+  let columns = state.delta;
+  let identity = m === n;
+  for (let a = 0; identity && a < m; a++) identity = elements[a] === a;
+  if (!identity) {
+    columns = denseMatrix(n, m);
+    for (let a = 0; a < m; a++) columns.data.set(state.delta.data.subarray(elements[a] * n, (elements[a] + 1) * n), a * n);
+  }
+  // Bᵀ Δ_{:,O} = −((ΔB)_O)ᵀ; the sign drops out of the Gram product
+  const mapped = backend.multiply(kept, columns, { transposeA: true });
+  for (let a = 0; a < m; a++) for (let c = 0; c < r; c++) mapped.data[a * r + c] *= 1 / (2 * Math.sqrt(state.sigma[c]));
+  const real = backend.gram(direct);
+  const second = backend.gram(mapped);
+  for (let k = 0; k < real.data.length; k++) real.data[k] += second.data[k];
+  return real;
+}
+
+/**
+ * Real and imaginary parts of W_c restricted to the given elements (both |O| × |O|, column-major).
+ * Truncated: Re W_O = ½ B_O s B_Oᵀ. Untruncated: the mean of two forms, see `completeRestrictedReal`.
+ */
 export function restrictedWightman(
   state: SjState,
   elements: ArrayLike<number>,
@@ -113,6 +160,14 @@ export function restrictedWightman(
   const m = elements.length;
   const r = state.sigma.length;
   const n = state.size;
+  if (state.complete) {
+    const imaginary = denseMatrix(m, m);
+    for (let b = 0; b < m; b++) {
+      const column = elements[b] * n;
+      for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + column];
+    }
+    return { real: completeRestrictedReal(state, elements, backend), imaginary };
+  }
   // Re W_O = ½ B_O s B_Oᵀ = TᵀT with Tᵀ = B_O diag(√(s/2)): a Gram product, symmetric to the last bit
   const scaledTransposed = denseMatrix(r, m);
   const factors = state.sigma.map((v) => Math.sqrt(0.5 * v));
@@ -122,21 +177,12 @@ export function restrictedWightman(
     for (let c = 0; c < r; c++) scaledTransposed.data[out + c] = factors[c] * state.basis.data[row + c * n];
   }
   const real = backend.gram(scaledTransposed);
-  let imaginary: DenseMatrix;
-  if (state.complete) {
-    imaginary = denseMatrix(m, m);
-    for (let b = 0; b < m; b++) {
-      const column = elements[b] * n;
-      for (let a = 0; a < m; a++) imaginary.data[a + b * m] = 0.5 * state.delta.data[elements[a] + column];
-    }
-  } else {
-    if (!state.deltaInBasis) throw new Error('a truncated SJ state needs A = BᵀΔB');
-    const rows = denseMatrix(m, r);
-    for (let c = 0; c < r; c++) for (let a = 0; a < m; a++) rows.data[a + c * m] = state.basis.data[elements[a] + c * n];
-    const half = backend.multiply(rows, state.deltaInBasis);
-    imaginary = backend.multiply(half, rows, { transposeB: true });
-    for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
-  }
+  if (!state.deltaInBasis) throw new Error('a truncated SJ state needs A = BᵀΔB');
+  const rows = denseMatrix(m, r);
+  for (let c = 0; c < r; c++) for (let a = 0; a < m; a++) rows.data[a + c * m] = state.basis.data[elements[a] + c * n];
+  const half = backend.multiply(rows, state.deltaInBasis);
+  const imaginary = backend.multiply(half, rows, { transposeB: true });
+  for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
   return { real, imaginary };
 }
 

@@ -81,7 +81,8 @@ describe('spacetime entanglement entropy of sub-diamonds (statistical, seeded)',
       doubleTruncation: true,
     });
     // double truncation keeps S of order one; with the whole-region cut alone the restricted state of
-    // this subregion is pure and S is rounding noise of 1e-6 (server/engine/README.md §6, §9), nothing to compare
+    // this subregion is pure and S is zero to rounding, below 1e-9 (tests/engine/singleTruncation.test.ts;
+    // server/engine/README.md §6, §9), nothing to compare
     const direct = entanglementEntropy(cut, elements, { doubleTruncation: true });
     expect(direct.S).toBeGreaterThan(0.1);
     expect(viaPipeline.entropy?.n).toBe(elements.length);
