@@ -1,14 +1,12 @@
-import { gzipSync } from 'node:zlib';
 import type { CausalSetMetadata } from '@shared/causalSets';
 import type { CausalSetRow } from '../db/causal-set-entities';
+import { compressBytes, encodeFloat64, encodeRelation } from '../db/codecs';
 import { makeRegion } from '../engine/regions';
-import { runInThread } from '../worker/engineThread';
+import { runInThread } from '../threads/engineThread';
 import {
   CausalSetFileError,
   coordinatesOrder,
   orderSummary,
-  packPoints,
-  packRelation,
   parseCoordinatesCsv,
   parseRelationList,
   type SizeLimit,
@@ -22,7 +20,7 @@ export type ImportedValues = Pick<CausalSetRow, 'kind' | 'dimension' | 'n' | 're
  * what is wrong) and packs what the row stores: the elements and the original file, gzipped.
  */
 export function importValues(metadata: CausalSetMetadata, bytes: Uint8Array, limit: SizeLimit): ImportedValues {
-  const original = gzipSync(bytes);
+  const original = compressBytes(bytes);
   if (metadata.kind === 'coordinates') {
     const parsed = parseCoordinatesCsv(bytes, { region: metadata.region, dimension: metadata.dimension, limit });
     const volume = metadata.region ? makeRegion(metadata.region).volume : null;
@@ -34,7 +32,7 @@ export function importValues(metadata: CausalSetMetadata, bytes: Uint8Array, lim
       density: metadata.density ?? (volume ? parsed.n / volume : null),
       volume,
       stats: orderSummary(coordinatesOrder(parsed.points, parsed.dimension, metadata.region)),
-      elements: gzipSync(packPoints(parsed.points)),
+      elements: encodeFloat64(parsed.points),
       original,
     };
   }
@@ -47,7 +45,7 @@ export function importValues(metadata: CausalSetMetadata, bytes: Uint8Array, lim
     density: metadata.density ?? null,
     volume: null,
     stats: orderSummary(parsed.causal),
-    elements: gzipSync(packRelation(parsed.causal)),
+    elements: encodeRelation(parsed.causal),
     original,
   };
 }

@@ -1,11 +1,11 @@
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import type { CausalSetMetadata } from '@shared/causalSets';
-import type { EngineThreadMessage } from '../worker/engineThread';
+import type { EngineThreadMessage } from '../threads/engineThread';
 import { importValues, type ImportThreadOutcome } from './importFile';
 import { CausalSetFileError, type SizeLimit } from './parse';
 
 /**
- * Thread body of a large upload (started through runInThread in server/worker/engineThread.ts from
+ * Thread body of a large upload (started through runInThread in server/threads/engineThread.ts from
  * importValuesOffThread): parses and packs the file while the API's event loop keeps answering.
  */
 if (isMainThread || !parentPort) throw new Error('importThread.worker.ts must run inside a worker_thread');

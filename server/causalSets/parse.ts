@@ -515,35 +515,3 @@ export function coordinatesOrder(points: Float64Array, dimension: 2 | 4, region?
   const periodX = region ? makeRegion(region).periodX : undefined;
   return causalMatrix(points, dimension, periodX);
 }
-
-/** Closed relation → bytes: the BitRelation words (rows of ⌈N/32⌉ words), each uint32 little-endian. */
-export function packRelation(causal: BitRelation): Buffer {
-  const out = Buffer.alloc(causal.words.length * 4);
-  for (let k = 0; k < causal.words.length; k++) out.writeUInt32LE(causal.words[k], k * 4);
-  return out;
-}
-
-export function unpackRelation(bytes: Uint8Array, n: number): BitRelation {
-  const rel = new BitRelation(n);
-  if (bytes.length !== rel.words.length * 4) {
-    throw new RangeError(`a packed relation on ${n} elements has ${rel.words.length * 4} bytes, got ${bytes.length}`);
-  }
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  for (let k = 0; k < rel.words.length; k++) rel.words[k] = view.getUint32(k * 4, true);
-  return rel;
-}
-
-/** Coordinates → bytes: float64 little-endian, element after element. */
-export function packPoints(points: Float64Array): Buffer {
-  const out = Buffer.alloc(points.length * 8);
-  for (let k = 0; k < points.length; k++) out.writeDoubleLE(points[k], k * 8);
-  return out;
-}
-
-export function unpackPoints(bytes: Uint8Array): Float64Array {
-  if (bytes.length % 8 !== 0) throw new RangeError(`packed points must be a multiple of 8 bytes, got ${bytes.length}`);
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const out = new Float64Array(bytes.length / 8);
-  for (let k = 0; k < out.length; k++) out[k] = view.getFloat64(k * 8, true);
-  return out;
-}

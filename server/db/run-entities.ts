@@ -5,7 +5,7 @@ import type { RestrictedCut, TruncationRule, VacuumStage } from '@shared/vacuum'
 /**
  * Runs and cut rules (issue 4). Like ./entities.ts: EntitySchemas only, tables made by the
  * hand-written migration 1764720000000-runs.ts. Long arrays are gzip-compressed little-endian bytes
- * (./arrays.ts); the scalar results live in `summary`.
+ * (./codecs.ts); the scalar results live in `summary`.
  */
 
 /** Result numbers kept as JSON beside the compressed arrays. */

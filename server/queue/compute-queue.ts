@@ -1,7 +1,7 @@
 import { Queue } from 'bullmq';
 import { Redis } from 'ioredis';
 
-/** The one queue all computations go through; job names select the handler in server/worker/handlers. */
+/** The one queue all computations go through; its jobs are the contract of ./jobs.ts. */
 export const computeQueueName = 'tacet-compute';
 
 /**

@@ -1,10 +1,10 @@
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, EngineInputError } from '../engine/index';
-import type { EngineThreadMessage } from '../worker/engineThread';
+import type { EngineThreadMessage } from '../threads/engineThread';
 import { computeStudyCell, type StudyCellSpec } from './cell';
 
 /**
- * Thread body of one study cell (started through runInThread in server/worker/engineThread.ts): the
+ * Thread body of one study cell (started through runInThread in server/threads/engineThread.ts): the
  * stages are synchronous, so they run here while the worker's event loop renews BullMQ locks and
  * polls for cancellation.
  */

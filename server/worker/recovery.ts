@@ -1,9 +1,8 @@
 import type { Queue } from 'bullmq';
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
 import * as runs from '../db/repositories/runs';
 import * as studies from '../db/repositories/studies';
-import { studyCellJobId, studyCellJobName } from './handlers/studyCell';
-import { vacuumRunJobName } from './handlers/vacuumRun';
+import { jobIdOf, jobNames, readContractJob, type ContractJob, type JobName, type JobPayload } from '../queue/jobs';
 
 /**
  * A run (or study cell) is queued or running in PostgreSQL while its BullMQ job says otherwise when a
@@ -39,36 +38,50 @@ async function lostJobReason(queue: Queue, jobId: string): Promise<string | null
 
 const stoppedMessage = (reason: string) => `The computation stopped: ${reason}. Start it again to retry.`;
 
+/** Per job of the contract: the rows the sweep checks, and how the row of a lost job is ended. */
+interface Recovery<N extends JobName> {
+  /** where the sweep's report lists the row */
+  listedIn: keyof SweepReport;
+  rowId(payload: JobPayload<N>): string;
+  /** the payloads of rows still queued or running, older than the grace period */
+  unfinished(m: EntityManager, graceMs: number): Promise<JobPayload<N>[]>;
+  fail(m: EntityManager, payload: JobPayload<N>, message: string): Promise<void>;
+}
+
+const recoveries: { [N in JobName]: Recovery<N> } = {
+  'vacuum-run': {
+    listedIn: 'runs',
+    rowId: (p) => p.runId,
+    unfinished: async (m, graceMs) => (await runs.findUnfinishedRunIds(m, graceMs)).map((runId) => ({ runId })),
+    fail: (m, p, message) => runs.failRun(m, p.runId, message),
+  },
+  'study-cell': {
+    listedIn: 'cells',
+    rowId: (p) => p.cellId,
+    unfinished: (m, graceMs) => studies.findUnfinishedCells(m, graceMs),
+    fail: async (m, p, message) => {
+      await studies.failCell(m, p.cellId, message);
+      await studies.finishStudyIfComplete(m, p.studyId);
+    },
+  },
+};
+
 /** Fails the rows whose jobs are gone or failed; returns their ids. */
 export async function sweepOrphanedWork({ dataSource, queue, graceMs = 60_000 }: SweepOptions): Promise<SweepReport> {
   const m = dataSource.manager;
   const report: SweepReport = { runs: [], cells: [] };
-  const stuckRuns: { id: string }[] = await m.query(
-    `SELECT id FROM runs WHERE status IN ('queued', 'running') AND created_at < now() - ($1 || ' milliseconds')::interval`,
-    [String(graceMs)],
-  );
-  for (const { id } of stuckRuns) {
-    const reason = await lostJobReason(queue, id);
-    if (!reason) continue;
-    await runs.failRun(m, id, stoppedMessage(reason));
-    report.runs.push(id);
-  }
-  const stuckCells: { id: string; study_id: string }[] = await m.query(
-    `SELECT c.id, c.study_id FROM study_cells c JOIN studies s ON s.id = c.study_id
-      WHERE c.status IN ('queued', 'running') AND s.created_at < now() - ($1 || ' milliseconds')::interval`,
-    [String(graceMs)],
-  );
-  for (const { id, study_id: studyId } of stuckCells) {
-    const reason = await lostJobReason(queue, studyCellJobId(id));
-    if (!reason) continue;
-    await m.query(`UPDATE study_cells SET status = 'failed', error = $2, finished_at = now() WHERE id = $1 AND status IN ('queued', 'running')`, [
-      id,
-      stoppedMessage(reason),
-    ]);
-    await studies.finishStudyIfComplete(m, studyId);
-    report.cells.push(id);
-  }
+  for (const name of jobNames) await sweepJobsOf(m, queue, name, graceMs, report);
   return report;
+}
+
+async function sweepJobsOf<N extends JobName>(m: EntityManager, queue: Queue, name: N, graceMs: number, report: SweepReport): Promise<void> {
+  const recovery: Recovery<N> = recoveries[name];
+  for (const payload of await recovery.unfinished(m, graceMs)) {
+    const reason = await lostJobReason(queue, jobIdOf(name, payload));
+    if (!reason) continue;
+    await recovery.fail(m, payload, stoppedMessage(reason));
+    report[recovery.listedIn].push(recovery.rowId(payload));
+  }
 }
 
 /**
@@ -78,22 +91,17 @@ export async function sweepOrphanedWork({ dataSource, queue, graceMs = 60_000 }:
 export async function reconcileStalledJob(dataSource: DataSource, queue: Queue, jobId: string): Promise<boolean> {
   const job = await queue.getJob(jobId);
   if (!job || (await job.getState()) !== 'failed') return false;
+  let known: ContractJob | null;
+  try {
+    known = readContractJob(job);
+  } catch {
+    return false; // a payload no handler would have taken names no row to end
+  }
+  if (!known) return false;
   const reason = stoppedMessage(
     `its job failed: ${job.failedReason || 'the worker computing it stopped (stalled) more often than the stalled-job limit allows'}`,
   );
-  const m = dataSource.manager;
-  if (job.name === vacuumRunJobName) {
-    await runs.failRun(m, (job.data as { runId: string }).runId, reason);
-    return true;
-  }
-  if (job.name === studyCellJobName) {
-    const { cellId } = job.data as { cellId: string };
-    const rows: { study_id: string }[] = await m.query(
-      `UPDATE study_cells SET status = 'failed', error = $2, finished_at = now() WHERE id = $1 AND status IN ('queued', 'running') RETURNING study_id`,
-      [cellId, reason],
-    );
-    if (rows[0]) await studies.finishStudyIfComplete(m, rows[0].study_id);
-    return true;
-  }
-  return false;
+  // the contract ties each name to its payload; TypeScript cannot follow that through the lookup
+  await (recoveries[known.name] as Recovery<JobName>).fail(dataSource.manager, known.payload, reason);
+  return true;
 }

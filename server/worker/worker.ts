@@ -1,6 +1,8 @@
 import { UnrecoverableError, Worker, type Job } from 'bullmq';
 import { computeQueueName, createRedisConnection } from '../queue/compute-queue';
-import { jobHandlers, type JobHandler, type WorkerContext } from './handlers/index';
+import { JobPayloadError, readContractJob } from '../queue/jobs';
+import type { JobHandler, WorkerContext } from './context';
+import { jobHandlers } from './handlers/index';
 
 export interface StartWorkerOptions {
   context: WorkerContext;
@@ -31,7 +33,10 @@ export function stalledJobSettings() {
   };
 }
 
-/** Dispatches each job by name to its handler; an unknown name fails at once, without retries. */
+/**
+ * Dispatches each job by name to its handler; an unknown name, or a payload the job contract
+ * refuses, fails the job at once, without retries.
+ */
 export function startComputeWorker({ context, handlers = jobHandlers, concurrency = 1 }: StartWorkerOptions): Worker {
   const connection = createRedisConnection(context.config.redisUrl, 'worker');
   const worker = new Worker(
@@ -42,6 +47,12 @@ export function startComputeWorker({ context, handlers = jobHandlers, concurrenc
         throw new UnrecoverableError(
           `No handler is registered for job "${job.name}" (known: ${Object.keys(handlers).join(', ') || 'none'}).`,
         );
+      }
+      try {
+        readContractJob(job);
+      } catch (error) {
+        if (error instanceof JobPayloadError) throw new UnrecoverableError(error.message);
+        throw error;
       }
       return handler(job, context);
     },

@@ -107,4 +107,23 @@ describe('compute worker', () => {
       await events.close();
     }
   });
+
+  it('fails a job of the contract whose payload it refuses at once, before its handler runs', async () => {
+    let called = false;
+    const worker = startComputeWorker({
+      context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer },
+      handlers: { 'vacuum-run': async () => (called = true) },
+    });
+    const events = new QueueEvents(computeQueueName, { connection: { url: ctx.config.redisUrl }, prefix: ctx.config.queuePrefix });
+    try {
+      await events.waitUntilReady();
+      const bad = await ctx.computeQueue.add('vacuum-run', { runId: 'not-a-run' }, { attempts: 3 });
+      await expect(bad.waitUntilFinished(events, 10_000)).rejects.toThrow(/job "vacuum-run" has a payload the job contract refuses \(runId: /);
+      expect((await ctx.computeQueue.getJob(bad.id!))?.attemptsMade).toBe(1);
+      expect(called).toBe(false);
+    } finally {
+      await worker.close();
+      await events.close();
+    }
+  });
 });

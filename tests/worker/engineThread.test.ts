@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { CancelledError, computeVacuum, EngineInputError, type VacuumRequest } from '../../server/engine/index';
-import { runInEngineThread } from '../../server/worker/engineThread';
+import { runInEngineThread } from '../../server/threads/engineThread';
 import { overallPercent } from '../../server/worker/handlers/vacuumRun';
 
 const request: VacuumRequest = {

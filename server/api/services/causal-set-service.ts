@@ -1,5 +1,4 @@
 import { createHash } from 'node:crypto';
-import { gunzipSync } from 'node:zlib';
 import type { DataSource, EntityManager } from 'typeorm';
 import {
   CAUSAL_SET_FILE_LIMIT_BYTES,
@@ -9,13 +8,12 @@ import {
   type CausalSetLimits,
   type CausalSetSummary,
 } from '@shared/causalSets';
-import type { RegionSpec } from '@shared/vacuum';
-import { unpackPoints, unpackRelation } from '../../causalSets/parse';
 import { importValuesOffThread } from '../../causalSets/importFile';
-import { encodeFloat64 } from '../../db/arrays';
+import { decodeFloat64, decodeRelationWords, decompressBytes, encodeFloat64 } from '../../db/codecs';
 import * as causalSets from '../../db/repositories/causal-sets';
 import type { UserRow } from '../../db/entities';
 import { DENSE_SIZE_LIMIT } from '../../engine/index';
+import type { CausalSetReference } from '../../runs/request';
 import type { TeamContext } from '../context';
 import { badRequest, notFound } from '../errors';
 
@@ -24,18 +22,6 @@ const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{1
 export interface UploadedFile {
   originalName: string;
   bytes: Buffer;
-}
-
-/** Where a run's elements came from, kept in the run's stored request. */
-export interface CausalSetReference {
-  id: string;
-  name: string;
-  kind: 'coordinates' | 'relations';
-  /** SHA-256 of the uploaded file */
-  checksum: string;
-  N: number;
-  density: number | null;
-  region: RegionSpec | null;
 }
 
 /** An imported causal set as a run takes it: its reference and its elements, in the run's storage form. */
@@ -65,7 +51,7 @@ export async function loadCausalSetRunInput(m: EntityManager, teamId: string, id
     region: row.region,
   };
   if (row.kind === 'coordinates') {
-    const points = unpackPoints(gunzipSync(row.elements));
+    const points = decodeFloat64(row.elements);
     return { reference, dimension: row.dimension, n: row.n, points, relationWords: null, stored: { points: encodeFloat64(points), relation: null } };
   }
   return {
@@ -76,11 +62,6 @@ export async function loadCausalSetRunInput(m: EntityManager, teamId: string, id
     relationWords: decodeRelationWords(row.elements, row.n),
     stored: { points: null, relation: row.elements },
   };
-}
-
-/** Stored relation (gzip of the bit-packed closed relation) → its words, as the engine's order source takes them. */
-export function decodeRelationWords(stored: Uint8Array, n: number): Uint32Array {
-  return unpackRelation(gunzipSync(stored), n).words;
 }
 
 export type CausalSetService = ReturnType<typeof createCausalSetService>;
@@ -166,7 +147,7 @@ export function createCausalSetService(deps: { dataSource: DataSource; maxElemen
         return { ...summary, preview: { kind: 'relations', layerSizes: listing.stats.layerSizes } };
       }
       const stored = await causalSets.findCausalSetElements(m, teamId, listing.id);
-      const flat = unpackPoints(gunzipSync(stored!.elements));
+      const flat = decodeFloat64(stored!.elements);
       const d = listing.dimension;
       const points: number[][] = [];
       for (let i = 0; i < listing.n; i++) points.push(Array.from(flat.subarray(i * d, (i + 1) * d)));
@@ -181,7 +162,7 @@ export function createCausalSetService(deps: { dataSource: DataSource; maxElemen
       const key = validId(id);
       const row = key ? await causalSets.findCausalSetOriginal(m, teamId, key) : null;
       if (!row) throw notFound('Causal set not found.');
-      return { fileName: row.fileName, bytes: gunzipSync(row.original) };
+      return { fileName: row.fileName, bytes: decompressBytes(row.original) };
     },
 
     async remove(teamId: string, id: string): Promise<void> {

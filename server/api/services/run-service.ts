@@ -10,89 +10,20 @@ import {
   type RunSummary,
 } from '@shared/runs';
 import type { RunExportFormat, RunSpectrumExport } from '@shared/exports';
-import { effectiveRestrictedCut, formatRestrictedCut, formatTruncationRule, ruleCautions, type RestrictedCut, type SprinklingSpec, type SubregionSpec, type TruncationRule } from '@shared/vacuum';
-import { decodeFloat64, decodeInt32 } from '../../db/arrays';
+import { effectiveRestrictedCut, formatRestrictedCut, formatTruncationRule, ruleCautions } from '@shared/vacuum';
+import { decodeFloat64, decodeInt32, decodeRelationWords } from '../../db/codecs';
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
-import { decodeRelationWords, loadCausalSetRunInput, type CausalSetReference } from './causal-set-service';
+import { loadCausalSetRunInput } from './causal-set-service';
 import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import { discardJob, enqueueJob, vacuumRunJobId } from '../../queue/jobs';
+import { toEngineRequest, type StoredRunRequest } from '../../runs/request';
 import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 
-export const vacuumRunJobName = 'vacuum-run';
-
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-
-/**
- * The request stored with a run. A fresh run keeps the validated POST body; a re-analysis keeps its
- * own settings, the parent's sprinkling (for provenance and the region) and `reusedPoints`, and
- * carries the parent's points in its own row.
- */
-export interface StoredRunRequest {
-  title?: string;
-  mass: number;
-  truncation: TruncationRule;
-  subregion?: SubregionSpec;
-  doubleTruncation: boolean;
-  /** the second cut of double truncation; absent: √n/(4π) */
-  restrictedCut?: RestrictedCut;
-  sprinkling?: SprinklingSpec;
-  reusedPoints?: { runId: string; N: number; density: number | null };
-  /** an imported causal set; its elements are copied into the run's row */
-  causalSet?: CausalSetReference;
-  /** dense, structured or auto (absent: auto) */
-  engine?: 'auto' | 'dense' | 'structured';
-}
-
-/**
- * The engine request for a stored run; `points` are the run's stored points when it reuses some,
- * `relation` the bit-packed closed relation of a run on an imported relation list.
- */
-export function toEngineRequest(
-  request: StoredRunRequest,
-  dimension: 2 | 4,
-  points: Float64Array | null,
-  relation: Uint32Array | null = null,
-): Omit<VacuumRequest, 'backend'> {
-  const settings = {
-    mass: request.mass,
-    truncation: request.truncation,
-    subregion: request.subregion,
-    doubleTruncation: request.doubleTruncation,
-    ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
-    ...(request.engine ? { engine: request.engine } : {}),
-  };
-  if (request.causalSet?.kind === 'relations') {
-    const imported = request.causalSet;
-    if (!relation) throw new EngineInputError(`this run has lost the relation of the causal set "${imported.name}"`);
-    const density = imported.density !== null ? { density: imported.density } : {};
-    return { ...settings, source: { kind: 'order', causal: relation, count: imported.N, dimension, ...density } };
-  }
-  if (request.causalSet) {
-    const imported = request.causalSet;
-    if (!points) throw new EngineInputError(`this run has lost the elements of the causal set "${imported.name}"`);
-    // with the region the engine checks membership, takes ρ = N/V and the periodic x of a cylinder
-    const placement = imported.region ? { region: imported.region } : imported.density !== null ? { density: imported.density } : {};
-    return { ...settings, source: { kind: 'points', points, dimension, ...placement } };
-  }
-  if (request.reusedPoints) {
-    if (!points) throw new EngineInputError('this re-analysis has lost the points it was to reuse');
-    return {
-      ...settings,
-      source: {
-        kind: 'points',
-        points,
-        dimension,
-        density: request.reusedPoints.density ?? undefined,
-        region: request.sprinkling?.region,
-      },
-    };
-  }
-  if (!request.sprinkling) throw new EngineInputError('the run has neither a sprinkling nor stored points');
-  return { ...settings, source: { kind: 'sprinkling', sprinkling: request.sprinkling } };
-}
 
 /**
  * EngineInputError → 422 before anything is stored or queued, with the setting at fault as the issue's
@@ -157,7 +88,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   async function storeAndEnqueue(values: runs.NewRun): Promise<string> {
     const id = await runs.insertRun(m, values);
     try {
-      await computeQueue.add(vacuumRunJobName, { runId: id }, { jobId: id, attempts: 1, removeOnComplete: 1000, removeOnFail: 1000 });
+      await enqueueJob(computeQueue, 'vacuum-run', { runId: id });
     } catch (error) {
       const reason = `The run could not be queued: ${(error as Error).message}`;
       await runs.failRun(m, id, reason);
@@ -215,11 +146,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
 
   async function removeQueuedJob(id: string): Promise<void> {
     // The row is already cancelled, so a worker that takes the job anyway skips it; removal only tidies.
-    try {
-      await (await computeQueue.getJob(id))?.remove();
-    } catch {
-      /* locked by a worker that is about to see the cancelled row */
-    }
+    await discardJob(computeQueue, vacuumRunJobId(id));
   }
 
   function requireDone(row: RunWithAuthor): RunWithAuthor {

@@ -1,6 +1,5 @@
 import type { Queue } from 'bullmq';
 import type { DataSource } from 'typeorm';
-import { gunzipSync } from 'node:zlib';
 import { In, type EntityManager } from 'typeorm';
 import { ZodError } from 'zod';
 import {
@@ -14,15 +13,13 @@ import {
   type StudySpectrum,
   type StudySummary,
 } from '@shared/studies';
-import { unpackPoints } from '../../causalSets/parse';
-import { decodeFloat64 } from '../../db/arrays';
+import { decodeFloat64, decodeRelationWords } from '../../db/codecs';
 import { CausalSetEntity } from '../../db/causal-set-entities';
 import type { UserRow } from '../../db/entities';
 import * as studies from '../../db/repositories/studies';
 import type { StudyWithAuthor, StudyProgressCounts } from '../../db/repositories/studies';
 import type { StudyCellRow } from '../../db/study-entities';
 import { EngineInputError, validateVacuumRequest } from '../../engine/index';
-import { decodeRelationWords } from './causal-set-service';
 import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
 import type { StudyExportFormat } from '@shared/exports';
 import { exportFile, studyRenderers, type ExportFile } from '../../exports/index';
@@ -38,7 +35,7 @@ import {
   StudyPlanError,
   type PlannedCausalSet,
 } from '../../studies/plan';
-import { studyCellJobId, studyCellJobName } from '../../worker/handlers/studyCell';
+import { discardJob, enqueueJobs, studyCellJobId } from '../../queue/jobs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 
@@ -172,7 +169,7 @@ async function loadStudySets(m: EntityManager, teamId: string, ids: string[]): P
     return {
       reference,
       elements: row.elements,
-      points: row.kind === 'coordinates' ? unpackPoints(gunzipSync(row.elements)) : null,
+      points: row.kind === 'coordinates' ? decodeFloat64(row.elements) : null,
       relationWords: row.kind === 'relations' ? decodeRelationWords(row.elements, row.n) : null,
     };
   });
@@ -192,15 +189,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
 
   async function removeQueuedJobs(cellIds: string[]): Promise<void> {
     // The cells are already cancelled, so a worker that takes a job anyway skips it; removal only tidies.
-    await Promise.all(
-      cellIds.map(async (cellId) => {
-        try {
-          await (await computeQueue.getJob(studyCellJobId(cellId)))?.remove();
-        } catch {
-          /* locked by a worker that is about to see the cancelled cell */
-        }
-      }),
-    );
+    await Promise.all(cellIds.map((cellId) => discardJob(computeQueue, studyCellJobId(cellId))));
   }
 
   async function spectraOf(row: StudyWithAuthor, cells: StudyCellRow[]): Promise<StudySpectrum[]> {
@@ -333,12 +322,10 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       const request = createStudyRequestSchema.parse(body);
       const { id, cellIds } = request.source === 'imported' ? await insertImported(team, author, request) : await insertSprinkled(team, author, request);
       try {
-        await computeQueue.addBulk(
-          cellIds.map((cellId) => ({
-            name: studyCellJobName,
-            data: { studyId: id, cellId },
-            opts: { jobId: studyCellJobId(cellId), attempts: 1, removeOnComplete: 5000, removeOnFail: 5000 },
-          })),
+        await enqueueJobs(
+          computeQueue,
+          'study-cell',
+          cellIds.map((cellId) => ({ studyId: id, cellId })),
         );
       } catch (error) {
         const reason = `The study could not be queued: ${(error as Error).message}`;

@@ -122,6 +122,15 @@ export async function failRun(m: EntityManager, id: string, message: string): Pr
 
 // ---- worker side ----
 
+/** Runs still queued or running that were created more than `olderThanMs` ago (for the sweep of lost jobs). */
+export async function findUnfinishedRunIds(m: EntityManager, olderThanMs: number): Promise<string[]> {
+  const rows: { id: string }[] = await m.query(
+    `SELECT id FROM runs WHERE status IN ('queued', 'running') AND created_at < now() - ($1 || ' milliseconds')::interval`,
+    [String(olderThanMs)],
+  );
+  return rows.map((r) => r.id);
+}
+
 /**
  * Takes a run for computation: queued (or running again after a worker crash, when BullMQ hands a
  * stalled job out a second time) and not asked to stop. Returns the row with its stored points.

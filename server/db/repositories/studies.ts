@@ -143,6 +143,25 @@ export async function failStudy(m: EntityManager, id: string, message: string): 
 
 // ---- worker side ----
 
+/** Cells still queued or running of studies created more than `olderThanMs` ago (for the sweep of lost jobs). */
+export async function findUnfinishedCells(m: EntityManager, olderThanMs: number): Promise<{ studyId: string; cellId: string }[]> {
+  const rows: { id: string; study_id: string }[] = await m.query(
+    `SELECT c.id, c.study_id FROM study_cells c JOIN studies s ON s.id = c.study_id
+      WHERE c.status IN ('queued', 'running') AND s.created_at < now() - ($1 || ' milliseconds')::interval`,
+    [String(olderThanMs)],
+  );
+  return rows.map((r) => ({ studyId: r.study_id, cellId: r.id }));
+}
+
+/** queued or running → failed, when nothing will ever finish the cell (its job is lost); false if it had ended. */
+export async function failCell(m: EntityManager, cellId: string, message: string): Promise<boolean> {
+  return changedRows(
+    m,
+    `UPDATE study_cells SET status = 'failed', error = $2, finished_at = now() WHERE id = $1 AND status IN ('queued', 'running')`,
+    [cellId, message],
+  );
+}
+
 /**
  * Takes a cell for computation: queued, or running again when BullMQ hands out the job of a worker
  * that died (stalled), as long as its study is not cancelled. Marks the study running.

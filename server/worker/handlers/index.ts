@@ -1,29 +1,17 @@
-import type { Job } from 'bullmq';
-import type { DataSource } from 'typeorm';
-import type { Config } from '../../config';
-import type { Mailer } from '../../mail/mailer';
-import { studyCellHandler, studyCellJobName } from './studyCell';
-import { vacuumRunHandler, vacuumRunJobName } from './vacuumRun';
+import type { JobName, JobPayload } from '../../queue/jobs';
+import type { JobHandler } from '../context';
+import { studyCellHandler } from './studyCell';
+import { vacuumRunHandler } from './vacuumRun';
 
-/** What a handler may use besides the job itself. */
-export interface WorkerContext {
-  config: Config;
-  dataSource: DataSource;
-  mailer: Mailer;
-}
+export type { JobHandler, WorkerContext } from '../context';
 
 /**
- * A handler does one kind of job. Report progress with `job.updateProgress(...)`; throw to fail the
- * job (an UnrecoverableError from bullmq fails it without retries).
+ * Job name → handler, one for every job of the contract in server/queue/jobs.ts (a job without a
+ * handler does not compile). The handler lives in its own file in this folder; the numerics stay in
+ * server/engine, the handler only loads input, calls the engine and stores results, through the
+ * shared flow of ../jobRunner.ts when it computes a row in an engine thread.
  */
-export type JobHandler = (job: Job, context: WorkerContext) => Promise<unknown>;
-
-/**
- * Job name → handler. Each feature adds its entry here, with the handler in its own file in this
- * folder; the numerics stay in server/engine, the handler only loads input, calls the engine and
- * stores results.
- */
-export const jobHandlers: Record<string, JobHandler> = {
-  [vacuumRunJobName]: vacuumRunHandler,
-  [studyCellJobName]: studyCellHandler,
+export const jobHandlers: { [N in JobName]: JobHandler<JobPayload<N>> } = {
+  'vacuum-run': vacuumRunHandler,
+  'study-cell': studyCellHandler,
 };

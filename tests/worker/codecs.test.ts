@@ -1,8 +1,19 @@
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { decodeFloat64, decodeInt32, encodeFloat64, encodeInt32 } from '../../server/db/arrays';
+import { BitRelation } from '../../server/engine/order';
+import {
+  compressBytes,
+  decodeFloat64,
+  decodeInt32,
+  decodeRelationWords,
+  decompressBytes,
+  encodeFloat64,
+  encodeInt32,
+  encodeRelation,
+  packFloat64,
+} from '../../server/db/codecs';
 
-describe('compact array storage', () => {
+describe('byte codecs of stored arrays', () => {
   it('round-trips every float64 bit pattern exactly, including subnormals, −0 and extremes', () => {
     const values = Float64Array.from([0, -0, 1, -1, Math.PI, 1 / 3, 5e-324, -Number.MIN_VALUE, Number.MAX_VALUE, 1e-300, 123456789.123456789]);
     const random = Float64Array.from({ length: 5000 }, (_, k) => Math.sin(k * 12.9898) * 43758.5453);
@@ -27,5 +38,20 @@ describe('compact array storage', () => {
 
   it('rejects a stored blob whose length is not whole numbers', () => {
     expect(() => decodeFloat64(encodeInt32([1]))).toThrow(/not a multiple of 8/);
+  });
+
+  it('stores points as gzip of their raw layout, relations as gzip of their words, files as they came', () => {
+    const points = Float64Array.from([0.25, -1.5, 2, 0]);
+    expect([...gunzipSync(encodeFloat64(points))]).toEqual([...packFloat64(points)]);
+    // 0 ≺ 2 and 1 ≺ 2 on 40 elements: two words per row, bits 2 of rows 0 and 1
+    const causal = new BitRelation(40);
+    causal.set(0, 2);
+    causal.set(1, 2);
+    const words = decodeRelationWords(encodeRelation(causal), 40);
+    expect(words.length).toBe(80);
+    expect(Array.from(words)).toEqual(Array.from(causal.words));
+    expect(() => decodeRelationWords(encodeRelation(causal), 41)).toThrow(/bytes/);
+    const file = Buffer.from('t,x\n0,0\n', 'utf8');
+    expect(decompressBytes(compressBytes(file)).equals(file)).toBe(true);
   });
 });
