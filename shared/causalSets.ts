@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { regionSpecSchema, type RegionSpec } from './vacuum';
+import { regionSpecSchema, regionText, type RegionSpec } from './regions';
 
 /**
  * Imported causal sets: sprinklings or orders made by other generators and uploaded as a file, then used
@@ -168,18 +168,5 @@ export type CausalSetDetail = z.infer<typeof causalSetDetailSchema>;
 
 /** Short text for a region, e.g. "2D diamond, τ = 2" (tables and the preview page). */
 export function describeRegion(region: RegionSpec | null): string {
-  if (!region) return '—';
-  const n = (v: number) => String(Number(v.toPrecision(6)));
-  switch (region.kind) {
-    case 'diamond2d':
-      return region.properTime !== undefined
-        ? `2D diamond, τ = ${n(region.properTime)}`
-        : `2D diamond (${n(region.past!.t)}, ${n(region.past!.x)}) → (${n(region.future!.t)}, ${n(region.future!.x)})`;
-    case 'cylinder2d':
-      return `cylinder diamond, τ = ${n(region.properTime)}, L = ${n(region.circumference)}`;
-    case 'slab2d':
-      return `slab t ∈ [${n(region.tMin)}, ${n(region.tMax)}], x ∈ [${n(region.xMin)}, ${n(region.xMax)}]`;
-    case 'diamond4d':
-      return `4D diamond, τ = ${n(region.properTime)}`;
-  }
+  return region ? regionText(region) : '—';
 }

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { regionKinds } from './regions';
 import {
   engineRequestSchema,
   restrictedCutSchema,
@@ -56,7 +57,7 @@ export const runSortFields = ['createdAt', 'N', 'S', 'status'] as const;
 /** Query of GET /api/runs. */
 export const listRunsQuerySchema = z.strictObject({
   status: runStatusSchema.optional(),
-  regionKind: z.enum(['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d', 'imported']).optional(),
+  regionKind: z.enum([...regionKinds, 'imported']).optional(),
   authorId: z.uuid().optional(),
   search: z.string().trim().max(200).optional(),
   sort: z.enum(runSortFields).default('createdAt'),

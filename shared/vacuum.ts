@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { eventSchema, regionSpecSchema, type Event } from './regions';
 
 /**
  * Request vocabulary of a vacuum computation on a causal set: regions, sprinklings, truncation rules and
@@ -9,77 +10,19 @@ import { z } from 'zod';
 const finite = z.number({ message: 'must be a number' }).refine(Number.isFinite, { message: 'must be a finite number' });
 const positive = finite.refine((v) => v > 0, { message: 'must be positive' });
 
-export const event2dSchema = z.strictObject({ t: finite, x: finite });
-export type Event2d = z.infer<typeof event2dSchema>;
-
-export const event4dSchema = z.strictObject({ t: finite, x: finite, y: finite, z: finite });
-export type Event4d = z.infer<typeof event4dSchema>;
-
-/** An event in either dimension; the 4D form is tried first so y and z are never dropped. */
-export const eventSchema = z.union([event4dSchema, event2dSchema]);
-export type Event = z.infer<typeof eventSchema>;
-
-function lightConeOrdered(past: Event2d, future: Event2d): boolean {
-  return future.t - past.t > Math.abs(future.x - past.x);
-}
-
-/**
- * 2D causal diamond, either between two tips (future tip strictly inside the future light cone of the
- * past tip) or centred on the origin with a given proper time between its tips.
- */
-export const diamond2dRegionSchema = z
-  .strictObject({
-    kind: z.literal('diamond2d'),
-    properTime: positive.optional(),
-    past: event2dSchema.optional(),
-    future: event2dSchema.optional(),
-  })
-  .refine((r) => (r.properTime !== undefined) !== (r.past !== undefined || r.future !== undefined), {
-    message: 'give either properTime or both tips (past and future), not both',
-  })
-  .refine((r) => r.properTime !== undefined || (r.past !== undefined && r.future !== undefined), {
-    message: 'a diamond by its tips needs both past and future',
-  })
-  .refine((r) => r.past === undefined || r.future === undefined || lightConeOrdered(r.past, r.future), {
-    message: 'the future tip must lie strictly inside the future light cone of the past tip',
-  });
-
-/**
- * Causal diamond on the flat cylinder: x is periodic with the given circumference, the tips sit at
- * (±properTime/2, 0). When properTime exceeds the circumference the diamond wraps around the cylinder.
- */
-export const cylinderDiamondRegionSchema = z.strictObject({
-  kind: z.literal('cylinder2d'),
-  properTime: positive,
-  circumference: positive,
-});
-
-/** 2D slab (rectangle) t ∈ [tMin, tMax], x ∈ [xMin, xMax]. */
-export const slab2dRegionSchema = z
-  .strictObject({
-    kind: z.literal('slab2d'),
-    tMin: finite,
-    tMax: finite,
-    xMin: finite,
-    xMax: finite,
-  })
-  .refine((r) => r.tMax > r.tMin && r.xMax > r.xMin, { message: 'slab ranges must have max > min' });
-
-/** 4D causal diamond with tips at (±properTime/2, 0, 0, 0). */
-export const diamond4dRegionSchema = z.strictObject({
-  kind: z.literal('diamond4d'),
-  properTime: positive,
-});
-
-export const regionSpecSchema = z.discriminatedUnion('kind', [
-  diamond2dRegionSchema,
-  cylinderDiamondRegionSchema,
-  slab2dRegionSchema,
-  diamond4dRegionSchema,
-]);
-export type RegionSpec = z.infer<typeof regionSpecSchema>;
-export type RegionKind = RegionSpec['kind'];
-export const regionKinds = ['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d'] as const;
+// Events and regions live in the region registry; they are part of this vocabulary too.
+export {
+  event2dSchema,
+  event4dSchema,
+  eventSchema,
+  regionKinds,
+  regionSpecSchema,
+  type Event,
+  type Event2d,
+  type Event4d,
+  type RegionKind,
+  type RegionSpec,
+} from './regions';
 
 /** Seeded generators from the `seedrandom` package. */
 export const prngSchema = z.enum(['arc4', 'alea', 'xor4096']);

@@ -8,11 +8,10 @@ import {
   parseRestrictedCut,
   parseSubregion,
   parseTruncationRule,
-  regionKinds,
   regionSpecSchema,
-  type RegionKind,
   type RegionSpec,
 } from '../../shared/vacuum';
+import { findRegionDescriptor, regionDescriptors, regionKinds } from '../../shared/regions';
 import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type VacuumRequest, type VacuumResult } from '../engine/index';
 import { sprinkle } from '../engine/sprinkle';
 import { ZodError } from 'zod';
@@ -25,7 +24,7 @@ export class UsageError extends Error {
 const HELP = `tacet — quantum-field vacua and entanglement entropy on causal sets
 
 usage:
-  tacet sprinkle --region diamond2d|cylinder2d|slab2d|diamond4d --n N [--poisson] --seed S
+  tacet sprinkle --region ${regionKinds.join('|')} --n N [--poisson] --seed S
                  [region size options] [--prng arc4|alea|xor4096] [--out points.csv]
   tacet vacuum   --points points.csv [--mass M] [--density RHO | --region R [size options]]
                  [--truncation none|sqrtN|lambda:X|modes:K|knee[:TOL]] [--json]
@@ -34,10 +33,7 @@ usage:
                  [--mass M] [--density RHO | --region R ...] [--json]
 
 region size options (defaults in brackets):
-  diamond2d   --proper-time T [2√2]  or  --tips T0,X0:T1,X1
-  cylinder2d  --proper-time T [2] --circumference L [2]     (x periodic, x ∈ [−L/2, L/2))
-  slab2d      --t-range T0,T1 [0,1] --x-range X0,X1 [0,1]   (a negative start: --x-range=-1,1)
-  diamond4d   --proper-time T [2]
+${regionKinds.map((kind) => `  ${kind.padEnd(12)}${regionDescriptors[kind].cli.usage}`).join('\n')}
 
 points files are CSV with a header t,x (2D) or t,x,y,z (4D). A massive field or a 4D Green function
 needs the density: --density, or --region with its size so the volume is known (ρ = N/V).
@@ -53,13 +49,12 @@ needs the density: --density, or --region with its size so the volume is known (
 exit codes: 0 success, 2 bad input, 1 failure.
 `;
 
+/** Every region kind's size options, in registry order without repeats. */
+const regionSizeOptions = [...new Set(regionKinds.flatMap((kind) => regionDescriptors[kind].cli.options))];
+
 const regionOptions = {
   region: { type: 'string' },
-  'proper-time': { type: 'string' },
-  tips: { type: 'string' },
-  circumference: { type: 'string' },
-  't-range': { type: 'string' },
-  'x-range': { type: 'string' },
+  ...(Object.fromEntries(regionSizeOptions.map((option) => [option, { type: 'string' }])) as Record<string, { type: 'string' }>),
 } as const satisfies ParseArgsConfig['options'];
 
 const computeOptions = {
@@ -90,54 +85,26 @@ function pair(value: string, what: string): [number, number] {
 function regionFromOptions(values: Record<string, string | boolean | undefined>): RegionSpec | null {
   const kind = values.region as string | undefined;
   if (kind === undefined) {
-    for (const option of ['proper-time', 'tips', 'circumference', 't-range', 'x-range']) {
+    for (const option of regionSizeOptions) {
       if (values[option] !== undefined) throw new UsageError(`--${option} needs --region`);
     }
     return null;
   }
-  if (!(regionKinds as readonly string[]).includes(kind)) throw new UsageError(`--region must be one of ${regionKinds.join(', ')}, got "${kind}"`);
-  const allowed: Record<RegionKind, string[]> = {
-    diamond2d: ['proper-time', 'tips'],
-    cylinder2d: ['proper-time', 'circumference'],
-    slab2d: ['t-range', 'x-range'],
-    diamond4d: ['proper-time'],
-  };
-  for (const option of ['proper-time', 'tips', 'circumference', 't-range', 'x-range']) {
-    if (values[option] !== undefined && !allowed[kind as RegionKind].includes(option)) {
+  const descriptor = findRegionDescriptor(kind);
+  if (!descriptor) throw new UsageError(`--region must be one of ${regionKinds.join(', ')}, got "${kind}"`);
+  for (const option of regionSizeOptions) {
+    if (values[option] !== undefined && !descriptor.cli.options.includes(option)) {
       throw new UsageError(`--${option} does not apply to --region ${kind}`);
     }
   }
-  const properTime = (fallback: number) => (values['proper-time'] !== undefined ? number(values['proper-time'] as string, '--proper-time') : fallback);
-  let candidate: unknown;
-  switch (kind as RegionKind) {
-    case 'diamond2d': {
-      if (values.tips !== undefined) {
-        if (values['proper-time'] !== undefined) throw new UsageError('give --proper-time or --tips, not both');
-        const tips = (values.tips as string).split(':');
-        if (tips.length !== 2) throw new UsageError(`--tips must be T0,X0:T1,X1, got "${values.tips}"`);
-        const [t0, x0] = pair(tips[0], '--tips');
-        const [t1, x1] = pair(tips[1], '--tips');
-        candidate = { kind, past: { t: t0, x: x0 }, future: { t: t1, x: x1 } };
-      } else candidate = { kind, properTime: properTime(2 * Math.SQRT2) };
-      break;
-    }
-    case 'cylinder2d':
-      candidate = {
-        kind,
-        properTime: properTime(2),
-        circumference: values.circumference !== undefined ? number(values.circumference as string, '--circumference') : 2,
-      };
-      break;
-    case 'slab2d': {
-      const [tMin, tMax] = values['t-range'] !== undefined ? pair(values['t-range'] as string, '--t-range') : [0, 1];
-      const [xMin, xMax] = values['x-range'] !== undefined ? pair(values['x-range'] as string, '--x-range') : [0, 1];
-      candidate = { kind, tMin, tMax, xMin, xMax };
-      break;
-    }
-    case 'diamond4d':
-      candidate = { kind, properTime: properTime(2) };
-      break;
-  }
+  const candidate = descriptor.cli.fromOptions({
+    option: (name) => values[name] as string | undefined,
+    number,
+    pair,
+    fail: (message) => {
+      throw new UsageError(message);
+    },
+  });
   const parsed = regionSpecSchema.safeParse(candidate);
   if (!parsed.success) throw new UsageError(`invalid ${kind} region: ${parsed.error.issues.map((i) => i.message).join('; ')}`);
   return parsed.data;

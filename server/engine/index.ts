@@ -332,7 +332,7 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
         : diamondPlacementIssue(tipCoordinates(parsed.data.past), tipCoordinates(parsed.data.future), placedIn);
     if (issue) fail(issue.message, issue.field ? `subregion.${issue.field}` : 'subregion');
     if (parsed.data.kind === 'diamond' && request.source.kind === 'points') {
-      const held = subregionElements(parsed.data, request.source.points, dimension, placedIn?.kind === 'cylinder2d' ? placedIn.circumference : undefined).length;
+      const held = subregionElements(parsed.data, request.source.points, dimension, placedIn ? makeRegion(placedIn).periodX : undefined).length;
       if (held < 2) fail(`the subregion holds ${held} of the ${size.n} elements; the entropy needs at least 2`, 'subregion');
     }
   }

@@ -1,4 +1,4 @@
-import { precedes, separationX } from './regions';
+import { precedes } from './regions';
 
 /**
  * A binary relation on N elements as bit-packed rows: bit j of row i is set iff (i, j) is in the
@@ -89,22 +89,8 @@ export function causalMatrix(points: ArrayLike<number>, dimension: 2 | 4, period
   return c;
 }
 
-/**
- * On the cylinder x ~ x + L: the number of images (t_i, x_i + nL), n ∈ ℤ, in the causal past of
- * (t_j, x_j) — the multiplicity of the massless retarded Green function on the cylinder, by the method
- * of images for the 2D wave equation: G_R = ½ · #{n : y + nL ≺ x}. Zero unless i ≺ j; one while the
- * past light cone of j does not wrap round the cylinder onto a second image.
- *
- * With d = the shortest separation round the cylinder (the one `causalMatrix` tests), the image
- * separations are d + kL (k ≥ 0) and kL − d (k ≥ 1), so the count is
- * ⌈(Δt − d)/L⌉ + ⌈(Δt + d)/L⌉ − 1 for Δt > d, and 0 otherwise — O(1), and ≥ 1 exactly when C says i ≺ j.
- */
-export function imageCount(points: ArrayLike<number>, i: number, j: number, periodX: number): number {
-  const dt = points[2 * j] - points[2 * i];
-  const d = separationX(points[2 * j + 1] - points[2 * i + 1], periodX);
-  if (!(dt > 0 && dt > d)) return 0;
-  return Math.ceil((dt - d) / periodX) + Math.ceil((dt + d) / periodX) - 1;
-}
+// the cylinder's image count lives with its geometry; order.ts keeps offering it
+export { imageCount } from './regions';
 
 /**
  * Link matrix L[i][j] = 1 iff i ≺ j with nothing between (server/engine/README.md §1): the pair (i, j) of C is a

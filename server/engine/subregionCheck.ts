@@ -1,5 +1,5 @@
 import type { Event, RegionSpec } from '../../shared/vacuum';
-import { makeRegion, separationX } from './regions';
+import { eventText, makeRegion, numberText as show, separationX, type Region } from './regions';
 
 /** An event as flat coordinates t, x[, y, z]. */
 export const tipCoordinates = (e: Event): number[] => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]);
@@ -13,39 +13,9 @@ export interface SubregionIssue {
   message: string;
 }
 
-const show = (v: number) => String(Number(v.toPrecision(6)));
-const eventText = (e: ArrayLike<number>) =>
-  e.length === 4 ? `(t = ${show(e[0])}, x = ${show(e[1])}, y = ${show(e[2])}, z = ${show(e[3])})` : `(t = ${show(e[0])}, x = ${show(e[1])})`;
-
-/**
- * How far an event lies inside the region: ≥ 0 on the closed region, < 0 outside, in coordinate units
- * (for the diamonds, along a light-cone coordinate). On the cylinder x counts modulo the circumference,
- * so x = L/2 + a is the event at −L/2 + a.
- */
-function insideMargin(spec: RegionSpec, e: ArrayLike<number>): number {
-  switch (spec.kind) {
-    case 'diamond2d': {
-      const half = spec.properTime !== undefined ? spec.properTime / 2 : 0;
-      const p = spec.past ?? { t: -half, x: 0 };
-      const q = spec.future ?? { t: half, x: 0 };
-      const u = e[0] + e[1];
-      const v = e[0] - e[1];
-      return Math.min(u - (p.t + p.x), q.t + q.x - u, v - (p.t - p.x), q.t - q.x - v);
-    }
-    case 'cylinder2d': {
-      const d = separationX(e[1], spec.circumference);
-      return Math.min(e[0] + spec.properTime / 2 - d, spec.properTime / 2 - e[0] - d);
-    }
-    case 'slab2d':
-      return Math.min(e[0] - spec.tMin, spec.tMax - e[0], e[1] - spec.xMin, spec.xMax - e[1]);
-    case 'diamond4d':
-      return spec.properTime / 2 - Math.abs(e[0]) - Math.hypot(e[1], e[2], e[3]);
-  }
-}
-
 /** Rounding allowance for "on the boundary": a tip given as the region's own tip must count as inside. */
-function boundarySlack(spec: RegionSpec): number {
-  const { min, max } = makeRegion(spec).boundingBox;
+function boundarySlack(region: Region): number {
+  const { min, max } = region.boundingBox;
   return 1e-9 * Math.max(...max.map((m, k) => m - min[k]), ...max.map(Math.abs), ...min.map(Math.abs));
 }
 
@@ -57,12 +27,9 @@ function boundarySlack(spec: RegionSpec): number {
  *    past tip, the causal order the entropy uses);
  * 2. both tips lie in the closure of the region (a tip on the boundary is allowed, so the region's own
  *    tips give the whole region);
- * 3. the whole sub-diamond lies in the closed region. For the diamond regions (2D, 4D, cylinder) this
- *    follows from 2: a causal diamond is causally convex (p ≼ e ≼ q with p, q in it puts e in it). A slab
- *    is not convex along x, so there a sub-diamond with its tips inside can still reach out at its
- *    spatial corners; such a sub-diamond is refused: the elements it would hold fill a diamond clipped by
- *    the slab, whose entropy is not that of the diamond asked for (and whose size is not the volume of
- *    the diamond a study plans with).
+ * 3. the whole sub-diamond lies in the closed region. For a causally convex region (the diamonds: 2D,
+ *    4D, cylinder) this follows from 2 (p ≼ e ≼ q with p, q in it puts e in it); a region that is not
+ *    (a slab, at a sub-diamond's spatial corners) says so through its `subDiamondIssue`.
  * Without a region (points given with a density only) only rule 1 applies. `regionName` names the
  * region in messages ("the diamond2d region" unless given).
  */
@@ -72,7 +39,8 @@ export function diamondPlacementIssue(
   region: RegionSpec | null,
   regionName = region ? `the ${region.kind} region` : 'the region',
 ): SubregionIssue | null {
-  const periodX = region?.kind === 'cylinder2d' ? region.circumference : undefined;
+  const geometry = region ? makeRegion(region) : null;
+  const periodX = geometry?.periodX;
   const dt = future[0] - past[0];
   const spatial =
     past.length === 4 ? Math.hypot(future[1] - past[1], future[2] - past[2], future[3] - past[3]) : separationX(future[1] - past[1], periodX);
@@ -82,28 +50,15 @@ export function diamondPlacementIssue(
       message: `the future tip ${eventText(future)} must lie strictly inside the future light cone of the past tip ${eventText(past)}${periodX !== undefined ? ` (x periodic with circumference ${show(periodX)})` : ''}`,
     };
   }
-  if (!region) return null;
-  const slack = boundarySlack(region);
+  if (!geometry) return null;
+  const slack = boundarySlack(geometry);
   for (const [field, tip] of [['past', past], ['future', future]] as const) {
-    if (insideMargin(region, tip) < -slack) {
+    if (geometry.insideMargin(tip) < -slack) {
       return { field, message: `the ${field} tip ${eventText(tip)} lies outside ${regionName}: both tips must lie in the region or on its boundary` };
     }
   }
-  if (region.kind === 'slab2d') {
-    // the diamond's spatial corners, from the light-cone coordinates u = t + x, v = t − x of its tips
-    const corners = [
-      [past[0] + past[1], future[0] - future[1]],
-      [future[0] + future[1], past[0] - past[1]],
-    ].map(([u, v]) => [(u + v) / 2, (u - v) / 2]);
-    const out = corners.find((c) => insideMargin(region, c) < -slack);
-    if (out) {
-      return {
-        field: '',
-        message: `the sub-diamond reaches outside the slab at its corner ${eventText(out)}: a sub-diamond must lie wholly in the slab (a clipped diamond is not the diamond asked for)`,
-      };
-    }
-  }
-  return null;
+  const outside = geometry.subDiamondIssue?.(past, future, slack);
+  return outside ? { field: '', message: outside } : null;
 }
 
 /**

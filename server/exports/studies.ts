@@ -1,6 +1,7 @@
 import type { StudyExportFormat } from '../../shared/exports';
 import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyRule, StudyStatus } from '../../shared/studies';
 import { studyRuleKey, studyRuleLabel } from '../../shared/studies';
+import { regionDimension, regionLatex } from '../../shared/regions';
 import {
   effectiveRestrictedCut,
   formatRestrictedCut,
@@ -89,7 +90,7 @@ export function aggregatesCsv(aggregates: StudyAggregate[], rules: StudyRule[]):
 
 /** The dimension of the study's regions: its region's, or that of its imported sets. */
 export function studyDimension(input: Pick<StudyExportInput, 'request' | 'causalSets'>): 2 | 4 {
-  if (input.request.source === 'sprinkled') return input.request.region.kind === 'diamond4d' ? 4 : 2;
+  if (input.request.source === 'sprinkled') return regionDimension(input.request.region.kind);
   return input.causalSets.some((c) => c.dimension === 4) ? 4 : 2;
 }
 
@@ -145,20 +146,7 @@ function latexRuleDescription(rule: StudyRule): string {
   return `${latexRule(studyRuleKey(rule))} (${escapeLatex(studyRuleLabel(rule))})`;
 }
 
-function regionText(region: RegionSpec): string {
-  switch (region.kind) {
-    case 'diamond2d':
-      return region.properTime !== undefined
-        ? `a 2D causal diamond of proper time $L = ${region.properTime}$`
-        : `the 2D causal diamond between $(t,x) = (${region.past!.t}, ${region.past!.x})$ and $(${region.future!.t}, ${region.future!.x})$`;
-    case 'cylinder2d':
-      return `a causal diamond of proper time $L = ${region.properTime}$ on the cylinder of circumference ${region.circumference}`;
-    case 'slab2d':
-      return `the 2D slab $t \\in [${region.tMin}, ${region.tMax}]$, $x \\in [${region.xMin}, ${region.xMax}]$`;
-    case 'diamond4d':
-      return `a 4D causal diamond of proper time $L = ${region.properTime}$`;
-  }
-}
+const regionText = (region: RegionSpec): string => regionLatex(region);
 
 function seedList(seeds: string[]): string {
   const shown = seeds.slice(0, 6).map(escapeLatex).join(', ');

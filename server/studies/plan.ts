@@ -2,6 +2,7 @@ import type { CreateStudyRequest, ImportedStudyRequest, ResolvedSubregion, Sprin
 import { STUDY_MIN_SUBREGION_ELEMENTS, studyRuleKey, studyRuleLabel } from '../../shared/studies';
 import type { Event, RegionSpec, SprinklingSpecInput, SubregionSpec } from '../../shared/vacuum';
 import { subregionElements } from '../engine/entropy';
+import { concentricTips, regionOwnDiamond, type DiamondTips } from '../../shared/regions';
 import { makeRegion } from '../engine/regions';
 import { diamondPlacementIssue } from '../engine/subregionCheck';
 
@@ -17,35 +18,9 @@ export class StudyPlanError extends Error {
   }
 }
 
-type Tips = { past: Event; future: Event };
-
-/** Centre and axis of the region's own diamond, when it is one. */
-function regionTips(region: RegionSpec): Tips | null {
-  switch (region.kind) {
-    case 'diamond2d': {
-      if (region.properTime !== undefined) return { past: { t: -region.properTime / 2, x: 0 }, future: { t: region.properTime / 2, x: 0 } };
-      return { past: region.past!, future: region.future! };
-    }
-    case 'cylinder2d':
-      return { past: { t: -region.properTime / 2, x: 0 }, future: { t: region.properTime / 2, x: 0 } };
-    case 'diamond4d':
-      return { past: { t: -region.properTime / 2, x: 0, y: 0, z: 0 }, future: { t: region.properTime / 2, x: 0, y: 0, z: 0 } };
-    case 'slab2d':
-      return null;
-  }
-}
+type Tips = DiamondTips;
 
 const coordinates = (e: Event): number[] => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]);
-const toEvent = (c: number[]): Event => (c.length === 4 ? { t: c[0]!, x: c[1]!, y: c[2]!, z: c[3]! } : { t: c[0]!, x: c[1]! });
-
-/** Tips scaled by f about the centre of the given tips: a concentric diamond with proper time f·τ. */
-export function concentricTips(tips: Tips, fraction: number): Tips {
-  const p = coordinates(tips.past);
-  const q = coordinates(tips.future);
-  const centre = p.map((v, k) => (v + q[k]!) / 2);
-  const half = p.map((v, k) => (q[k]! - v) / 2);
-  return { past: toEvent(centre.map((c, k) => c - fraction * half[k]!)), future: toEvent(centre.map((c, k) => c + fraction * half[k]!)) };
-}
 
 /** Spacetime volume of the causal diamond between two tips: τ²/2 in 2D, πτ⁴/24 in 4D (server/engine/README.md §2). */
 export function diamondVolume(tips: Tips): number {
@@ -100,7 +75,7 @@ export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' 
   const region = makeRegion(request.region);
   const subregions = request.subregions;
   if (subregions.kind === 'concentric') {
-    const tips = regionTips(request.region);
+    const tips = regionOwnDiamond(request.region);
     if (!tips) throw new StudyPlanError('concentric sub-diamonds need a diamond region; give sub-diamonds by their tips for a slab', 'subregions.kind');
     return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/L = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
   }

@@ -16,7 +16,8 @@ import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
 import { loadCausalSetRunInput } from './causal-set-service';
-import { continuumDiamondSpectrum, EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import { EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import { continuumSpectrumFor } from '../../engine/regions';
 import { discardJob, enqueueJob, vacuumRunJobId } from '../../queue/jobs';
 import { toEngineRequest, type StoredRunRequest } from '../../runs/request';
 import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
@@ -141,7 +142,8 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   }
 
   function continuumFor(row: RunWithAuthor, count: number): number[] | null {
-    return row.regionKind === 'diamond2d' && row.n ? Array.from(continuumDiamondSpectrum(row.n, count)) : null;
+    const continuum = row.n ? continuumSpectrumFor(row.regionKind, row.n, count) : null;
+    return continuum ? Array.from(continuum) : null;
   }
 
   async function removeQueuedJob(id: string): Promise<void> {

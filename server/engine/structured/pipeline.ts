@@ -1,4 +1,5 @@
 import type { SubregionSpec, TruncationRule, VacuumStage } from '../../../shared/vacuum';
+import { isPeriodicRegionKind } from '../../../shared/regions';
 import { sprinklingSpecSchema } from '../../../shared/vacuum';
 import { subregionElements } from '../entropy';
 import { EngineInputError, ENGINE_VERSION, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../index';
@@ -18,7 +19,7 @@ export function requestShape(request: VacuumRequest): { N: number; dimension: 2 
   if (source.kind === 'order') return null;
   if (source.kind === 'points') {
     const d = source.dimension;
-    const periodic = source.region ? source.region.kind === 'cylinder2d' : false;
+    const periodic = source.region ? isPeriodicRegionKind(source.region.kind) : false;
     return { N: Math.floor(source.points.length / d), dimension: d, periodic };
   }
   const parsed = sprinklingSpecSchema.safeParse(source.sprinkling);

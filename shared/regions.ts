@@ -1,0 +1,425 @@
+import { z } from 'zod';
+
+/**
+ * The region registry: one descriptor per kind of spacetime region, the one place that says what a kind
+ * is called, how it is written (text, LaTeX, plot outline), its dimension, whether x is periodic, the
+ * fields a form asks for and their defaults, the command-line options, and the sub-diamonds it offers.
+ * Every list and label table of the server and the client derives from `regionDescriptors`, which is
+ * typed by kind, so a kind without a descriptor (or a descriptor without a field) does not compile. The
+ * geometry of each kind (volume, membership, causal order) lives in the engine, server/engine/regions/.
+ * Conventions: units c = 1, coordinates in the order t, x[, y, z] (server/engine/README.md §1–§2).
+ */
+
+const finite = z.number({ message: 'must be a number' }).refine(Number.isFinite, { message: 'must be a finite number' });
+const positive = finite.refine((v) => v > 0, { message: 'must be positive' });
+
+export const event2dSchema = z.strictObject({ t: finite, x: finite });
+export type Event2d = z.infer<typeof event2dSchema>;
+
+export const event4dSchema = z.strictObject({ t: finite, x: finite, y: finite, z: finite });
+export type Event4d = z.infer<typeof event4dSchema>;
+
+/** An event in either dimension; the 4D form is tried first so y and z are never dropped. */
+export const eventSchema = z.union([event4dSchema, event2dSchema]);
+export type Event = z.infer<typeof eventSchema>;
+
+function lightConeOrdered(past: Event2d, future: Event2d): boolean {
+  return future.t - past.t > Math.abs(future.x - past.x);
+}
+
+/**
+ * 2D causal diamond, either between two tips (future tip strictly inside the future light cone of the
+ * past tip) or centred on the origin with a given proper time between its tips.
+ */
+export const diamond2dRegionSchema = z
+  .strictObject({
+    kind: z.literal('diamond2d'),
+    properTime: positive.optional(),
+    past: event2dSchema.optional(),
+    future: event2dSchema.optional(),
+  })
+  .refine((r) => (r.properTime !== undefined) !== (r.past !== undefined || r.future !== undefined), {
+    message: 'give either properTime or both tips (past and future), not both',
+  })
+  .refine((r) => r.properTime !== undefined || (r.past !== undefined && r.future !== undefined), {
+    message: 'a diamond by its tips needs both past and future',
+  })
+  .refine((r) => r.past === undefined || r.future === undefined || lightConeOrdered(r.past, r.future), {
+    message: 'the future tip must lie strictly inside the future light cone of the past tip',
+  });
+
+/**
+ * Causal diamond on the flat cylinder: x is periodic with the given circumference, the tips sit at
+ * (±properTime/2, 0). When properTime exceeds the circumference the diamond wraps around the cylinder.
+ */
+export const cylinderDiamondRegionSchema = z.strictObject({
+  kind: z.literal('cylinder2d'),
+  properTime: positive,
+  circumference: positive,
+});
+
+/** 2D slab (rectangle) t ∈ [tMin, tMax], x ∈ [xMin, xMax]. */
+export const slab2dRegionSchema = z
+  .strictObject({
+    kind: z.literal('slab2d'),
+    tMin: finite,
+    tMax: finite,
+    xMin: finite,
+    xMax: finite,
+  })
+  .refine((r) => r.tMax > r.tMin && r.xMax > r.xMin, { message: 'slab ranges must have max > min' });
+
+/** 4D causal diamond with tips at (±properTime/2, 0, 0, 0). */
+export const diamond4dRegionSchema = z.strictObject({
+  kind: z.literal('diamond4d'),
+  properTime: positive,
+});
+
+export const regionSpecSchema = z.discriminatedUnion('kind', [
+  diamond2dRegionSchema,
+  cylinderDiamondRegionSchema,
+  slab2dRegionSchema,
+  diamond4dRegionSchema,
+]);
+export type RegionSpec = z.infer<typeof regionSpecSchema>;
+export type RegionKind = RegionSpec['kind'];
+export type RegionSpecOf<K extends RegionKind> = Extract<RegionSpec, { kind: K }>;
+
+/** A causal diamond by its tips. */
+export interface DiamondTips {
+  past: Event;
+  future: Event;
+}
+
+/** A closed outline in the (x, t) plane, x across and t upwards as in a spacetime diagram. */
+export interface Outline {
+  x: number[];
+  y: number[];
+}
+
+/**
+ * The fields a region form asks for, shared by every kind that has them (the forms hold each as text,
+ * so a value typed for one kind stays when switching to another kind with the same field).
+ */
+export const regionFieldKeys = ['properTime', 'circumference', 'tMin', 'tMax', 'xMin', 'xMax'] as const;
+export type RegionFieldKey = (typeof regionFieldKeys)[number];
+
+export interface RegionFieldText {
+  label: string;
+  hint?: string;
+  /** the message a form shows when the schema refuses the value (its own message is terse) */
+  invalid?: string;
+}
+
+/** The wording of each field in the run form; other forms change some of it (RegionFieldWording). */
+export const regionFieldTexts: Record<RegionFieldKey, RegionFieldText> = {
+  properTime: { label: 'Proper time T', hint: 'Between the tips, at t = ±T/2.', invalid: 'The proper time between the tips is a positive number.' },
+  circumference: { label: 'Circumference', hint: 'x is periodic; T > circumference wraps.', invalid: 'The circumference is a positive number.' },
+  tMin: { label: 't min' },
+  tMax: { label: 't max' },
+  xMin: { label: 'x min' },
+  xMax: { label: 'x max' },
+};
+
+/**
+ * What the command line needs to read a region from its options (server/cli/main.ts supplies it):
+ * the option's text, numbers and pairs with the CLI's messages, and a refusal.
+ */
+export interface RegionOptionReader {
+  option(name: string): string | undefined;
+  number(value: string, what: string): number;
+  pair(value: string, what: string): [number, number];
+  fail(message: string): never;
+}
+
+export interface RegionDescriptor<K extends RegionKind = RegionKind> {
+  readonly kind: K;
+  readonly schema: z.ZodType<RegionSpecOf<K>>;
+  /** name in menus, tables and filters: "2D causal diamond" */
+  readonly label: string;
+  /** a longer name that says where the region lies, for choosing the region of an imported file */
+  readonly description: string;
+  readonly dimension: 2 | 4;
+  /** x is periodic: the causal order (and the Green function) go through the images of each point */
+  readonly periodic: boolean;
+  /** the form fields, in the order shown; the spec is `{ kind, <field>: number, … }` */
+  readonly fields: readonly RegionFieldKey[];
+  /** the run form's starting values of the fields (text) */
+  readonly defaults: Readonly<Partial<Record<RegionFieldKey, string>>>;
+  /** the field a form shows the region's own refinement at (a rule over several fields), if not at the kind */
+  readonly refinementField?: RegionFieldKey;
+  /** short text for tables and pickers: "2D diamond, τ = 2" */
+  text(spec: RegionSpecOf<K>): string;
+  /** the label with the sizes, for a run's settings: "2D causal diamond, T = 2" */
+  settingsText(spec: RegionSpecOf<K>): string;
+  /** a noun phrase in LaTeX for a methods paragraph: "a 2D causal diamond of proper time $L = 2$" */
+  latex(spec: RegionSpecOf<K>): string;
+  /** the boundary drawn behind the points in (x, t); null where no outline applies */
+  outline(spec: RegionSpecOf<K>): Outline | null;
+  /** the region's own diamond, about whose centre concentric sub-diamonds are scaled; absent when it is none */
+  ownDiamond?(spec: RegionSpecOf<K>): DiamondTips;
+  /** a sub-diamond that lies wholly in the region, for forms to start from */
+  defaultSubDiamond(spec: RegionSpecOf<K>): DiamondTips;
+  readonly cli: {
+    /** the size options and their defaults, one line of `tacet --help` */
+    readonly usage: string;
+    /** the options that apply to this kind (besides --region) */
+    readonly options: readonly string[];
+    /** the spec from the options, unvalidated */
+    fromOptions(read: RegionOptionReader): unknown;
+  };
+}
+
+/** Up to six significant digits: short and exact enough for labels. */
+const short = (v: number) => String(Number(v.toPrecision(6)));
+
+/** The causal diamond between two timelike-separated events, as a closed outline in (x, t). */
+export function diamondOutline(past: { t: number; x: number }, future: { t: number; x: number }): Outline {
+  // Light-cone coordinates u = t + x, v = t − x; the side corners mix the tips' u and v.
+  const u0 = past.t + past.x;
+  const v0 = past.t - past.x;
+  const u1 = future.t + future.x;
+  const v1 = future.t - future.x;
+  const right = { t: (u1 + v0) / 2, x: (u1 - v0) / 2 };
+  const left = { t: (u0 + v1) / 2, x: (u0 - v1) / 2 };
+  return { x: [past.x, right.x, future.x, left.x, past.x], y: [past.t, right.t, future.t, left.t, past.t] };
+}
+
+const centredOutline = (h: number): Outline => ({ x: [0, h, 0, -h, 0], y: [-h, 0, h, 0, -h] });
+
+const coordinates = (e: Event): number[] => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]);
+const toEvent = (c: number[]): Event => (c.length === 4 ? { t: c[0]!, x: c[1]!, y: c[2]!, z: c[3]! } : { t: c[0]!, x: c[1]! });
+
+/** Tips scaled by f about the centre of the given tips: a concentric diamond with proper time f·τ. */
+export function concentricTips(tips: DiamondTips, fraction: number): DiamondTips {
+  const p = coordinates(tips.past);
+  const q = coordinates(tips.future);
+  const centre = p.map((v, k) => (v + q[k]!) / 2);
+  const half = p.map((v, k) => (q[k]! - v) / 2);
+  return { past: toEvent(centre.map((c, k) => c - fraction * half[k]!)), future: toEvent(centre.map((c, k) => c + fraction * half[k]!)) };
+}
+
+/** Tips at (∓T/2, 0) in 2D or (∓T/2, 0⃗) in 4D. */
+function centredTips(properTime: number, dimension: 2 | 4): DiamondTips {
+  const h = properTime / 2;
+  return dimension === 4
+    ? { past: { t: -h, x: 0, y: 0, z: 0 }, future: { t: h, x: 0, y: 0, z: 0 } }
+    : { past: { t: -h, x: 0 }, future: { t: h, x: 0 } };
+}
+
+/** The proper-time option of the command line, with its default. */
+const properTimeOption = (read: RegionOptionReader, fallback: number) => {
+  const text = read.option('proper-time');
+  return text !== undefined ? read.number(text, '--proper-time') : fallback;
+};
+
+const diamond2d: RegionDescriptor<'diamond2d'> = {
+  kind: 'diamond2d',
+  schema: diamond2dRegionSchema,
+  label: '2D causal diamond',
+  description: '2D causal diamond, tips at (±τ/2, 0)',
+  dimension: 2,
+  periodic: false,
+  fields: ['properTime'],
+  defaults: { properTime: '2' },
+  text: (r) =>
+    r.properTime !== undefined
+      ? `2D diamond, τ = ${short(r.properTime)}`
+      : `2D diamond (${short(r.past!.t)}, ${short(r.past!.x)}) → (${short(r.future!.t)}, ${short(r.future!.x)})`,
+  settingsText: (r) => (typeof r.properTime === 'number' ? `${diamond2d.label}, T = ${r.properTime}` : diamond2d.label),
+  latex: (r) =>
+    r.properTime !== undefined
+      ? `a 2D causal diamond of proper time $L = ${r.properTime}$`
+      : `the 2D causal diamond between $(t,x) = (${r.past!.t}, ${r.past!.x})$ and $(${r.future!.t}, ${r.future!.x})$`,
+  outline: (r) => (typeof r.properTime === 'number' ? centredOutline(r.properTime / 2) : r.past && r.future ? diamondOutline(r.past, r.future) : null),
+  ownDiamond: (r) => (r.properTime !== undefined ? centredTips(r.properTime, 2) : { past: r.past!, future: r.future! }),
+  defaultSubDiamond: (r) => concentricTips(diamond2d.ownDiamond!(r), 0.5),
+  cli: {
+    usage: '--proper-time T [2√2]  or  --tips T0,X0:T1,X1',
+    options: ['proper-time', 'tips'],
+    fromOptions(read) {
+      const tipsText = read.option('tips');
+      if (tipsText === undefined) return { kind: 'diamond2d', properTime: properTimeOption(read, 2 * Math.SQRT2) };
+      if (read.option('proper-time') !== undefined) read.fail('give --proper-time or --tips, not both');
+      const tips = tipsText.split(':');
+      if (tips.length !== 2) read.fail(`--tips must be T0,X0:T1,X1, got "${tipsText}"`);
+      const [t0, x0] = read.pair(tips[0]!, '--tips');
+      const [t1, x1] = read.pair(tips[1]!, '--tips');
+      return { kind: 'diamond2d', past: { t: t0, x: x0 }, future: { t: t1, x: x1 } };
+    },
+  },
+};
+
+const cylinder2d: RegionDescriptor<'cylinder2d'> = {
+  kind: 'cylinder2d',
+  schema: cylinderDiamondRegionSchema,
+  label: 'Diamond on a cylinder',
+  description: 'Diamond on a cylinder (x periodic)',
+  dimension: 2,
+  periodic: true,
+  fields: ['properTime', 'circumference'],
+  defaults: { properTime: '2', circumference: '4' },
+  text: (r) => `cylinder diamond, τ = ${short(r.properTime)}, L = ${short(r.circumference)}`,
+  settingsText: (r) => `${cylinder2d.label}, T = ${r.properTime}, circumference ${r.circumference}`,
+  latex: (r) => `a causal diamond of proper time $L = ${r.properTime}$ on the cylinder of circumference ${r.circumference}`,
+  outline: (r) => {
+    const h = r.properTime / 2;
+    const c = r.circumference / 2;
+    // When the diamond wraps round the cylinder only the strip |x| ≤ C/2 is drawn.
+    return h <= c ? centredOutline(h) : { x: [-c, c, c, -c, -c], y: [-h, -h, h, h, -h] };
+  },
+  ownDiamond: (r) => centredTips(r.properTime, 2),
+  defaultSubDiamond: (r) => concentricTips(centredTips(r.properTime, 2), 0.5),
+  cli: {
+    usage: '--proper-time T [2] --circumference L [2]     (x periodic, x ∈ [−L/2, L/2))',
+    options: ['proper-time', 'circumference'],
+    fromOptions(read) {
+      const circumference = read.option('circumference');
+      return { kind: 'cylinder2d', properTime: properTimeOption(read, 2), circumference: circumference !== undefined ? read.number(circumference, '--circumference') : 2 };
+    },
+  },
+};
+
+const slab2d: RegionDescriptor<'slab2d'> = {
+  kind: 'slab2d',
+  schema: slab2dRegionSchema,
+  label: '2D slab',
+  description: '2D slab (rectangle in t, x)',
+  dimension: 2,
+  periodic: false,
+  fields: ['tMin', 'tMax', 'xMin', 'xMax'],
+  defaults: { tMin: '0', tMax: '1', xMin: '0', xMax: '4' },
+  refinementField: 'tMin',
+  text: (r) => `slab t ∈ [${short(r.tMin)}, ${short(r.tMax)}], x ∈ [${short(r.xMin)}, ${short(r.xMax)}]`,
+  settingsText: (r) => `${slab2d.label}, t ∈ [${r.tMin}, ${r.tMax}], x ∈ [${r.xMin}, ${r.xMax}]`,
+  latex: (r) => `the 2D slab $t \\in [${r.tMin}, ${r.tMax}]$, $x \\in [${r.xMin}, ${r.xMax}]$`,
+  outline: (r) => ({ x: [r.xMin, r.xMax, r.xMax, r.xMin, r.xMin], y: [r.tMin, r.tMin, r.tMax, r.tMax, r.tMin] }),
+  // A diamond of proper time 2h reaches h to either side of its axis: h = ¼ of the shorter side keeps it well inside.
+  defaultSubDiamond: (r) => {
+    const t = (r.tMin + r.tMax) / 2;
+    const x = (r.xMin + r.xMax) / 2;
+    const h = Math.min(r.tMax - r.tMin, r.xMax - r.xMin) / 4;
+    return { past: { t: t - h, x }, future: { t: t + h, x } };
+  },
+  cli: {
+    usage: '--t-range T0,T1 [0,1] --x-range X0,X1 [0,1]   (a negative start: --x-range=-1,1)',
+    options: ['t-range', 'x-range'],
+    fromOptions(read) {
+      const tRange = read.option('t-range');
+      const xRange = read.option('x-range');
+      const [tMin, tMax] = tRange !== undefined ? read.pair(tRange, '--t-range') : [0, 1];
+      const [xMin, xMax] = xRange !== undefined ? read.pair(xRange, '--x-range') : [0, 1];
+      return { kind: 'slab2d', tMin, tMax, xMin, xMax };
+    },
+  },
+};
+
+const diamond4d: RegionDescriptor<'diamond4d'> = {
+  kind: 'diamond4d',
+  schema: diamond4dRegionSchema,
+  label: '4D causal diamond',
+  description: '4D causal diamond, tips at (±τ/2, 0⃗)',
+  dimension: 4,
+  periodic: false,
+  fields: ['properTime'],
+  defaults: { properTime: '2' },
+  text: (r) => `4D diamond, τ = ${short(r.properTime)}`,
+  settingsText: (r) => `${diamond4d.label}, T = ${r.properTime}`,
+  latex: (r) => `a 4D causal diamond of proper time $L = ${r.properTime}$`,
+  outline: () => null,
+  ownDiamond: (r) => centredTips(r.properTime, 4),
+  defaultSubDiamond: (r) => concentricTips(centredTips(r.properTime, 4), 0.5),
+  cli: {
+    usage: '--proper-time T [2]',
+    options: ['proper-time'],
+    fromOptions: (read) => ({ kind: 'diamond4d', properTime: properTimeOption(read, 2) }),
+  },
+};
+
+/** Every region kind's descriptor, in the order menus list them. */
+export const regionDescriptors: { readonly [K in RegionKind]: RegionDescriptor<K> } = { diamond2d, cylinder2d, slab2d, diamond4d };
+
+export const regionKinds = Object.keys(regionDescriptors) as RegionKind[];
+
+/** The kind a new run or study starts with. */
+export const defaultRegionKind: RegionKind = 'diamond2d';
+
+/** The descriptor of a kind, as the common shape (for code that holds a spec of any kind). */
+export function regionDescriptor<K extends RegionKind>(kind: K): RegionDescriptor<K> {
+  return regionDescriptors[kind] as RegionDescriptor<K>;
+}
+
+/** The descriptor of a kind given as text (a stored row, a query), or undefined for no region kind. */
+export function findRegionDescriptor(kind: string): RegionDescriptor | undefined {
+  return Object.hasOwn(regionDescriptors, kind) ? (regionDescriptors[kind as RegionKind] as RegionDescriptor) : undefined;
+}
+
+const forSpec = <K extends RegionKind>(spec: RegionSpecOf<K>) => regionDescriptor<K>(spec.kind as K);
+
+export const regionDimension = (kind: RegionKind): 2 | 4 => regionDescriptors[kind].dimension;
+
+/** Whether a kind (given as text, e.g. a run's stored region kind) has a periodic x. */
+export const isPeriodicRegionKind = (kind: string): boolean => findRegionDescriptor(kind)?.periodic === true;
+
+/** The kinds of one dimension, in registry order. */
+export const regionKindsOfDimension = (dimension: 2 | 4): RegionKind[] => regionKinds.filter((k) => regionDescriptors[k].dimension === dimension);
+
+/** Menu label of each kind. */
+export const regionLabels = Object.fromEntries(regionKinds.map((k) => [k, regionDescriptors[k].label])) as Record<RegionKind, string>;
+
+export const regionText = (spec: RegionSpec): string => forSpec(spec).text(spec);
+export const regionSettingsText = (spec: RegionSpec): string => forSpec(spec).settingsText(spec);
+export const regionLatex = (spec: RegionSpec): string => forSpec(spec).latex(spec);
+export const regionOutlineOf = (spec: RegionSpec): Outline | null => forSpec(spec).outline(spec);
+/** The region's own diamond, or null for a region that is none (a slab). */
+export const regionOwnDiamond = (spec: RegionSpec): DiamondTips | null => forSpec(spec).ownDiamond?.(spec) ?? null;
+export const regionDefaultSubDiamond = (spec: RegionSpec): DiamondTips => forSpec(spec).defaultSubDiamond(spec);
+
+// ---- forms ----
+
+/** The region part of a form, as typed: the kind and every field's text. */
+export type RegionFieldValues = { regionKind: RegionKind } & { [K in RegionFieldKey]: string };
+
+/** Changes one form makes to the run form's wording; a hint of null shows none. */
+export type RegionFieldWording = Partial<Record<RegionFieldKey, { label?: string; hint?: string | null | ((kind: RegionKind) => string) }>>;
+
+export interface RegionFormField {
+  key: RegionFieldKey;
+  label: string;
+  hint?: string;
+}
+
+/** The fields a form shows for a kind, with their wording (RegionFields in src/ui renders them). */
+export function regionFormFields(kind: RegionKind, wording: RegionFieldWording = {}): RegionFormField[] {
+  return regionDescriptors[kind].fields.map((key) => {
+    const own = wording[key];
+    const hint = own?.hint === undefined ? regionFieldTexts[key].hint : typeof own.hint === 'function' ? own.hint(kind) : own.hint;
+    return { key, label: own?.label ?? regionFieldTexts[key].label, ...(hint ? { hint } : {}) };
+  });
+}
+
+/**
+ * Every field's starting text: the descriptors' defaults (kinds that share a field agree on it, which
+ * the registry test checks), blank for a field no kind gives a default.
+ */
+export function regionFieldDefaults(): { [K in RegionFieldKey]: string } {
+  const values = Object.fromEntries(regionFieldKeys.map((k) => [k, ''])) as { [K in RegionFieldKey]: string };
+  for (const kind of regionKinds) Object.assign(values, regionDescriptors[kind].defaults);
+  return values;
+}
+
+/**
+ * The region a form's fields describe, still unvalidated (the shared schema names a bad value at
+ * `…region.<field>`): `read` turns a field's text into a number, undefined when blank.
+ */
+export function regionFromFields(kind: RegionKind, read: (key: RegionFieldKey) => number | undefined): unknown {
+  return { kind, ...Object.fromEntries(regionDescriptors[kind].fields.map((key) => [key, read(key)])) };
+}
+
+/** `regionFromFields` on the text as typed: blank is undefined, anything else Number() (NaN for no number). */
+export function regionFromFieldText(values: RegionFieldValues): unknown {
+  return regionFromFields(values.regionKind, (key) => {
+    const text = values[key].trim();
+    return text === '' ? undefined : Number(text);
+  });
+}
