@@ -1,21 +1,14 @@
 import { causalSetMetadataSchema, type CausalSetKind, type CausalSetMetadata } from '@shared/causalSets';
-import type { RegionKind } from '@shared/vacuum';
+import { defaultRegionKind, regionDescriptors, regionFieldKeys, regionFromFieldText, type RegionFieldValues } from '@shared/regions';
 import { validate, type FieldErrors } from '../../../lib/forms';
 import { parseNumber } from '../../cutRules/lib/truncationForm';
 
 /** The import form as typed: every number is text until submitted. */
-export interface ImportFormValues {
+export interface ImportFormValues extends RegionFieldValues {
   name: string;
   kind: CausalSetKind;
   /** coordinates: how the spacetime volume per element is known */
   scale: 'region' | 'density';
-  regionKind: RegionKind;
-  properTime: string;
-  circumference: string;
-  tMin: string;
-  tMax: string;
-  xMin: string;
-  xMax: string;
   density: string;
   /** relations only */
   count: string;
@@ -27,40 +20,14 @@ export function defaultImportForm(): ImportFormValues {
     name: '',
     kind: 'coordinates',
     scale: 'region',
-    regionKind: 'diamond2d',
+    regionKind: defaultRegionKind,
+    // the file's own region: only the proper time of the default diamond is proposed
+    ...(Object.fromEntries(regionFieldKeys.map((key) => [key, ''])) as Pick<ImportFormValues, (typeof regionFieldKeys)[number]>),
     properTime: '2',
-    circumference: '',
-    tMin: '',
-    tMax: '',
-    xMin: '',
-    xMax: '',
     density: '',
     count: '',
     dimension: '2',
   };
-}
-
-export const importRegionLabels: Record<RegionKind, string> = {
-  diamond2d: '2D causal diamond, tips at (±τ/2, 0)',
-  cylinder2d: 'Diamond on a cylinder (x periodic)',
-  slab2d: '2D slab (rectangle in t, x)',
-  diamond4d: '4D causal diamond, tips at (±τ/2, 0⃗)',
-};
-
-/** The region fields of a form as text, whichever region kind is picked. */
-export type RegionFieldValues = Pick<ImportFormValues, 'regionKind' | 'properTime' | 'circumference' | 'tMin' | 'tMax' | 'xMin' | 'xMax'>;
-
-/** The region a form's fields describe (blank or unreadable numbers stay undefined for the schema to name). */
-export function regionFromForm(v: RegionFieldValues): unknown {
-  switch (v.regionKind) {
-    case 'diamond2d':
-    case 'diamond4d':
-      return { kind: v.regionKind, properTime: parseNumber(v.properTime) };
-    case 'cylinder2d':
-      return { kind: 'cylinder2d', properTime: parseNumber(v.properTime), circumference: parseNumber(v.circumference) };
-    case 'slab2d':
-      return { kind: 'slab2d', tMin: parseNumber(v.tMin), tMax: parseNumber(v.tMax), xMin: parseNumber(v.xMin), xMax: parseNumber(v.xMax) };
-  }
 }
 
 /** Field name of the form for a schema path ("region.properTime" → "properTime"). */
@@ -73,7 +40,7 @@ export function importFieldFor(path: string): string {
 export function metadataFromForm(v: ImportFormValues): { ok: true; metadata: CausalSetMetadata } | { ok: false; errors: FieldErrors } {
   const candidate: Record<string, unknown> = { name: v.name, kind: v.kind };
   if (v.kind === 'coordinates') {
-    if (v.scale === 'region') candidate.region = regionFromForm(v);
+    if (v.scale === 'region') candidate.region = regionFromFieldText(v);
     else candidate.density = parseNumber(v.density);
   } else {
     candidate.count = parseNumber(v.count);
@@ -88,7 +55,9 @@ export function metadataFromForm(v: ImportFormValues): { ok: true; metadata: Cau
     const field = importFieldFor(path);
     if (!(field in errors)) errors[field] = message;
   }
-  if (errors.region && v.scale === 'region' && v.regionKind === 'slab2d' && !errors.tMin) errors.tMin = errors.region;
+  // a refinement over several fields (a slab's max > min) is shown beside them, not only at the kind
+  const at = regionDescriptors[v.regionKind].refinementField;
+  if (errors.region && v.scale === 'region' && at && !errors[at]) errors[at] = errors.region;
   return { ok: false, errors };
 }
 

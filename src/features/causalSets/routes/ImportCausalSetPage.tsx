@@ -1,12 +1,13 @@
 import { useState, type FormEvent } from 'react';
 import { Link, useNavigate } from 'react-router';
 import { CAUSAL_SET_FILE_LIMIT_BYTES } from '@shared/causalSets';
-import { regionKinds, type RegionKind } from '@shared/vacuum';
+import { regionDimension, regionKindsOfDimension, type RegionFieldWording } from '@shared/regions';
 import { isApiError } from '../../../lib/apiClient';
 import type { FieldErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
+import { RegionFields } from '../../../ui/RegionFields';
 import { Empty } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { useCausalSets, useUploadCausalSet } from '../api/causalSets';
@@ -14,7 +15,6 @@ import {
   defaultImportForm,
   formatBytes,
   importFieldFor,
-  importRegionLabels,
   metadataFromForm,
   nameFromFileName,
   sniffFile,
@@ -52,6 +52,16 @@ function FileProblems({ message, problems }: { message: string; problems: string
   );
 }
 
+/** The import form's words: τ for the proper time, L for the circumference, ranges "from … to". */
+const importRegionWording: RegionFieldWording = {
+  properTime: { label: 'Proper time τ between the tips', hint: null },
+  circumference: { label: 'Circumference L', hint: 'x in [−L/2, L/2)' },
+  tMin: { label: 't from' },
+  tMax: { label: 't to' },
+  xMin: { label: 'x from' },
+  xMax: { label: 'x to' },
+};
+
 export function ImportCausalSetPage() {
   const canCompute = useCan('compute');
   const list = useCausalSets();
@@ -83,8 +93,8 @@ export function ImportCausalSetPage() {
       ...v,
       name: v.name || nameFromFileName(chosen.name),
       ...(found.kind ? { kind: found.kind } : {}),
-      ...(found.kind === 'coordinates' && found.dimension === 4 && v.regionKind !== 'diamond4d' ? { regionKind: 'diamond4d' as RegionKind } : {}),
-      ...(found.kind === 'coordinates' && found.dimension === 2 && v.regionKind === 'diamond4d' ? { regionKind: 'diamond2d' as RegionKind } : {}),
+      // a region of the file's dimension: the first kind of it unless the one picked already is
+      ...(found.kind === 'coordinates' && found.dimension !== null && regionDimension(v.regionKind) !== found.dimension ? { regionKind: regionKindsOfDimension(found.dimension)[0]! } : {}),
       ...(found.countGuess !== null && !v.count ? { count: String(found.countGuess) } : {}),
     }));
   }
@@ -187,25 +197,17 @@ export function ImportCausalSetPage() {
               </div>
               {values.scale === 'region' ? (
                 <div className="grid grid-cols-1 gap-5 sm:grid-cols-2">
-                  <div className="sm:col-span-2">
-                    <SelectField label="Region" name="regionKind" value={values.regionKind} onChange={(e) => set('regionKind', e.target.value as RegionKind)} error={errors.region}>
-                      {regionKinds.map((kind) => (
-                        <option key={kind} value={kind}>
-                          {importRegionLabels[kind]}
-                        </option>
-                      ))}
-                    </SelectField>
-                  </div>
-                  {values.regionKind !== 'slab2d' && (
-                    <TextField label="Proper time τ between the tips" name="properTime" inputMode="decimal" className="figures" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} />
-                  )}
-                  {values.regionKind === 'cylinder2d' && (
-                    <TextField label="Circumference L" name="circumference" inputMode="decimal" className="figures" value={values.circumference} onChange={(e) => set('circumference', e.target.value)} error={errors.circumference} hint="x in [−L/2, L/2)" />
-                  )}
-                  {values.regionKind === 'slab2d' &&
-                    (['tMin', 'tMax', 'xMin', 'xMax'] as const).map((key) => (
-                      <TextField key={key} label={`${key[0]} ${key.endsWith('Min') ? 'from' : 'to'}`} name={key} inputMode="decimal" className="figures" value={values[key]} onChange={(e) => set(key, e.target.value)} error={errors[key]} />
-                    ))}
+                  <RegionFields
+                    values={values}
+                    onKindChange={(kind) => set('regionKind', kind)}
+                    onFieldChange={(key, text) => set(key, text)}
+                    kindError={errors.region}
+                    fieldError={(key) => errors[key]}
+                    wording={importRegionWording}
+                    optionText="description"
+                    inputClassName="figures"
+                    selectClassName="sm:col-span-2"
+                  />
                 </div>
               ) : (
                 <div className="max-w-xs">

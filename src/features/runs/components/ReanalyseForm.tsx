@@ -1,5 +1,6 @@
 import { useState, type FormEvent } from 'react';
 import { useNavigate } from 'react-router';
+import { isPeriodicRegionKind } from '@shared/regions';
 import type { RunDetail } from '@shared/runs';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
@@ -25,7 +26,7 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
   const reanalysed = {
     N: run.N ?? 0,
     dimension,
-    periodic: run.regionKind === 'cylinder2d',
+    periodic: isPeriodicRegionKind(run.regionKind),
     relationOnly: stored.causalSet?.kind === 'relations',
   };
   const set = <K extends keyof ReanalyseFormValues>(key: K, value: ReanalyseFormValues[K]) => setValues((v) => ({ ...v, [key]: value }));

@@ -1,3 +1,4 @@
+import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import type { RunDetail, RunResult } from '@shared/runs';
 import { entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import { describeTruncation } from '../../cutRules/lib/truncationForm';
@@ -175,12 +176,10 @@ function tipText(tip: Record<string, number> | undefined): string {
   return `(${['t', 'x', 'y', 'z'].filter((c) => c in tip).map((c) => tip[c]).join(', ')})`;
 }
 
+/** A stored region in words with its sizes; a kind this client does not know is shown by its name. */
 function regionText(region: Record<string, unknown> & { kind: string }): string {
-  const label = regionLabels[region.kind] ?? region.kind;
-  if (region.kind === 'slab2d') return `${label}, t ∈ [${region.tMin}, ${region.tMax}], x ∈ [${region.xMin}, ${region.xMax}]`;
-  if (region.kind === 'cylinder2d') return `${label}, T = ${region.properTime}, circumference ${region.circumference}`;
-  if (typeof region.properTime === 'number') return `${label}, T = ${region.properTime}`;
-  return label;
+  const parsed = regionSpecSchema.safeParse(region);
+  return parsed.success ? regionSettingsText(parsed.data) : (regionLabels[region.kind] ?? region.kind);
 }
 
 /** The settings the run was made from, so it can be read and reproduced. */

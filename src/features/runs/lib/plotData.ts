@@ -1,3 +1,4 @@
+import { diamondOutline, regionOutlineOf, regionSpecSchema } from '@shared/regions';
 import type { RunPoints, RunResult } from '@shared/runs';
 
 /**
@@ -248,40 +249,12 @@ export const tickFont = { family: mono, size: 11 };
 /** The region's boundary in (x, t), drawn behind the points; null where no outline applies. */
 export function regionOutline(request: unknown): { x: number[]; y: number[] } | null {
   const region = (request as { sprinkling?: { region?: Record<string, unknown> } } | null)?.sprinkling?.region;
-  if (!region) return null;
-  if (region.kind === 'diamond2d') {
-    if (typeof region.properTime === 'number') {
-      const h = region.properTime / 2;
-      return { x: [0, h, 0, -h, 0], y: [-h, 0, h, 0, -h] };
-    }
-    const past = region.past as { t: number; x: number } | undefined;
-    const future = region.future as { t: number; x: number } | undefined;
-    if (past && future) return diamondBetween(past, future);
-  }
-  if (region.kind === 'cylinder2d' && typeof region.properTime === 'number' && typeof region.circumference === 'number') {
-    const h = region.properTime / 2;
-    const c = region.circumference / 2;
-    // When the diamond wraps round the cylinder only the strip |x| ≤ C/2 is drawn.
-    return h <= c ? { x: [0, h, 0, -h, 0], y: [-h, 0, h, 0, -h] } : { x: [-c, c, c, -c, -c], y: [-h, -h, h, h, -h] };
-  }
-  if (region.kind === 'slab2d') {
-    const { tMin, tMax, xMin, xMax } = region as Record<string, number>;
-    return { x: [xMin, xMax, xMax, xMin, xMin], y: [tMin, tMin, tMax, tMax, tMin] };
-  }
-  return null;
+  const parsed = regionSpecSchema.safeParse(region);
+  return parsed.success ? regionOutlineOf(parsed.data) : null;
 }
 
 /** The causal diamond between two timelike-separated events, as a closed outline in (x, t). */
-export function diamondBetween(past: { t: number; x: number }, future: { t: number; x: number }): { x: number[]; y: number[] } {
-  // Light-cone coordinates u = t + x, v = t − x; the side corners mix the tips' u and v.
-  const u0 = past.t + past.x;
-  const v0 = past.t - past.x;
-  const u1 = future.t + future.x;
-  const v1 = future.t - future.x;
-  const right = { t: (u1 + v0) / 2, x: (u1 - v0) / 2 };
-  const left = { t: (u0 + v1) / 2, x: (u0 - v1) / 2 };
-  return { x: [past.x, right.x, future.x, left.x, past.x], y: [past.t, right.t, future.t, left.t, past.t] };
-}
+export const diamondBetween = diamondOutline;
 
 /** The scatter of the points in (x, t) — t upwards, as in a spacetime diagram — with the subregion marked. */
 export function pointsTraces(points: RunPoints, request: unknown, colors: PlotColors): Trace[] {

@@ -1,6 +1,21 @@
 import { AUTO_STRUCTURED_FROM, chooseEngine, sizeLimitForRequest, STRUCTURED_MAX_N_2D, type EngineRequest } from '@shared/engineChoice';
 import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
-import { defaultTruncationFor, type PrngName, type RegionKind, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
+import {
+  defaultRegionKind,
+  isPeriodicRegionKind,
+  regionDefaultSubDiamond,
+  regionDimension,
+  regionFieldDefaults,
+  regionFieldKeys,
+  regionFieldTexts,
+  regionFromFields,
+  regionFromFieldText,
+  regionLabels as regionKindLabels,
+  regionSpecSchema,
+  type RegionFieldValues,
+  type RegionKind,
+} from '@shared/regions';
+import { defaultTruncationFor, type PrngName, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import type { z } from 'zod';
 import type { FieldErrors } from '../../../lib/forms';
 import {
@@ -59,19 +74,12 @@ export interface TipValues {
   z: string;
 }
 
-/** Everything the new-run form holds, as typed (numbers stay text until submitting). */
-export interface RunFormValues {
+/** Everything the new-run form holds, as typed (numbers stay text until submitting); the region's fields come from the registry. */
+export interface RunFormValues extends RegionFieldValues {
   title: string;
   /** sprinkle a causal set, or compute on an imported one of the team */
   source: 'sprinkle' | 'imported';
   causalSetId: string;
-  regionKind: RegionKind;
-  properTime: string;
-  circumference: string;
-  tMin: string;
-  tMax: string;
-  xMin: string;
-  xMax: string;
   sizeBy: 'count' | 'density';
   count: string;
   density: string;
@@ -108,18 +116,17 @@ export function newSeed(): string {
   return Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
 }
 
+/** The default region as the form starts with it, and a sub-diamond inside it for the tips. */
+const defaultRegionFields = { regionKind: defaultRegionKind, ...regionFieldDefaults() };
+const defaultSubDiamond = regionDefaultSubDiamond(regionSpecSchema.parse(regionFromFieldText(defaultRegionFields)));
+const tipText = (tip: { t: number; x: number; y?: number; z?: number }): TipValues => ({ t: String(tip.t), x: String(tip.x), y: String(tip.y ?? 0), z: String(tip.z ?? 0) });
+
 export function defaultRunForm(seed: string = newSeed()): RunFormValues {
   return {
     title: '',
     source: 'sprinkle',
     causalSetId: '',
-    regionKind: 'diamond2d',
-    properTime: '2',
-    circumference: '4',
-    tMin: '0',
-    tMax: '1',
-    xMin: '0',
-    xMax: '4',
+    ...defaultRegionFields,
     sizeBy: 'count',
     count: '500',
     density: '',
@@ -131,26 +138,21 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     withSubregion: false,
     subregionBy: 'tips',
     elementList: '',
-    // A diamond of half the proper time, centred in the default region.
-    past: { t: '-0.5', x: '0', y: '0', z: '0' },
-    future: { t: '0.5', x: '0', y: '0', z: '0' },
+    // the default region's own sub-diamond: half its proper time, about its centre
+    past: tipText(defaultSubDiamond.past),
+    future: tipText(defaultSubDiamond.future),
     doubleTruncation: false,
     restrictedCut: { ...defaultRestrictedCutForm },
     engine: 'auto',
   };
 }
 
-export function regionDimension(kind: RegionKind): 2 | 4 {
-  return kind === 'diamond4d' ? 4 : 2;
-}
+// the forms and their tests take the dimension from here as well
+export { regionDimension };
 
-export const regionLabels: Record<string, string> = {
-  diamond2d: '2D causal diamond',
-  cylinder2d: 'Diamond on a cylinder',
-  slab2d: '2D slab',
-  diamond4d: '4D causal diamond',
-  imported: 'Imported causal set',
-};
+const runRegionLabels: Record<RegionKind | 'imported', string> = { ...regionKindLabels, imported: 'Imported causal set' };
+/** The label of every region kind of a run, and of a run on an imported set, by a row's stored kind (the runs table and its filter). */
+export const regionLabels: Readonly<Record<string, string>> = runRegionLabels;
 
 /** Numbers typed into the form, with the path each goes to; text that is no number is reported here. */
 class NumberReader {
@@ -175,26 +177,7 @@ function tip(reader: NumberReader, values: TipValues, path: string, dimension: 2
 }
 
 function regionFromForm(reader: NumberReader, v: RunFormValues): unknown {
-  const path = 'sprinkling.region';
-  switch (v.regionKind) {
-    case 'diamond2d':
-    case 'diamond4d':
-      return { kind: v.regionKind, properTime: reader.read(v.properTime, `${path}.properTime`) };
-    case 'cylinder2d':
-      return {
-        kind: 'cylinder2d',
-        properTime: reader.read(v.properTime, `${path}.properTime`),
-        circumference: reader.read(v.circumference, `${path}.circumference`),
-      };
-    case 'slab2d':
-      return {
-        kind: 'slab2d',
-        tMin: reader.read(v.tMin, `${path}.tMin`),
-        tMax: reader.read(v.tMax, `${path}.tMax`),
-        xMin: reader.read(v.xMin, `${path}.xMin`),
-        xMax: reader.read(v.xMax, `${path}.xMax`),
-      };
-  }
+  return regionFromFields(v.regionKind, (key) => reader.read(v[key], `sprinkling.region.${key}`));
 }
 
 /** Human messages for the fields whose schema messages are terse ("Too small: expected ..."). */
@@ -202,8 +185,7 @@ const fieldMessages: Record<string, string> = {
   'sprinkling.count': `N is a whole number of elements, at least 2; at most ${denseLimitN} on the dense engine (${denseLimits['ml-matrix']} without the native backend), ${STRUCTURED_MAX_N_2D} on the structured one (2D with a sqrtN, lambda or modes cut).`,
   'sprinkling.density': 'The density ρ is a positive number (elements per unit volume).',
   'sprinkling.seed': 'Give a seed (any text or number), or press “New seed”.',
-  'sprinkling.region.properTime': 'The proper time between the tips is a positive number.',
-  'sprinkling.region.circumference': 'The circumference is a positive number.',
+  ...Object.fromEntries(regionFieldKeys.flatMap((key) => (regionFieldTexts[key].invalid ? [[`sprinkling.region.${key}`, regionFieldTexts[key].invalid]] : []))),
   mass: 'The mass is a number ≥ 0.',
   'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.',
   ...truncationFieldMessages,
@@ -403,7 +385,7 @@ export function engineLimitOf(v: RunFormValues, denseMaxN: number = denseLimitN)
     truncation: ruleOnly(v),
     requested: v.engine,
     denseMaxN,
-    periodic: v.regionKind === 'cylinder2d',
+    periodic: isPeriodicRegionKind(v.regionKind),
   });
 }
 
@@ -429,7 +411,7 @@ export function engineNote(v: RunFormValues, denseMaxN: number = denseLimitN, pi
   if (!Number.isInteger(N) || N < 2 || (v.process === 'poisson' && v.sizeBy === 'density')) {
     return `The engine follows from N: structured for 2D cuts from N = ${AUTO_STRUCTURED_FROM}, dense otherwise.`;
   }
-  return engineChoiceText({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: v.regionKind === 'cylinder2d' });
+  return engineChoiceText({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: isPeriodicRegionKind(v.regionKind) });
 }
 
 const relationListEngineNote = 'A relation list runs on the dense engine: it has no coordinates to sweep.';

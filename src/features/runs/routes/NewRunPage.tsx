@@ -4,6 +4,7 @@ import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
+import { RegionFields } from '../../../ui/RegionFields';
 import { Empty } from '../../../ui/States';
 import { useCan } from '../../auth/api/me';
 import { useCausalSets } from '../../causalSets/api/causalSets';
@@ -22,7 +23,6 @@ import {
   engineNote,
   newSeed,
   regionDimension,
-  regionLabels,
   runRequestFromForm,
   sizeHint,
   truncationForRegionChange,
@@ -127,63 +127,14 @@ function NewRunForm() {
         <>
         <FormSection title="Region" note="Where the points are sprinkled.">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
-            <SelectField
-              label="Region"
-              name="regionKind"
-              value={values.regionKind}
-              onChange={(e) => {
-                const regionKind = e.target.value as RunFormValues['regionKind'];
-                setValues((v) => ({ ...v, regionKind, truncation: truncationForRegionChange(v.truncation, v.regionKind, regionKind) }));
-              }}
-              error={fe['sprinkling.region']}
-            >
-              {(['diamond2d', 'cylinder2d', 'slab2d', 'diamond4d'] as const).map((kind) => (
-                <option key={kind} value={kind}>
-                  {regionLabels[kind]}
-                </option>
-              ))}
-            </SelectField>
-            {values.regionKind !== 'slab2d' && (
-              <TextField
-                label="Proper time T"
-                name="properTime"
-                inputMode="decimal"
-                className="font-mono"
-                value={values.properTime}
-                onChange={(e) => set('properTime', e.target.value)}
-                error={fe['sprinkling.region.properTime']}
-                hint="Between the tips, at t = ±T/2."
-              />
-            )}
-            {values.regionKind === 'cylinder2d' && (
-              <TextField
-                label="Circumference"
-                name="circumference"
-                inputMode="decimal"
-                className="font-mono"
-                value={values.circumference}
-                onChange={(e) => set('circumference', e.target.value)}
-                error={fe['sprinkling.region.circumference']}
-                hint="x is periodic; T > circumference wraps."
-              />
-            )}
+            <RegionFields
+              values={values}
+              onKindChange={(regionKind) => setValues((v) => ({ ...v, regionKind, truncation: truncationForRegionChange(v.truncation, v.regionKind, regionKind) }))}
+              onFieldChange={(key, text) => set(key, text)}
+              kindError={fe['sprinkling.region']}
+              fieldError={(key) => fe[`sprinkling.region.${key}`]}
+            />
           </div>
-          {values.regionKind === 'slab2d' && (
-            <div className="grid grid-cols-2 gap-6 sm:grid-cols-4">
-              {(['tMin', 'tMax', 'xMin', 'xMax'] as const).map((key) => (
-                <TextField
-                  key={key}
-                  label={key.replace('Min', ' min').replace('Max', ' max')}
-                  name={key}
-                  inputMode="decimal"
-                  className="font-mono"
-                  value={values[key]}
-                  onChange={(e) => set(key, e.target.value)}
-                  error={fe[`sprinkling.region.${key}`]}
-                />
-              ))}
-            </div>
-          )}
         </FormSection>
 
         <FormSection

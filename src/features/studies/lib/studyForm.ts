@@ -1,31 +1,46 @@
 import type { CreateStudyRequestInput } from '@shared/studies';
-import { defaultTruncationFor, type RegionSpec } from '@shared/vacuum';
-import { regionFromForm } from '../../causalSets/lib/importForm';
-import { defaultRestrictedCutForm, regionDimension, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
+import {
+  defaultRegionKind,
+  regionDefaultSubDiamond,
+  regionDescriptors,
+  regionDimension,
+  regionFieldDefaults,
+  regionFromFieldText,
+  regionFieldKeys,
+  regionKindsOfDimension,
+  regionSpecSchema,
+  type DiamondTips,
+  type Event,
+  type RegionFieldKey,
+  type RegionFieldValues,
+  type RegionKind,
+  type RegionSpec,
+} from '@shared/regions';
+import { defaultTruncationFor } from '@shared/vacuum';
+import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
 
-/** Regions a sprinkled study can use, in the order the form lists them; concentric sub-diamonds need a diamond. */
-export const studyRegionKinds = ['diamond2d', 'diamond4d', 'cylinder2d', 'slab2d'] as const;
-export type StudyRegionKind = (typeof studyRegionKinds)[number];
+/** Whether concentric sub-diamonds (ℓ/L) can be asked for on a kind: it needs a diamond of its own. */
+export const offersConcentric = (kind: RegionKind): boolean => regionDescriptors[kind].ownDiamond !== undefined;
+
+const tipText = (e: Event) => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]).join(',');
+const tipsLine = ({ past, future }: DiamondTips) => `${tipText(past)} ${tipText(future)}`;
+
+/** One line of tips per dimension: the default sub-diamond of the first kind of that dimension, at its defaults. */
+function tipsOfDimension(dimension: 2 | 4): string {
+  const kind = regionKindsOfDimension(dimension)[0]!;
+  return tipsLine(regionDefaultSubDiamond(regionSpecSchema.parse(regionFromFieldText({ regionKind: kind, ...regionFieldDefaults() }))));
+}
 
 /** The sub-diamond tips the form starts from, per dimension. */
-export const defaultTips = { 2: '-0.5,0 0.5,0', 4: '-0.5,0,0,0 0.5,0,0,0' } as const;
+export const defaultTips = { 2: tipsOfDimension(2), 4: tipsOfDimension(4) } as const;
 
 /** What the study form edits, as text where people type lists. */
-export interface StudyFormValues {
+export interface StudyFormValues extends RegionFieldValues {
   title: string;
   /** sprinklings of ours, or imported causal sets in their place */
   source: 'sprinkled' | 'imported';
   /** the picked imported causal sets, in the order picked */
   causalSetIds: string[];
-  regionKind: StudyRegionKind;
-  properTime: string;
-  /** cylinder only: the period of x */
-  circumference: string;
-  /** slab only: t ∈ [tMin, tMax], x ∈ [xMin, xMax] */
-  tMin: string;
-  tMax: string;
-  xMin: string;
-  xMax: string;
   process: 'fixed' | 'poisson';
   prng: 'arc4' | 'alea' | 'xor4096';
   counts: string;
@@ -48,9 +63,9 @@ export const defaultStudyForm: StudyFormValues = {
   title: '',
   source: 'sprinkled',
   causalSetIds: [],
-  regionKind: 'diamond2d',
-  properTime: '2',
-  circumference: '4',
+  regionKind: defaultRegionKind,
+  ...regionFieldDefaults(),
+  // a slab about the origin, so the default tips lie in it
   tMin: '-1',
   tMax: '1',
   xMin: '-1',
@@ -145,7 +160,7 @@ export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 |
   return {
     source: 'sprinkled',
     ...title,
-    region: regionFromForm(values) as RegionSpec,
+    region: regionFromFieldText(values) as RegionSpec,
     process: values.process,
     prng: values.prng,
     counts: parseNumberList(values.counts),
@@ -167,8 +182,10 @@ export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('subregions')) return 'subregionKind';
   if (/^rules\.\d+\.restrictedCut/.test(path)) return 'restrictedCut';
   if (path.startsWith('rules')) return 'untruncated';
-  if (path.startsWith('region.circumference')) return 'circumference';
+  // the slab's four ranges share one message, beside the first
   if (path.startsWith('region.t') || path.startsWith('region.x')) return 'tMin';
+  const field = /^region\.(\w+)/.exec(path)?.[1];
+  if (field && (regionFieldKeys as readonly string[]).includes(field)) return field as RegionFieldKey;
   if (path.startsWith('region')) return 'properTime';
   if (path.startsWith('mass')) return 'mass';
   if (path.startsWith('title')) return 'title';

@@ -11,21 +11,25 @@ import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { useCausalSets } from '../../causalSets/api/causalSets';
 import { Checkbox } from '../../runs/components/Checkbox';
 import { RestrictedCutFields } from '../../runs/components/SubregionFields';
-import { regionDimension, regionLabels } from '../../runs/lib/runForm';
+import { regionDescriptors, regionDimension, regionLabels, type RegionFieldWording, type RegionKind } from '@shared/regions';
+import { RegionFields } from '../../../ui/RegionFields';
 import { useCreateStudy } from '../api/studies';
 import {
   defaultStudyForm,
   defaultTips,
   doubleTruncatedRuleLabel,
   formFieldOf,
+  offersConcentric,
   parseNumberList,
-  studyRegionKinds,
   studyRequestFrom,
   type StudyFormValues,
-  type StudyRegionKind,
 } from '../lib/studyForm';
 
-const slabLabels = { tMin: 't min', tMax: 't max', xMin: 'x min', xMax: 'x max' } as const;
+/** The study's words for the region fields: L is the proper time the fractions ℓ/L refer to. */
+const studyRegionWording: RegionFieldWording = {
+  properTime: { label: 'Diamond proper time L', hint: (kind) => `${regionLabels[kind]}, tips at t = ±L/2` },
+  circumference: { hint: 'x is periodic with this period' },
+};
 
 /**
  * The study form: a grid of N × subregions × seeds × rules on a sprinkled region (2D or 4D diamond,
@@ -45,11 +49,11 @@ export function NewStudyPage() {
   const importedDimension: 2 | 4 = (causalSets.data?.items ?? []).some((c) => values.causalSetIds.includes(c.id) && c.dimension === 4) ? 4 : 2;
   const dimension = values.source === 'imported' ? importedDimension : regionDimension(values.regionKind);
   // a slab has no diamond to share a centre with; untouched tips follow the region's dimension
-  const chooseRegion = (regionKind: StudyRegionKind) =>
+  const chooseRegion = (regionKind: RegionKind) =>
     setValues((v) => ({
       ...v,
       regionKind,
-      subregionKind: regionKind === 'slab2d' && v.subregionKind === 'concentric' ? 'tips' : v.subregionKind,
+      subregionKind: !offersConcentric(regionKind) && v.subregionKind === 'concentric' ? 'tips' : v.subregionKind,
       tips: v.tips === defaultTips[regionDimension(v.regionKind)] ? defaultTips[regionDimension(regionKind)] : v.tips,
     }));
 
@@ -132,30 +136,17 @@ export function NewStudyPage() {
             </>
           ) : (
             <>
+          <div className="mb-6 grid grid-cols-1 gap-6 sm:grid-cols-3">
+            <RegionFields
+              values={values}
+              onKindChange={chooseRegion}
+              onFieldChange={(key, text) => set(key, text)}
+              // a message about the region as a whole is filed under properTime (formFieldOf) and shown at its refinement field
+              fieldError={(key) => errors[key] ?? (key === regionDescriptors[values.regionKind].refinementField ? errors.properTime : undefined)}
+              wording={studyRegionWording}
+            />
+          </div>
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
-            <SelectField label="Region" name="regionKind" value={values.regionKind} onChange={(e) => chooseRegion(e.target.value as StudyRegionKind)}>
-              {studyRegionKinds.map((kind) => (
-                <option key={kind} value={kind}>
-                  {regionLabels[kind]}
-                </option>
-              ))}
-            </SelectField>
-            {values.regionKind === 'slab2d' ? (
-              <div className="grid grid-cols-2 gap-3 sm:col-span-2 sm:grid-cols-4">
-                {(['tMin', 'tMax', 'xMin', 'xMax'] as const).map((key) => (
-                  <TextField key={key} label={slabLabels[key]} name={key} inputMode="decimal" className="font-mono" value={values[key]} onChange={(e) => set(key, e.target.value)} error={key === 'tMin' ? (errors.tMin ?? errors.properTime) : undefined} />
-                ))}
-              </div>
-            ) : (
-              <>
-                <TextField label="Diamond proper time L" name="properTime" inputMode="decimal" value={values.properTime} onChange={(e) => set('properTime', e.target.value)} error={errors.properTime} hint={`${regionLabels[values.regionKind]}, tips at t = ±L/2`} />
-                {values.regionKind === 'cylinder2d' ? (
-                  <TextField label="Circumference" name="circumference" inputMode="decimal" value={values.circumference} onChange={(e) => set('circumference', e.target.value)} error={errors.circumference} hint="x is periodic with this period" />
-                ) : (
-                  <span aria-hidden="true" />
-                )}
-              </>
-            )}
             <SelectField label="Sprinkling" name="process" value={values.process} onChange={(e) => set('process', e.target.value as StudyFormValues['process'])}>
               <option value="fixed">fixed N</option>
               <option value="poisson">Poisson, mean N</option>
@@ -179,7 +170,7 @@ export function NewStudyPage() {
         <Section title="Subregions">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
-              {!(values.source === 'sprinkled' && values.regionKind === 'slab2d') && <option value="concentric">concentric, by ℓ/L</option>}
+              {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="concentric">concentric, by ℓ/L</option>}
               <option value="tips">by tips</option>
               {values.source === 'imported' && <option value="elements">element lists</option>}
             </SelectField>
