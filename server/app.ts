@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
-import { sessionCookieName } from '@shared/auth';
+import { sessionCookieName } from '@shared/headers';
 import type { AppDeps } from './api/context';
 import { issueCsrfCookie } from './api/middleware/csrf';
 import { apiNotFound, errorHandler } from './api/middleware/errors';

@@ -60,15 +60,3 @@ export const updateMeRequestSchema = z.strictObject({
   name: z.string().trim().min(1, 'Enter your name.').max(120, 'Use at most 120 characters.').optional(),
   notifyOnRunDone: z.boolean().optional(),
 });
-
-/** Cookie that carries the session JWT (httpOnly, SameSite=Lax). */
-export const sessionCookieName = 'tacet_session';
-/** Header that selects the team a request acts in; without it the user's first team is used. */
-export const teamHeaderName = 'x-tacet-team';
-
-/**
- * CSRF double-submit pair: the server sets this readable cookie; a cookie-authenticated write must
- * echo its value in the header. Requests with `Authorization: Bearer` need neither.
- */
-export const csrfCookieName = 'tacet_csrf';
-export const csrfHeaderName = 'x-tacet-csrf';

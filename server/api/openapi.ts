@@ -3,18 +3,16 @@ import { z, type ZodType } from 'zod';
 import { apiErrorSchema, healthResponseSchema } from '@shared/api';
 import { apiTokenSchema, createApiTokenRequestSchema, createdApiTokenSchema } from '@shared/apiTokens';
 import {
-  csrfHeaderName,
   loginRequestSchema,
   meResponseSchema,
   passwordResetConfirmSchema,
   passwordResetRequestSchema,
-  sessionCookieName,
   sessionResponseSchema,
   signupRequestSchema,
-  teamHeaderName,
   updateMeRequestSchema,
   userSchema,
 } from '@shared/auth';
+import { csrfHeaderName, sessionCookieName, teamHeaderName } from '@shared/headers';
 import { causalSetDetailSchema, causalSetListResponseSchema, causalSetMetadataSchema } from '@shared/causalSets';
 import { runExportFormats, runExports, studyExportQuerySchema, type RunExportRow } from '@shared/exports';
 import { engineLimitsSchema } from '@shared/limits';

@@ -1,6 +1,6 @@
 import { useEffect, useRef, useState } from 'react';
 import { Link, useNavigate } from 'react-router';
-import { useMe } from '../features/auth/api/me';
+import { useMe } from '../lib/currentUser';
 import { useSignOut } from '../features/auth/api/session';
 
 export function AccountMenu() {

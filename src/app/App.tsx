@@ -1,12 +1,14 @@
 import { QueryClientProvider } from '@tanstack/react-query';
-import { RouterProvider } from 'react-router/dom';
+import { BrowserRouter } from 'react-router';
 import { queryClient } from '../lib/queryClient';
-import { router } from './router';
+import { AppRoutes } from './router';
 
 export function App() {
   return (
     <QueryClientProvider client={queryClient}>
-      <RouterProvider router={router} />
+      <BrowserRouter>
+        <AppRoutes />
+      </BrowserRouter>
     </QueryClientProvider>
   );
 }

@@ -1,9 +1,11 @@
+import { Suspense } from 'react';
 import { NavLink, Outlet } from 'react-router';
 import { roleAllows } from '@shared/roles';
-import { useRole } from '../features/auth/api/me';
+import { useRole } from '../lib/permissions';
 import { AccountMenu } from './AccountMenu';
 import { navigation } from './navigation';
 import { TeamSwitcher } from './TeamSwitcher';
+import { Loading } from '../ui/States';
 
 export function AppShell() {
   const role = useRole();
@@ -37,7 +39,9 @@ export function AppShell() {
         </div>
       </header>
       <main className="mx-auto max-w-6xl px-6 pt-10 pb-20">
-        <Outlet />
+        <Suspense fallback={<Loading />}>
+          <Outlet />
+        </Suspense>
       </main>
     </div>
   );

@@ -1,6 +1,6 @@
 import { Navigate, Outlet, useLocation } from 'react-router';
 import { ErrorState, Loading } from '../ui/States';
-import { useMe } from '../features/auth/api/me';
+import { useMe } from '../lib/currentUser';
 
 /** Pages behind sign-in: signed-out visitors go to /signin, which sends them back afterwards. */
 export function RequireAuth() {

@@ -1,7 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { setCurrentTeamId } from '../lib/currentTeam';
 import { roleLabels } from '../lib/format';
-import { useCurrentMembership, useMe } from '../features/auth/api/me';
+import { useCurrentMembership, useMe } from '../lib/currentUser';
 
 export function TeamSwitcher() {
   const me = useMe();

@@ -1,5 +1,4 @@
-import { apiErrorSchema } from '@shared/api';
-import { csrfCookieName, csrfHeaderName, teamHeaderName } from '@shared/auth';
+import { csrfCookieName, csrfHeaderName, teamHeaderName } from '@shared/headers';
 import { getCurrentTeamId } from './currentTeam';
 
 export interface FieldIssue {
@@ -88,6 +87,8 @@ async function request<T>(method: Method, path: string, options: RequestOptions 
   }
 
   if (!response.ok) {
+    // The schema, and zod with it, loads with the first error answer instead of with the sign-in page.
+    const { apiErrorSchema } = await import('@shared/api');
     const parsed = apiErrorSchema.safeParse(payload);
     if (parsed.success) {
       const { code, message, issues } = parsed.data.error;

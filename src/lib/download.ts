@@ -1,4 +1,4 @@
-import { teamHeaderName } from '@shared/auth';
+import { teamHeaderName } from '@shared/headers';
 import { ApiError } from './apiClient';
 import { getCurrentTeamId } from './currentTeam';
 

@@ -1,7 +1,8 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { apiErrorSchema } from '@shared/api';
-import { meResponseSchema, sessionCookieName, sessionResponseSchema } from '@shared/auth';
+import { meResponseSchema, sessionResponseSchema } from '@shared/auth';
+import { sessionCookieName } from '@shared/headers';
 import { PasswordResetEntity } from '../../server/db/entities';
 import { createTestContext, signUp, testPassword, tokenFromMail, type TestContext } from '../support/app';
 

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { csrfCookieName, csrfHeaderName, sessionCookieName } from '@shared/auth';
+import { csrfCookieName, csrfHeaderName, sessionCookieName } from '@shared/headers';
 import { apiTokenSchema, createdApiTokenSchema } from '@shared/apiTokens';
 import { createApp } from '../../server/app';
 import { deleteMembership, insertMembership } from '../../server/db/repositories/teams';

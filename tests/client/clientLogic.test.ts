@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { createInvitationRequestSchema } from '@shared/teams';
 import { loginRequestSchema } from '@shared/auth';
 import type { Membership } from '@shared/auth';
-import { resolveMembership } from '../../src/features/auth/api/me';
+import { resolveMembership } from '../../src/lib/currentUser';
 import { validate } from '../../src/lib/forms';
 import { queryKeys } from '../../src/lib/queryKeys';
 

@@ -1,14 +1,13 @@
 import { mkdirSync } from 'node:fs';
-import { mkdtemp, rm } from 'node:fs/promises';
+import { rm } from 'node:fs/promises';
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
-import { build } from 'vite';
 import { createApp } from '../../server/app';
 import { seedDemoTeam } from '../../server/db/demo-team';
 import { createTestContext, type TestContext } from '../support/app';
+import { buildClient } from '../support/clientBuild';
 
 const projectRoot = resolve(import.meta.dirname, '../..');
 export const screenshotDir = join(projectRoot, 'tests', 'e2e', 'screenshots');
@@ -36,18 +35,6 @@ async function freePort(): Promise<number> {
   const { port } = probe.address() as AddressInfo;
   await new Promise((closed) => probe.close(closed));
   return port;
-}
-
-/** Builds the client into a temporary folder, so a running `npm start` keeps its own dist/client. */
-async function buildClient(): Promise<string> {
-  const outDir = await mkdtemp(join(tmpdir(), 'tacet-e2e-client-'));
-  await build({
-    root: projectRoot,
-    configFile: join(projectRoot, 'vite.config.ts'),
-    logLevel: 'error',
-    build: { outDir, emptyOutDir: true },
-  });
-  return outDir;
 }
 
 export interface RunningApp {

@@ -1,5 +1,5 @@
 import type { RequestHandler } from 'express';
-import { sessionCookieName, teamHeaderName } from '@shared/auth';
+import { sessionCookieName, teamHeaderName } from '@shared/headers';
 import { roleAllows, type Permission } from '@shared/roles';
 import { forbidden, notFound, unauthorized } from '../errors';
 import { checkCsrf } from './csrf';

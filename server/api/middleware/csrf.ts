@@ -1,6 +1,6 @@
 import { randomBytes, timingSafeEqual } from 'node:crypto';
 import type { Request, RequestHandler, Response } from 'express';
-import { csrfCookieName, csrfHeaderName } from '@shared/auth';
+import { csrfCookieName, csrfHeaderName } from '@shared/headers';
 import { HttpError } from '../errors';
 
 /**

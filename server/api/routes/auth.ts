@@ -2,12 +2,11 @@ import { Router, type Response } from 'express';
 import {
   loginRequestSchema,
   passwordResetConfirmSchema,
-  csrfCookieName,
   passwordResetRequestSchema,
-  sessionCookieName,
   signupRequestSchema,
   updateMeRequestSchema,
 } from '@shared/auth';
+import { csrfCookieName, sessionCookieName } from '@shared/headers';
 import type { Config } from '../../config';
 import { requireAuth } from '../context';
 import { authenticate } from '../middleware/auth';

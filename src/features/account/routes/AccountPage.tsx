@@ -6,7 +6,7 @@ import { Button } from '../../../ui/Button';
 import { FormError, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { Loading } from '../../../ui/States';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/currentUser';
 import { useUpdateMe } from '../api/account';
 import { ApiTokensSection } from '../components/ApiTokensSection';
 import { Switch } from '../components/Switch';

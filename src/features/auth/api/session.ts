@@ -3,7 +3,7 @@ import type { LoginRequest, SessionResponse, SignupRequest } from '@shared/auth'
 import { api } from '../../../lib/apiClient';
 import { setCurrentTeamId } from '../../../lib/currentTeam';
 import { queryKeys } from '../../../lib/queryKeys';
-import { fetchMe } from './me';
+import { fetchMe } from '../../../lib/currentUser';
 
 /** After any change of who is signed in: drop everything cached for the previous user, load /api/me anew. */
 async function startFreshSession(queryClient: ReturnType<typeof useQueryClient>) {

@@ -1,6 +1,6 @@
 import { Link, Navigate, useLocation, useNavigate } from 'react-router';
 import { Loading } from '../../../ui/States';
-import { useMe } from '../api/me';
+import { useMe } from '../../../lib/currentUser';
 import { AuthLayout } from '../components/AuthLayout';
 import { SignInForm } from '../components/SignInForm';
 import { redirectTarget } from './redirectTarget';

@@ -1,6 +1,6 @@
 import { Link, Navigate, useNavigate } from 'react-router';
 import { Loading } from '../../../ui/States';
-import { useMe } from '../api/me';
+import { useMe } from '../../../lib/currentUser';
 import { AuthLayout } from '../components/AuthLayout';
 import { SignUpForm } from '../components/SignUpForm';
 

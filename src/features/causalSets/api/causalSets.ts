@@ -1,11 +1,11 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiErrorSchema } from '@shared/api';
-import { teamHeaderName } from '@shared/auth';
+import { teamHeaderName } from '@shared/headers';
 import { metadataToFormFields, type CausalSetDetail, type CausalSetListResponse, type CausalSetMetadata } from '@shared/causalSets';
 import { api, ApiError, csrfHeaders } from '../../../lib/apiClient';
 import { getCurrentTeamId } from '../../../lib/currentTeam';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
 import { attachmentName } from '../../../lib/download';
 
 const setPath = (id: string, rest = '') => `/api/causal-sets/${encodeURIComponent(id)}${rest}`;

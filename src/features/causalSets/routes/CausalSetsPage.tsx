@@ -3,7 +3,7 @@ import { describeRegion } from '@shared/causalSets';
 import { formatDateTime } from '../../../lib/format';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { Figure } from '../../runs/components/Figure';
 import { useCausalSets } from '../api/causalSets';
 

@@ -9,7 +9,7 @@ import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { RegionFields } from '../../../ui/RegionFields';
 import { Empty } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { useCausalSets, useUploadCausalSet } from '../api/causalSets';
 import {
   defaultImportForm,

@@ -3,7 +3,7 @@ import type { CutRule } from '@shared/runs';
 import type { TruncationRule } from '@shared/vacuum';
 import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
 
 export function useCutRules() {
   const teamId = useCurrentTeamId();

@@ -6,7 +6,7 @@ import { Button } from '../../../ui/Button';
 import { FormError, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { useCreateCutRule, useCutRules, useDeleteCutRule } from '../api/cutRules';
 import { TruncationRuleFields } from '../components/TruncationRuleFields';
 import {

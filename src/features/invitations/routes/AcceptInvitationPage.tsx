@@ -6,7 +6,7 @@ import { roleLabels } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
 import { FormError } from '../../../ui/Field';
 import { ErrorState, Loading } from '../../../ui/States';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/currentUser';
 import { useSignOut } from '../../auth/api/session';
 import { AuthLayout } from '../../auth/components/AuthLayout';
 import { SignInForm } from '../../auth/components/SignInForm';

@@ -2,7 +2,8 @@ import { useQuery } from '@tanstack/react-query';
 import type { OutboxMessage } from '@shared/teams';
 import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCan, useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
+import { useCan } from '../../../lib/permissions';
 
 export function useOutbox() {
   const teamId = useCurrentTeamId();

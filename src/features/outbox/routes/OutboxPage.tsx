@@ -2,7 +2,7 @@ import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { useOutbox } from '../api/outbox';
 import { MessageText } from '../components/MessageText';
 

@@ -2,7 +2,7 @@ import { keepPreviousData, useMutation, useQueries, useQuery, useQueryClient } f
 import type { CreateRunRequest, ListRunsQuery, ReanalyseRunRequest, RunDetail, RunPoints, RunSummary } from '@shared/runs';
 import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
 
 export interface RunList {
   items: RunSummary[];

@@ -1,9 +1,9 @@
 import type { RunDetail, RunResult } from '@shared/runs';
-import { plotPalette } from '../../../lib/plotly';
+import { plotPalette } from '../../../lib/plotTheme';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useRunPoints } from '../api/runs';
 import { logDecadeStep, pointsTraces, spectrumTraces, tickFont } from '../lib/plotData';
-import { PlotFigure } from './PlotFigure';
+import { PlotFigure } from '../../../ui/PlotFigure';
 
 const axisTitle = (text: string) => ({ text, font: { size: 12 } });
 

@@ -1,14 +1,14 @@
 import { useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import tailwindConfig from '../../../../tailwind.config';
-import { plotPalette } from '../../../lib/plotly';
+import { plotPalette } from '../../../lib/plotTheme';
 import { PageHeader, Section } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useRunDetails } from '../api/runs';
 import { Caution } from '../components/Caution';
 import { Checkbox } from '../components/Checkbox';
 import { Figure } from '../components/Figure';
-import { PlotFigure } from '../components/PlotFigure';
+import { PlotFigure } from '../../../ui/PlotFigure';
 import { StatusLabel } from '../components/StatusLabel';
 import { compareTraces, logDecadeStep, tickFont, type CompareRun } from '../lib/plotData';
 import { maxCompared, parseCompareIds, runLabel } from '../lib/runIds';

@@ -6,7 +6,7 @@ import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { RegionFields } from '../../../ui/RegionFields';
 import { Empty } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { useCausalSets } from '../../causalSets/api/causalSets';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { useCutRules } from '../../cutRules/api/cutRules';

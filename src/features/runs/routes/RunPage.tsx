@@ -7,7 +7,7 @@ import { Button } from '../../../ui/Button';
 import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
 import { Caution, RuleCautions } from '../components/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';

@@ -6,7 +6,7 @@ import { Button } from '../../../ui/Button';
 import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { describeRestrictedCutText, describeTruncationText } from '../../cutRules/lib/truncationForm';
 import { useRuns, type RunFilters } from '../api/runs';
 import { Checkbox } from '../components/Checkbox';

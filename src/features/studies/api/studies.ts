@@ -2,7 +2,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { CreateStudyRequestInput, StudyDetail, StudySummary } from '@shared/studies';
 import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
 
 export function isStudyActive(status: StudySummary['status']): boolean {
   return status === 'queued' || status === 'running';

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import type { StudyDetail } from '@shared/studies';
-import { PlotFigure } from '../../runs/components/PlotFigure';
+import { PlotFigure } from '../../../ui/PlotFigure';
 import { referenceSlopeTrace, scalingTraces, spectraTraces } from '../lib/plotData';
 
 function RuleSelect({ value, onChange, rules, labels }: { value: string; onChange(v: string): void; rules: string[]; labels: Record<string, string> }) {

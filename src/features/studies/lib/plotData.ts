@@ -1,5 +1,5 @@
 import type { StudyAggregate, StudyFit, StudySpectrum } from '@shared/studies';
-import { plotPalette } from '../../../lib/plotly';
+import { plotPalette } from '../../../lib/plotTheme';
 
 /** Marker symbols per subregion, so the series stay apart in print without colour. */
 const symbols = ['circle', 'square', 'diamond', 'triangle-up', 'triangle-down', 'cross', 'x', 'star', 'hexagon', 'pentagon', 'circle-open', 'square-open'];

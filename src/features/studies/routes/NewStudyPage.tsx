@@ -6,7 +6,7 @@ import { validate } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { CausalSetPicker } from '../../causalSets/components/CausalSetPicker';
 import { useCausalSets } from '../../causalSets/api/causalSets';
 import { Checkbox } from '../../runs/components/Checkbox';

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import { formatDateTime } from '../../../lib/format';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { StatusLabel } from '../../runs/components/StatusLabel';
 import { useStudies } from '../api/studies';
 

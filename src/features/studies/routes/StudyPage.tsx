@@ -4,7 +4,7 @@ import { Button } from '../../../ui/Button';
 import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
-import { useCan } from '../../auth/api/me';
+import { useCan } from '../../../lib/permissions';
 import { StatusLabel } from '../../runs/components/StatusLabel';
 import { regionLabels } from '../../runs/lib/runForm';
 import { isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';

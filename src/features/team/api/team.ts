@@ -3,7 +3,8 @@ import type { CreateInvitationRequest, Invitation, Member } from '@shared/teams'
 import type { Role } from '@shared/roles';
 import { api } from '../../../lib/apiClient';
 import { queryKeys } from '../../../lib/queryKeys';
-import { useCan, useCurrentTeamId } from '../../auth/api/me';
+import { useCurrentTeamId } from '../../../lib/currentUser';
+import { useCan } from '../../../lib/permissions';
 
 export interface TeamInfo {
   id: string;

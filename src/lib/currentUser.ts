@@ -1,10 +1,8 @@
 import { useQuery } from '@tanstack/react-query';
 import type { MeResponse, Membership } from '@shared/auth';
-import type { Role } from '@shared/roles';
-import { roleAllows, type Permission } from '@shared/roles';
-import { api, isApiError } from '../../../lib/apiClient';
-import { useStoredTeamId } from '../../../lib/currentTeam';
-import { queryKeys } from '../../../lib/queryKeys';
+import { api, isApiError } from './apiClient';
+import { useStoredTeamId } from './currentTeam';
+import { queryKeys } from './queryKeys';
 
 /** The signed-in user and their teams; `null` when nobody is signed in. */
 export async function fetchMe(): Promise<MeResponse | null> {
@@ -37,13 +35,4 @@ export function useCurrentMembership(): Membership | null {
 /** The current team's id, for query keys; null until /api/me has answered. */
 export function useCurrentTeamId(): string | null {
   return useCurrentMembership()?.team.id ?? null;
-}
-
-export function useRole(): Role | null {
-  return useCurrentMembership()?.role ?? null;
-}
-
-export function useCan(permission: Permission): boolean {
-  const role = useRole();
-  return role !== null && roleAllows(role, permission);
 }

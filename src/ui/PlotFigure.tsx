@@ -1,7 +1,13 @@
-import Plotly from 'plotly.js-dist-min';
-import { useRef, useState } from 'react';
-import { baseLayout, Plot } from '../../../lib/plotly';
-import { Button } from '../../../ui/Button';
+import type Plotly from 'plotly.js-dist-min';
+import { lazy, Suspense, useRef, useState } from 'react';
+import { baseLayout } from '../lib/plotTheme';
+import { Button } from './Button';
+import { Loading } from './States';
+
+// Plotly is most of the client's script; a dynamic import puts it in a chunk of its own that only a
+// page with a figure fetches (once: the module promise is cached by the browser).
+const loadPlotly = () => import('../lib/plotly');
+const Plot = lazy(async () => ({ default: (await loadPlotly()).Plot }));
 
 interface PlotFigureProps {
   /** accessible name of the figure and the start of the downloaded file's name */
@@ -25,6 +31,7 @@ export function PlotFigure({ title, fileName, data, layout, height = 420, captio
     if (!graph.current) return;
     setError(null);
     try {
+      const { Plotly } = await loadPlotly();
       await Plotly.downloadImage(graph.current as Plotly.PlotlyHTMLElement, {
         format,
         filename: fileName,
@@ -39,19 +46,27 @@ export function PlotFigure({ title, fileName, data, layout, height = 420, captio
 
   return (
     <figure aria-label={title} className="flex flex-col gap-2" data-testid={`figure-${fileName}`}>
-      <Plot
-        data={data as Plotly.Data[]}
-        layout={baseLayout({ height, autosize: true, ...layout }) as Partial<Plotly.Layout>}
-        config={{ displaylogo: false, responsive: true, modeBarButtonsToRemove: ['toImage', 'lasso2d', 'select2d'] }}
-        useResizeHandler
-        style={{ width: '100%', height }}
-        onInitialized={(_figure, div) => {
-          graph.current = div;
-        }}
-        onUpdate={(_figure, div) => {
-          graph.current = div;
-        }}
-      />
+      <Suspense
+        fallback={
+          <div style={{ width: '100%', height }}>
+            <Loading label="Loading the plot" />
+          </div>
+        }
+      >
+        <Plot
+          data={data as Plotly.Data[]}
+          layout={baseLayout({ height, autosize: true, ...layout }) as Partial<Plotly.Layout>}
+          config={{ displaylogo: false, responsive: true, modeBarButtonsToRemove: ['toImage', 'lasso2d', 'select2d'] }}
+          useResizeHandler
+          style={{ width: '100%', height }}
+          onInitialized={(_figure, div) => {
+            graph.current = div;
+          }}
+          onUpdate={(_figure, div) => {
+            graph.current = div;
+          }}
+        />
+      </Suspense>
       <figcaption className="flex flex-wrap items-baseline justify-between gap-4 border-t border-rule pt-2 text-xs text-ink-soft">
         <span>{caption}</span>
         <span className="flex gap-3 whitespace-nowrap">
