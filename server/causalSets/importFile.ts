@@ -1,12 +1,12 @@
 import type { CausalSetMetadata } from '@shared/causalSets';
 import type { CausalSetRow } from '../db/causal-set-entities';
 import { compressBytes, encodeFloat64, encodeRelation } from '../db/codecs';
+import { orderSummary } from '../engine/orderAlgorithms';
 import { makeRegion } from '../engine/regions';
 import { runInThread } from '../threads/engineThread';
 import {
   CausalSetFileError,
   coordinatesOrder,
-  orderSummary,
   parseCoordinatesCsv,
   parseRelationList,
   type SizeLimit,

@@ -1,5 +1,6 @@
 import type { RegionSpec } from '../../shared/vacuum';
-import { BitRelation, causalMatrix, linkMatrix } from '../engine/order';
+import { BitRelation, causalMatrix } from '../engine/order';
+import { RelationCycleError, transitiveClosure } from '../engine/orderAlgorithms';
 import { makeRegion } from '../engine/regions';
 
 /**
@@ -327,187 +328,20 @@ export function parseRelationList(bytes: Uint8Array | string, options: { count: 
     return true;
   });
   problems.throwIfAny();
-  return { n: count, pairsListed: from.length, causal: transitiveClosure(count, Int32Array.from(from), Int32Array.from(to), Int32Array.from(rowOf)) };
+  return { n: count, pairsListed: from.length, causal: closeListedPairs(count, Int32Array.from(from), Int32Array.from(to), rowOf) };
 }
 
-/**
- * Transitive closure of the pairs from[p] ≺ to[p] on `count` elements, bit-packed. A topological order
- * comes first (Kahn 1962); if some elements never become free the pairs contain a cycle, reported with
- * the rows it is made of. Then, in reverse topological order, each element's future is the union of
- * its successors and their futures — one 32-bit word at a time, skipping successors already inside.
- */
-export function transitiveClosure(count: number, from: Int32Array, to: Int32Array, rowOf?: Int32Array): BitRelation {
-  const pairs = from.length;
-  const outStart = new Int32Array(count + 1);
-  for (let p = 0; p < pairs; p++) outStart[from[p] + 1] += 1;
-  for (let i = 0; i < count; i++) outStart[i + 1] += outStart[i];
-  const outPair = new Int32Array(pairs);
-  const fill = outStart.slice(0, count);
-  for (let p = 0; p < pairs; p++) outPair[fill[from[p]]++] = p;
-
-  const indegree = new Int32Array(count);
-  for (let p = 0; p < pairs; p++) indegree[to[p]] += 1;
-  const topo = new Int32Array(count);
-  let head = 0;
-  let tail = 0;
-  for (let i = 0; i < count; i++) if (indegree[i] === 0) topo[tail++] = i;
-  while (head < tail) {
-    const u = topo[head++];
-    for (let k = outStart[u]; k < outStart[u + 1]; k++) {
-      const v = to[outPair[k]];
-      if (--indegree[v] === 0) topo[tail++] = v;
-    }
+/** The closure of the listed pairs; a cycle among them is reported with the rows it is made of. */
+function closeListedPairs(count: number, from: Int32Array, to: Int32Array, rowOf: number[]): BitRelation {
+  try {
+    return transitiveClosure(count, from, to);
+  } catch (error) {
+    if (!(error instanceof RelationCycleError)) throw error;
+    const rows = Array.from(error.pairs, (p) => rowOf[p]).sort((a, b) => a - b);
+    const rowText = rows.length === 1 ? `row ${rows[0]}` : `rows ${rows.slice(0, -1).join(', ')} and ${rows[rows.length - 1]}`;
+    const message = `${rowText} form a cycle ${Array.from(error.elements).join(' ≺ ')}; a causal order has no cycles`;
+    throw new CausalSetFileError('invalid_file', [{ row: rows[0], column: null, message }]);
   }
-  if (tail < count) throw cycleError(count, from, to, rowOf, indegree);
-
-  // Successors again, now each element's in topological order: the earliest successor has the largest
-  // future, and a later one already inside the row adds nothing (its row is closed and contained), so
-  // only about the links of each element cost a row union.
-  const rank = new Int32Array(count);
-  for (let q = 0; q < count; q++) rank[topo[q]] = q;
-  const byRankStart = new Int32Array(count + 1);
-  for (let p = 0; p < pairs; p++) byRankStart[rank[to[p]] + 1] += 1;
-  for (let q = 0; q < count; q++) byRankStart[q + 1] += byRankStart[q];
-  const pairsByTargetRank = new Int32Array(pairs);
-  for (let p = 0; p < pairs; p++) pairsByTargetRank[byRankStart[rank[to[p]]]++] = p;
-  fill.set(outStart.subarray(0, count));
-  for (let k = 0; k < pairs; k++) {
-    const p = pairsByTargetRank[k];
-    outPair[fill[from[p]]++] = p;
-  }
-
-  const closed = new BitRelation(count);
-  const w = closed.wordsPerRow;
-  const words = closed.words;
-  for (let q = count - 1; q >= 0; q--) {
-    const u = topo[q];
-    const a = u * w;
-    for (let k = outStart[u]; k < outStart[u + 1]; k++) {
-      const v = to[outPair[k]];
-      const bit = 1 << (v & 31);
-      if (words[a + (v >>> 5)] & bit) continue;
-      const b = v * w;
-      for (let x = 0; x < w; x++) words[a + x] |= words[b + x];
-      words[a + (v >>> 5)] |= bit;
-    }
-  }
-  return closed;
-}
-
-/**
- * Every element left with a positive in-degree after Kahn's pass has a predecessor that is also left,
- * so walking backwards from one of them must come round to an element already visited: that is a cycle.
- */
-function cycleError(count: number, from: Int32Array, to: Int32Array, rowOf: Int32Array | undefined, indegree: Int32Array): CausalSetFileError {
-  const remainingPredecessorPair = new Int32Array(count).fill(-1);
-  for (let p = 0; p < from.length; p++) {
-    if (indegree[from[p]] > 0 && indegree[to[p]] > 0) remainingPredecessorPair[to[p]] = p;
-  }
-  let start = 0;
-  while (indegree[start] === 0) start++;
-  const visitedAt = new Map<number, number>();
-  const walk: number[] = [];
-  let node = start;
-  while (!visitedAt.has(node)) {
-    visitedAt.set(node, walk.length);
-    const p = remainingPredecessorPair[node];
-    walk.push(p);
-    node = from[p];
-  }
-  // walk holds pairs leading backwards; the cycle is the part from the repeated element on
-  const cyclePairs = walk.slice(visitedAt.get(node)!).reverse();
-  const elements = cyclePairs.map((p) => from[p]);
-  elements.push(elements[0]);
-  const rows = cyclePairs.map((p) => (rowOf ? rowOf[p] : p + 1)).sort((a, b) => a - b);
-  const rowText = rows.length === 1 ? `row ${rows[0]}` : `rows ${rows.slice(0, -1).join(', ')} and ${rows[rows.length - 1]}`;
-  const message = `${rowText} form a cycle ${elements.join(' ≺ ')}; a causal order has no cycles`;
-  return new CausalSetFileError('invalid_file', [{ row: rows[0], column: null, message }]);
-}
-
-export interface OrderSummary {
-  relations: number;
-  links: number;
-  orderingFraction: number;
-  height: number;
-  minimal: number;
-  maximal: number;
-  /** elements per layer, layer k = elements whose longest chain from below has k elements */
-  layerSizes: number[];
-}
-
-/**
- * Order statistics of a closed relation: relations R, links, ordering fraction R / (N choose 2)
- * (Myrheim 1978; Meyer 1988), the height (elements in a longest chain) and the layers by longest chain
- * from below. Elements are visited in a linear extension (by size of the past), so each element's
- * longest chain is known before anything in its future needs it.
- */
-export function orderSummary(causal: BitRelation): OrderSummary {
-  const n = causal.size;
-  const past = causal.transpose();
-  const relations = causal.count();
-  const order = linearExtension(causal, past);
-  const chain = new Int32Array(n);
-  let height = 0;
-  for (const j of order) {
-    let best = 0;
-    rowForEach(past, j, (i) => {
-      if (chain[i] > best) best = chain[i];
-    });
-    chain[j] = best + 1;
-    if (chain[j] > height) height = chain[j];
-  }
-  const layerSizes = new Array<number>(height).fill(0);
-  for (let i = 0; i < n; i++) layerSizes[chain[i] - 1] += 1;
-  let minimal = 0;
-  let maximal = 0;
-  for (let i = 0; i < n; i++) {
-    if (rowIsEmpty(past, i)) minimal += 1;
-    if (rowIsEmpty(causal, i)) maximal += 1;
-  }
-  return {
-    relations,
-    links: linkMatrix(causal).count(),
-    orderingFraction: n > 1 ? relations / ((n * (n - 1)) / 2) : 0,
-    height,
-    minimal,
-    maximal,
-    layerSizes,
-  };
-}
-
-/**
- * A labelling that respects ≺, read off a closed relation: i ≺ j makes the past of j strictly contain
- * the past of i (it holds i as well), so sorting by the size of the past is a linear extension.
- */
-export function linearExtension(causal: BitRelation, past: BitRelation = causal.transpose()): Int32Array {
-  const n = causal.size;
-  const size = new Int32Array(n);
-  for (let j = 0; j < n; j++) {
-    let s = 0;
-    rowForEach(past, j, () => {
-      s += 1;
-    });
-    size[j] = s;
-  }
-  return Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => size[a] - size[b] || a - b);
-}
-
-function rowForEach(rel: BitRelation, i: number, visit: (j: number) => void): void {
-  const w = rel.wordsPerRow;
-  for (let k = 0; k < w; k++) {
-    let bits = rel.words[i * w + k];
-    while (bits !== 0) {
-      const low = bits & -bits;
-      visit((k << 5) + (31 - Math.clz32(low)));
-      bits ^= low;
-    }
-  }
-}
-
-function rowIsEmpty(rel: BitRelation, i: number): boolean {
-  const w = rel.wordsPerRow;
-  for (let k = 0; k < w; k++) if (rel.words[i * w + k] !== 0) return false;
-  return true;
 }
 
 /** The causal order of parsed coordinates (periodic x on the cylinder), for the summary on import. */

@@ -1,13 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import {
-  CausalSetFileError,
-  linearExtension,
-  orderSummary,
-  parseCoordinatesCsv,
-  parseRelationList,
-  transitiveClosure,
-  type SizeLimit,
-} from '../../server/causalSets/parse';
+import { CausalSetFileError, parseCoordinatesCsv, parseRelationList, type SizeLimit } from '../../server/causalSets/parse';
+import { linearExtension, orderSummary, transitiveClosure } from '../../server/engine/orderAlgorithms';
 import { packFloat64, packRelation, unpackFloat64, unpackRelation } from '../../server/db/codecs';
 import { causalMatrix, linkMatrix } from '../../server/engine/order';
 import { sprinkle } from '../../server/engine/sprinkle';

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { orderSummary } from '../../server/causalSets/parse';
+import { orderSummary } from '../../server/engine/orderAlgorithms';
 import { computeVacuum } from '../../server/engine';
 import { entanglementEntropy, subregionElements } from '../../server/engine/entropy';
 import { masslessRetardedGreen, retardedGreen, retardedGreenOperator } from '../../server/engine/green';
