@@ -16,6 +16,14 @@ export class BitRelation {
     this.words = new Uint32Array(this.wordsPerRow * size);
   }
 
+  /** A relation on `size` elements from its packed rows (⌈size/32⌉ words per row), as stored or imported. */
+  static fromWords(words: Uint32Array, size: number): BitRelation {
+    const relation = new BitRelation(size);
+    if (words.length !== relation.words.length) throw new RangeError(`a relation on ${size} elements has ${relation.words.length} words, got ${words.length}`);
+    relation.words.set(words);
+    return relation;
+  }
+
   has(i: number, j: number): boolean {
     return (this.words[i * this.wordsPerRow + (j >>> 5)] & (1 << (j & 31))) !== 0;
   }

@@ -1,62 +1,16 @@
-import type { SubregionSpec, TruncationRule, VacuumStage } from '../../../shared/vacuum';
-import { isPeriodicRegionKind } from '../../../shared/regions';
-import { sprinklingSpecSchema } from '../../../shared/vacuum';
+import type { SubregionSpec, TruncationRule } from '../../../shared/vacuum';
 import { subregionElements } from '../entropy';
-import { EngineInputError, ENGINE_VERSION, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../index';
+import { EngineInputError } from '../errors';
 import type { LinearAlgebraBackend } from '../linalg/backend';
-import { makeRegion, type Region } from '../regions';
-import type { Sprinkling } from '../sprinkle';
+import type { PlacedPoints } from '../placement';
+import { ENGINE_VERSION, requestTruncation, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../request';
+import type { StageRunner } from '../stages';
 import { applyTruncation, sqrtNCutoff } from '../truncation';
 import { dominanceSweep, lightConeSweep, PauliJordan2D } from './dominance2d';
-import { chooseEngine, type EngineChoice } from './engineChoice';
+import type { EngineChoice } from './engineChoice';
 import { factoredEntropy } from './factoredEntropy';
 import { factoredDiagnostics, factoredState } from './factoredState';
 import { topSkewPairs } from './lanczos';
-
-/** What the engine choice needs to know before any work: the size (worst case for Poisson), the dimension, a periodic x. */
-export function requestShape(request: VacuumRequest): { N: number; dimension: 2 | 4; periodic: boolean } | null {
-  const source = request.source;
-  if (source.kind === 'order') return null;
-  if (source.kind === 'points') {
-    const d = source.dimension;
-    const periodic = source.region ? isPeriodicRegionKind(source.region.kind) : false;
-    return { N: Math.floor(source.points.length / d), dimension: d, periodic };
-  }
-  const parsed = sprinklingSpecSchema.safeParse(source.sprinkling);
-  if (!parsed.success) return null;
-  const region = makeRegion(parsed.data.region);
-  const mean = parsed.data.count ?? (parsed.data.density as number) * region.volume;
-  const worst = parsed.data.process === 'fixed' ? mean : Math.ceil(mean + 5 * Math.sqrt(mean));
-  return { N: worst, dimension: region.dimension, periodic: region.periodX !== undefined };
-}
-
-/** The documented rule of engineChoice.ts applied to a request; a refused request is an input error. */
-export function engineForRequest(request: VacuumRequest, denseMaxN: number): EngineChoice {
-  if (request.source.kind === 'order') {
-    if (request.engine === 'structured') throw new EngineInputError('the structured engine needs coordinates (light-cone sweep); a causal set given by its order runs on the dense engine');
-    return { engine: 'dense', reason: 'a causal set given by its order alone has no coordinates for the structured engine' };
-  }
-  const shape = requestShape(request);
-  // an unparsable request is left to validateVacuumRequest, which says what is wrong
-  if (!shape) return { engine: 'dense', reason: 'the request is checked by the dense validation' };
-  const truncation: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
-  try {
-    return chooseEngine({ N: shape.N, dimension: shape.dimension, truncation, requested: request.engine, denseMaxN, periodic: shape.periodic });
-  } catch (error) {
-    throw new EngineInputError((error as Error).message);
-  }
-}
-
-export interface PlacedPoints {
-  points: Float64Array;
-  n: number;
-  dimension: 2 | 4;
-  density: number | null;
-  region: Region | null;
-  provenance: Sprinkling['provenance'] | null;
-}
-
-type Stage = <T>(name: VacuumStage, work: () => T) => Promise<T>;
 
 /**
  * The structured pipeline for 2D (issue 9): light-cone sweep order, Δ as an operator, the pairs above
@@ -68,7 +22,7 @@ export async function structuredVacuum(input: {
   request: VacuumRequest;
   hooks: VacuumHooks;
   placed: PlacedPoints;
-  stage: Stage;
+  stage: StageRunner;
   backend: LinearAlgebraBackend;
   choice: EngineChoice;
   timings: VacuumResult['timings'];
@@ -78,7 +32,7 @@ export async function structuredVacuum(input: {
   if (dimension !== 2) throw new EngineInputError('the structured engine is 2D only');
   const n = points.length / 2;
   const mass = request.mass ?? 0;
-  const truncationRule: TruncationRule = request.truncation ?? (request.doubleTruncation ? { rule: 'sqrtN' } : { rule: 'none' });
+  const truncationRule: TruncationRule = requestTruncation(request);
 
   const { sweep, relations } = await stage('order', () => {
     const t = new Float64Array(n);
