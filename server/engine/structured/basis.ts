@@ -1,0 +1,153 @@
+import type { LinearAlgebraBackend } from '../linalg/backend';
+import { combineColumns } from './kernels';
+
+export const ROW_BLOCK = 8192;
+
+/**
+ * Lanczos vectors stored in row blocks: block r holds rows [r·ROW_BLOCK, …) of every column, column-major
+ * with room for `capacity` columns, so the first `count` columns of a row block are one contiguous
+ * matrix and block Gram–Schmidt is two matrix–matrix products per row block (BLAS dgemm when native,
+ * flat JavaScript loops otherwise).
+ */
+export class Basis {
+  count = 0;
+  private capacity: number;
+  private blocks: Float64Array[];
+  private readonly starts: number[] = [];
+
+  constructor(
+    readonly size: number,
+    initialCapacity: number,
+    private readonly backend: LinearAlgebraBackend | null,
+  ) {
+    this.capacity = Math.max(4, Math.min(size, initialCapacity));
+    this.blocks = [];
+    for (let r = 0; r < size; r += ROW_BLOCK) {
+      this.starts.push(r);
+      this.blocks.push(new Float64Array(Math.min(ROW_BLOCK, size - r) * this.capacity));
+    }
+  }
+
+  private rows(b: number): number {
+    return Math.min(ROW_BLOCK, this.size - this.starts[b]);
+  }
+
+  /** C = Vᵀ W for a column-major size × width W; C is count × width column-major */
+  project(w: Float64Array, width: number): Float64Array {
+    const m = this.count;
+    const c = new Float64Array(m * width);
+    if (m === 0) return c;
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      const slice = gatherRows(w, this.size, width, start, rows);
+      if (this.backend) {
+        const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows, cols: width, data: slice }, { transposeA: true }).data;
+        for (let i = 0; i < part.length; i++) c[i] += part[i];
+      } else {
+        for (let lane = 0; lane < width; lane++) {
+          const x = lane * rows;
+          for (let j = 0; j < m; j++) {
+            const off = j * rows;
+            let s0 = 0;
+            let s1 = 0;
+            let i = 0;
+            for (; i + 1 < rows; i += 2) {
+              s0 += block[off + i] * slice[x + i];
+              s1 += block[off + i + 1] * slice[x + i + 1];
+            }
+            if (i < rows) s0 += block[off + i] * slice[x + i];
+            c[j + lane * m] += s0 + s1;
+          }
+        }
+      }
+    }
+    return c;
+  }
+
+  /** W −= V C */
+  subtract(c: Float64Array, w: Float64Array, width: number): void {
+    const m = this.count;
+    if (m === 0) return;
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      if (this.backend) {
+        const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows: m, cols: width, data: c }).data;
+        for (let lane = 0; lane < width; lane++) {
+          const target = lane * this.size + start;
+          const source = lane * rows;
+          for (let i = 0; i < rows; i++) w[target + i] -= part[source + i];
+        }
+      } else {
+        for (let lane = 0; lane < width; lane++) {
+          const target = lane * this.size + start;
+          for (let j = 0; j < m; j++) {
+            const h = c[j + lane * m];
+            if (h === 0) continue;
+            const off = j * rows;
+            for (let i = 0; i < rows; i++) w[target + i] -= h * block[off + i];
+          }
+        }
+      }
+    }
+  }
+
+  /** Appends the columns of a column-major size × width block. */
+  push(w: Float64Array, width: number): void {
+    while (this.count + width > this.capacity) this.grow();
+    for (let lane = 0; lane < width; lane++) {
+      for (let b = 0; b < this.blocks.length; b++) {
+        const rows = this.rows(b);
+        const from = lane * this.size + this.starts[b];
+        this.blocks[b].set(w.subarray(from, from + rows), (this.count + lane) * rows);
+      }
+    }
+    this.count += width;
+  }
+
+  private grow(): void {
+    const capacity = Math.min(this.size, Math.ceil(this.capacity * 1.5) + 16);
+    this.blocks = this.blocks.map((block, b) => {
+      const bigger = new Float64Array(this.rows(b) * capacity);
+      bigger.set(block);
+      return bigger;
+    });
+    this.capacity = capacity;
+  }
+
+  /**
+   * out[c] = Σ_j V[:, j] coefficients[j + c·count] for c < outputs, one row block at a time, each row
+   * block of the basis released once used so that the outputs and the basis never both peak.
+   */
+  combineAndRelease(coefficients: Float64Array, outputs: number): Float64Array[] {
+    const out = Array.from({ length: outputs }, () => new Float64Array(this.size));
+    const m = this.count;
+    for (let b = 0; b < this.blocks.length; b++) {
+      const rows = this.rows(b);
+      const start = this.starts[b];
+      const block = this.blocks[b];
+      if (this.backend) {
+        const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows: m, cols: outputs, data: coefficients }).data;
+        for (let c = 0; c < outputs; c++) out[c].set(part.subarray(c * rows, (c + 1) * rows), start);
+      } else {
+        const columns = Array.from({ length: m }, (_, j) => block.subarray(j * rows, (j + 1) * rows));
+        const targets = out.map((o) => o.subarray(start, start + rows));
+        combineColumns(columns, Int32Array.from({ length: m }, (_, j) => j), coefficients, outputs, targets, 0, rows);
+      }
+      this.blocks[b] = new Float64Array(0);
+    }
+    this.count = 0;
+    return out;
+  }
+}
+
+/** rows [start, start + rows) of a column-major size × width matrix, as a contiguous rows × width matrix */
+function gatherRows(w: Float64Array, size: number, width: number, start: number, rows: number): Float64Array {
+  if (width === 1) return w.subarray(start, start + rows);
+  const out = new Float64Array(rows * width);
+  for (let lane = 0; lane < width; lane++) out.set(w.subarray(lane * size + start, lane * size + start + rows), lane * rows);
+  return out;
+}
