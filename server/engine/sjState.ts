@@ -11,9 +11,11 @@ import type { PauliJordanSpectrum } from './pauliJordan';
  * Afshordi–Aslanbeigi–Sorkin 2012). Untruncated, B holds every eigenvector and Δ itself is used:
  * Im W = ½Δ, and Re W = ½|Δ| is restricted as ¼(B s Bᵀ + Δ B s⁺ Bᵀ Δᵀ), the mean of two forms that
  * agree for exact eigenvectors and whose first-order rounding cancels where it would show as entropy
- * of a pure state (`completeRestrictedReal`). Nothing of size N × N beyond B is formed for the state
- * (A and ΔB are then left null; `sjDiagnostics` forms what its checks need, which check the form
- * ½ B s Bᵀ: it differs from the mean by rounding, 1e-11 of ‖Re W‖_F at N = 2000).
+ * of a pure state (`completeRestrictedReal`); a truncated Re W_c is restricted as the same mean in the
+ * kept basis, B ¼(s + A s⁺ Aᵀ) Bᵀ (`truncatedRestrictedReal`). Nothing of size N × N beyond B is
+ * formed for the state (A and ΔB are left null when untruncated; `sjDiagnostics` forms what its checks
+ * need). The checks test the form ½ B s Bᵀ, which differs from the mean by rounding (1e-11 of
+ * ‖Re W‖_F at N = 2000 untruncated).
  */
 export interface SjState {
   size: number;
@@ -150,7 +152,11 @@ function completeRestrictedReal(state: SjState, elements: ArrayLike<number>, bac
 
 /**
  * Real and imaginary parts of W_c restricted to the given elements (both |O| × |O|, column-major).
- * Truncated: Re W_O = ½ B_O s B_Oᵀ. Untruncated: the mean of two forms, see `completeRestrictedReal`.
+ * Im W_O = ½ B_O A B_Oᵀ (truncated) or ½ Δ_O (untruncated). Re W_O is in either case the restriction of
+ * the mean of two estimates of |Δ_c| from the same eigenvectors: untruncated ¼(B s Bᵀ + Δ B s⁺ Bᵀ Δᵀ)
+ * (`completeRestrictedReal`), truncated its form in the kept basis, B ¼(s + A s⁺ Aᵀ) Bᵀ
+ * (`truncatedRestrictedReal`); the diagnostics check the form ½ B s Bᵀ, which differs from the mean by
+ * rounding.
  */
 export function restrictedWightman(
   state: SjState,
@@ -168,22 +174,47 @@ export function restrictedWightman(
     }
     return { real: completeRestrictedReal(state, elements, backend), imaginary };
   }
-  // Re W_O = ½ B_O s B_Oᵀ = TᵀT with Tᵀ = B_O diag(√(s/2)): a Gram product, symmetric to the last bit
-  const scaledTransposed = denseMatrix(r, m);
-  const factors = state.sigma.map((v) => Math.sqrt(0.5 * v));
-  for (let a = 0; a < m; a++) {
-    const row = elements[a];
-    const out = a * r;
-    for (let c = 0; c < r; c++) scaledTransposed.data[out + c] = factors[c] * state.basis.data[row + c * n];
-  }
-  const real = backend.gram(scaledTransposed);
   if (!state.deltaInBasis) throw new Error('a truncated SJ state needs A = BᵀΔB');
   const rows = denseMatrix(m, r);
   for (let c = 0; c < r; c++) for (let a = 0; a < m; a++) rows.data[a + c * m] = state.basis.data[elements[a] + c * n];
   const half = backend.multiply(rows, state.deltaInBasis);
   const imaginary = backend.multiply(half, rows, { transposeB: true });
   for (let k = 0; k < imaginary.data.length; k++) imaginary.data[k] *= 0.5;
-  return { real, imaginary };
+  return { real: truncatedRestrictedReal(state, rows, half, backend), imaginary };
+}
+
+/**
+ * Re W_O of a truncated state, B_O ¼(s + A s⁺ Aᵀ) B_Oᵀ = ¼(B_O s B_Oᵀ + (B_O A) s⁺ (B_O A)ᵀ): in the kept
+ * basis s and A s⁺ Aᵀ are two estimates of |A| (equal for exact eigenvectors: then AᵀA = s², and the
+ * normal A commutes with s; s⁺ inverts s > 0 and keeps the kernel at 0). The σ from ΔᵀΔ carry
+ * an error of order ε‖Δ‖²/σ, while A = BᵀΔB gives each pair's σ to about ε‖Δ‖; in a pair of σ the
+ * second estimate is σ_A²/s ≈ 2σ_A − s, so the mean is σ_A to first order and the κ of a pure
+ * restriction stay at ½. With ½ B s Bᵀ alone they moved by about ε(σ_max/σ)² in a mode of σ: the whole
+ * region of a state keeping σ down to 7e-5 σ_max (modes:490 at N = 1000) had S ≈ 1e-7, and 1e-9 with
+ * σ down to 4e-4 σ_max at N = 300; numpy's complex route gives 1e-12 (tests/engine/entropyFloor.test.ts).
+ * Both terms are Gram products, so Re W_O stays symmetric and positive semidefinite to the last bit.
+ * Cost: B_O A is shared with Im W_O; the second Gram product adds r |O|² flops to the r |O|² + 2 r² |O|
+ * + 2 r |O|² of the restriction.
+ */
+function truncatedRestrictedReal(state: SjState, rows: DenseMatrix, rowsTimesA: DenseMatrix, backend: LinearAlgebraBackend): DenseMatrix {
+  const m = rows.rows;
+  const s = state.sigma;
+  // the kernel (σ = 0, trailing) adds nothing to either term
+  let r = 0;
+  while (r < s.length && s[r] > 0) r++;
+  if (r === 0) return denseMatrix(m, m);
+  // rows 0…r−1: ½√s B_Oᵀ; rows r…2r−1: ½ s^(−½) (B_O A)ᵀ, so Tᵀ T is the mean above
+  const stacked = denseMatrix(2 * r, m);
+  for (let c = 0; c < r; c++) {
+    const direct = 0.5 * Math.sqrt(s[c]);
+    const mapped = 0.5 / Math.sqrt(s[c]);
+    const offset = c * m;
+    for (let a = 0; a < m; a++) {
+      stacked.data[a * 2 * r + c] = direct * rows.data[offset + a];
+      stacked.data[a * 2 * r + r + c] = mapped * rowsTimesA.data[offset + a];
+    }
+  }
+  return backend.gram(stacked);
 }
 
 function frobenius(data: Float64Array): number {

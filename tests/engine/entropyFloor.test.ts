@@ -28,6 +28,10 @@ import { runPython } from '../support/python';
  * 1e-5 at N = 2000), from Re W = ½ B s Bᵀ with eigenvectors through ΔᵀΔ; its restriction is now the
  * mean of B s Bᵀ and Δ B s⁺ Bᵀ Δᵀ (sjState.ts, completeRestrictedReal), and S ≈ 1e-11 here, 4e-11 at
  * N = 600 (measured on both backends, six seeds at N = 600 on native: all within 3.6e-11–3.9e-11).
+ * A truncated state keeping modes near the kernel (modes:K, smallest kept σ 4e-4 σ_max here) had the
+ * same kind of floor from ½ B s Bᵀ, S ≈ 6.5e-10 (ml-matrix) and 1.3e-9 (native) here, 4e-8 at N = 600
+ * and 1.3e-7 at N = 1000, because each s from ΔᵀΔ is off by about ε‖Δ‖²/σ; its restriction is now
+ * B ¼(s + A s⁺ Aᵀ) Bᵀ (sjState.ts, truncatedRestrictedReal) and S ≈ 1e-11 to 5e-11 (numpy ≤ 1e-11).
  */
 const numpyScript = String.raw`
 import json, sys
@@ -79,6 +83,31 @@ mu = np.linalg.eigvals(np.diag(1 / e[keep]) @ U.conj().T @ W @ U).real
 print(json.dumps(float(np.sum(mu * np.log(np.abs(mu))))))
 `;
 
+/**
+ * numpy's S for the state keeping the k largest pairs ±λ of iΔ (the modes:K rule), on each named list
+ * of elements: W = Σ_top k λ v v†, iΔ_c = P iΔ P over both signs, then the route of numpyScript
+ */
+const keptModesScript = String.raw`
+import json, sys
+import numpy as np
+d = json.load(sys.stdin); pts = np.array(d['points']); t, x = pts[:, 0], pts[:, 1]; N = len(t); k = d['k']
+C = ((t[None, :] - t[:, None]) > np.abs(x[None, :] - x[:, None])).astype(float)
+D = 0.5 * C.T - 0.5 * C
+ev, V = np.linalg.eigh(1j * D)
+pos = np.arange(N - k, N)
+kept = V[:, np.concatenate([np.arange(k), pos])]; P = kept @ kept.conj().T
+W = (V[:, pos] * ev[pos]) @ V[:, pos].conj().T
+iD = P @ (1j * D) @ P
+def entropy(sub):
+    Wo = W[np.ix_(sub, sub)]; Ao = iD[np.ix_(sub, sub)]
+    e, U = np.linalg.eigh(Ao)
+    keep = np.abs(e) > 1e-6 * np.abs(e).max()
+    U = U[:, keep]
+    mu = np.linalg.eigvals(np.diag(1 / e[keep]) @ U.conj().T @ Wo @ U).real
+    return float(np.sum(mu * np.log(np.abs(mu))))
+print(json.dumps({name: entropy(np.array(sub)) for name, sub in d['subsets'].items()}))
+`;
+
 interface Reference {
   fullAll: number;
   cutAll: number;
@@ -114,11 +143,18 @@ const diamond = (h: number) => subregionElements({ kind: 'diamond', past: { t: -
 const native = nativeBackendStatus().backend;
 const backends: LinearAlgebraBackend[] = native ? [mlMatrixBackend, native] : [mlMatrixBackend];
 
+/** modes:K near the kernel on the fixture: the smallest kept σ is 4.3e-4 σ_max (of 150 pairs) */
+const NEAR_KERNEL_MODES = 145;
+// every element but the four of largest |t|: still more than 2k of them, so the restriction stays pure
+const mostElements = Int32Array.from(Array.from(all).sort((p, q) => Math.abs(points[2 * q]) - Math.abs(points[2 * p])).slice(4)).sort();
+
 let reference: Reference;
+let nearKernel: { all: number; most: number };
 let delta: DenseMatrix;
 
 beforeAll(() => {
   reference = runPython<Reference>(numpyScript, rows);
+  nearKernel = runPython(keptModesScript, { points: rows, k: NEAR_KERNEL_MODES, subsets: { all: Array.from(all), most: Array.from(mostElements) } });
   delta = pauliJordan(retardedGreen({ points, dimension: 2, causal: causalMatrix(points, 2) }));
 }, 120_000);
 
@@ -203,6 +239,21 @@ describe.each(backends.map((b) => [b.name, b] as const))('entropy rounding floor
     }
   });
 
+  it('a truncated state keeping modes near the kernel (modes:145, σ down to 4e-4 σ_max) is pure on large regions: |S| below 1.5e-10 (was 6.5e-10 to 1.3e-9)', () => {
+    // measured 1.5e-11 (whole region) and 3.9e-11 to 4.8e-11 (all but four) on both backends; with
+    // ½ B s Bᵀ alone 6.5e-10 (ml-matrix) and 1.3e-9 (native), κ off ½ by 1.3e-11 to 1.7e-11
+    const state = sjState(delta, spectrum, applyTruncation(spectrum.positive, N, { rule: 'modes', count: NEAR_KERNEL_MODES }), backend);
+    expect(state.sigma[2 * NEAR_KERNEL_MODES - 1] / state.sigma[0]).toBeLessThan(5e-4);
+    for (const [name, elements] of [['all', all], ['most', mostElements]] as const) {
+      expect(Math.abs(nearKernel[name])).toBeLessThan(2e-11);
+      expect(elements.length).toBeGreaterThan(2 * NEAR_KERNEL_MODES);
+      const e = entanglementEntropy(state, elements, { backend });
+      expect(e.modesKept).toBe(2 * NEAR_KERNEL_MODES);
+      expect(Math.abs(e.S - nearKernel[name])).toBeLessThan(1.5e-10);
+      expect(largestDeviation(e.generalizedEigenvalues)).toBeLessThan(5e-12);
+    }
+  });
+
   it('mixed sub-diamonds with kept σ down to 2e-5 of the largest: S as numpy finds, to 1e-9 relative', () => {
     for (const [h, expected] of Object.entries(reference.mixed)) {
       const e = entanglementEntropy(cut, diamond(Number(h)), { backend });
@@ -212,19 +263,38 @@ describe.each(backends.map((b) => [b.name, b] as const))('entropy rounding floor
   });
 });
 
-describe('the untruncated whole-region floor at a second size', () => {
+describe.skipIf(!native)('the whole-region floor at a second size', () => {
   // N = 600 takes 10 s on the JavaScript backend, so it runs on native only; N = 300 above runs on both
-  it.skipIf(!native)('N = 600 (native): |S| below 2e-10, as numpy finds (≤ 1e-11)', () => {
-    const sprinkled = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 600, seed: 'floor-600', prng: 'arc4' });
-    const pts = sprinkled.points;
-    const numpyS = runPython<number>(wholeRegionScript, Array.from({ length: 600 }, (_, i) => [pts[2 * i], pts[2 * i + 1]]));
+  const everything = Int32Array.from({ length: 600 }, (_, i) => i);
+  let numpyPoints: number[][];
+  let d: DenseMatrix;
+  let spectrum: ReturnType<typeof pauliJordanSpectrum>;
+  beforeAll(() => {
+    const pts = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 600, seed: 'floor-600', prng: 'arc4' }).points;
+    numpyPoints = Array.from({ length: 600 }, (_, i) => [pts[2 * i], pts[2 * i + 1]]);
+    d = pauliJordan(retardedGreen({ points: pts, dimension: 2, causal: causalMatrix(pts, 2) }));
+    spectrum = pauliJordanSpectrum(d, { backend: native! });
+  });
+
+  it('N = 600 (native), untruncated: |S| below 2e-10, as numpy finds (≤ 1e-11)', () => {
+    const numpyS = runPython<number>(wholeRegionScript, numpyPoints);
     expect(Math.abs(numpyS)).toBeLessThan(1e-11);
-    const d = pauliJordan(retardedGreen({ points: pts, dimension: 2, causal: causalMatrix(pts, 2) }));
-    const spectrum = pauliJordanSpectrum(d, { backend: native! });
     const state = sjState(d, spectrum, applyTruncation(spectrum.positive, 600, { rule: 'none' }), native!);
-    const e = entanglementEntropy(state, Int32Array.from({ length: 600 }, (_, i) => i), { backend: native! });
+    const e = entanglementEntropy(state, everything, { backend: native! });
     // measured 3.6e-11 here (½ B s Bᵀ alone: 6.0e-8), 3.6e-11 to 3.9e-11 over six other seeds
     expect(Math.abs(e.S - numpyS)).toBeLessThan(2e-10);
+  });
+
+  it('N = 600 (native), modes:295 (σ down to 1.2e-4 σ_max): |S| below 5e-10 (was 3.8e-8), as numpy finds', () => {
+    const numpyS = runPython<{ all: number }>(keptModesScript, { points: numpyPoints, k: 295, subsets: { all: Array.from(everything) } }).all;
+    expect(Math.abs(numpyS)).toBeLessThan(2e-11);
+    const state = sjState(d, spectrum, applyTruncation(spectrum.positive, 600, { rule: 'modes', count: 295 }), native!);
+    expect(state.sigma[589] / state.sigma[0]).toBeLessThan(2e-4);
+    const e = entanglementEntropy(state, everything, { backend: native! });
+    expect(e.modesKept).toBe(590);
+    // measured 5.1e-11 (½ B s Bᵀ alone: 3.8e-8, κ off ½ by 1.1e-9)
+    expect(Math.abs(e.S - numpyS)).toBeLessThan(5e-10);
+    expect(largestDeviation(e.generalizedEigenvalues)).toBeLessThan(1e-11);
   });
 });
 
