@@ -113,7 +113,7 @@ export default {
     },
     {
       name: 'feature-imports-only-shared-pieces',
-      severity: 'warn',
+      severity: 'error',
       comment:
         'A client feature imports src/ui, src/lib, src/app, shared/ and the api/ hooks of other features; ' +
         'a component or helper two features need belongs in src/ui or src/lib.',
@@ -125,10 +125,12 @@ export default {
     },
     {
       name: 'shared-pieces-stand-below-features',
-      severity: 'warn',
-      comment: 'src/ui and src/lib serve every feature, so they import no feature and not the shell.',
+      severity: 'error',
+      comment:
+        "src/ui and src/lib serve every feature, so they import neither the shell nor a feature's components, " +
+        "helpers or pages; a feature's api/ hooks are its public face (the causal-set picker lists the team's sets).",
       from: { path: '^src/(ui|lib)/' },
-      to: { path: '^src/(features|app)/' },
+      to: { path: '^src/(features|app)/', pathNot: '^src/features/[^/]+/api/' },
     },
   ],
   options: {

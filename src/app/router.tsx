@@ -18,7 +18,7 @@ const SignInPage = lazyPage(() => import('../features/auth/routes/SignInPage'), 
 const SignUpPage = lazyPage(() => import('../features/auth/routes/SignUpPage'), 'SignUpPage');
 const ResetRequestPage = lazyPage(() => import('../features/auth/routes/ResetRequestPage'), 'ResetRequestPage');
 const ResetConfirmPage = lazyPage(() => import('../features/auth/routes/ResetConfirmPage'), 'ResetConfirmPage');
-const AcceptInvitationPage = lazyPage(() => import('../features/invitations/routes/AcceptInvitationPage'), 'AcceptInvitationPage');
+const AcceptInvitationPage = lazyPage(() => import('../features/auth/routes/AcceptInvitationPage'), 'AcceptInvitationPage');
 const ApiDocsPage = lazyPage(() => import('../features/apiDocs/routes/ApiDocsPage'), 'ApiDocsPage');
 const RunsPage = lazyPage(() => import('../features/runs/routes/RunsPage'), 'RunsPage');
 const NewRunPage = lazyPage(() => import('../features/runs/routes/NewRunPage'), 'NewRunPage');

@@ -44,3 +44,10 @@ export function useFormErrors() {
 
   return { fieldErrors, formError, setFieldErrors, setFormError, clear, fromServer };
 }
+
+/** Parses a typed number; empty text is `undefined`, anything else that is not a number is NaN. */
+export function parseNumber(text: string): number | undefined {
+  const trimmed = text.trim();
+  if (trimmed === '') return undefined;
+  return Number(trimmed);
+}

@@ -8,6 +8,9 @@ export const plotPalette = {
   dataSoft: colors.ink.soft,
   reference: colors.reference.DEFAULT,
   cut: colors.accent.DEFAULT,
+  /** further tones for overlaid runs (a comparison) */
+  accentDeep: colors.accent.deep,
+  inkFaint: colors.ink.faint,
   grid: colors.rule,
   paper: colors.paper.DEFAULT,
 } as const;

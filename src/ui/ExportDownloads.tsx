@@ -1,6 +1,6 @@
 import { useState, type ReactNode } from 'react';
 import { exportFileName, exportTables, exportUrl, type ExportFormatOf, type ExportKind } from '@shared/exports';
-import { downloadFile } from '../lib/download';
+import { api } from '../lib/apiClient';
 import { Button } from './Button';
 
 /**
@@ -29,7 +29,7 @@ export function ExportDownloads<K extends ExportKind>({
     setError(null);
     setBusy(format);
     try {
-      await downloadFile(exportUrl(kind, id, format), exportFileName(kind, id, format));
+      await api.download(exportUrl(kind, id, format), exportFileName(kind, id, format));
     } catch (cause) {
       setError(cause instanceof Error ? cause.message : String(cause));
     } finally {

@@ -49,7 +49,7 @@ describe('import boundaries', () => {
         'engine-no-io: server/engine/solver.ts → server/db/store.ts',
         'feature-imports-only-shared-pieces: src/features/alpha/routes/Page.ts → src/features/beta/components/Widget.ts',
         'no-cycles: server/engine/first.ts → server/engine/second.ts (cycle server/engine/second.ts → server/engine/first.ts)',
-        'shared-pieces-stand-below-features: src/ui/Panel.ts → src/features/beta/api/hooks.ts',
+        'shared-pieces-stand-below-features: src/ui/Panel.ts → src/features/beta/components/Widget.ts',
         'shared-stands-alone: shared/names.ts → server/db/store.ts',
         'worker-imports-worker-or-neutral: server/worker/reply.ts → server/api/route.ts',
         'worker-never-reaches-api: server/worker/reply.ts → server/api/route.ts',

@@ -94,6 +94,41 @@ describe('apiClient', () => {
     stubFetch(() => new Response(null, { status: 204 }));
     await expect(api.delete('/api/team/members/u1')).resolves.toBeUndefined();
   });
+
+  it('uploads a form as it is, with the team header, and reads errors in the shared shape', async () => {
+    stubFetch(() => answer(201, { id: 'cs1' }));
+    setCurrentTeamId('team-42');
+    const form = new FormData();
+    form.append('name', 'sprinkled');
+    await expect(api.upload<{ id: string }>('/api/causal-sets', form)).resolves.toEqual({ id: 'cs1' });
+    const { init } = calls[0]!;
+    expect(init.method).toBe('POST');
+    expect(init.body).toBe(form);
+    const headers = init.headers as Record<string, string>;
+    // The browser writes the multipart content type with its boundary.
+    expect(headers['Content-Type']).toBeUndefined();
+    expect(headers['x-tacet-team']).toBe('team-42');
+
+    stubFetch(() => answer(422, { error: { code: 'invalid_file', message: 'Row 3 is not a number.', issues: [{ path: 'file', message: 'row 3' }] } }));
+    const error = (await api.upload('/api/causal-sets', form).catch((e: unknown) => e)) as ApiError;
+    expect(error.status).toBe(422);
+    expect(error.fieldErrors()).toEqual({ file: 'row 3' });
+  });
+
+  it('names what went wrong when a download is refused', async () => {
+    stubFetch(() => answer(404, { error: { code: 'not_found', message: 'No such run.' } }));
+    setCurrentTeamId('team-42');
+    const refused = (await api.download('/api/runs/r1/points.csv', 'points.csv').catch((e: unknown) => e)) as ApiError;
+    expect(refused.code).toBe('download_failed');
+    expect(refused.message).toBe('No such run.');
+    const headers = calls[0]!.init.headers as Record<string, string>;
+    expect(headers['x-tacet-team']).toBe('team-42');
+    expect(headers.Accept).toBeUndefined();
+
+    stubFetch(() => new Response('<html>bad gateway</html>', { status: 502, statusText: 'Bad Gateway' }));
+    const failed = (await api.download('/api/runs/r1/points.csv', 'points.csv').catch((e: unknown) => e)) as ApiError;
+    expect(failed.message).toBe('The download failed (502 Bad Gateway).');
+  });
 });
 
 describe('apiClient CSRF header', () => {

@@ -8,7 +8,7 @@ import {
   describeTruncationText,
   truncationFromForm,
   truncationToForm,
-} from '../../src/features/cutRules/lib/truncationForm';
+} from '../../src/lib/truncationForm';
 import { AUTO_STRUCTURED_FROM, STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import {
   defaultRunForm,
@@ -26,7 +26,7 @@ import {
   type RunFormValues,
 } from '../../src/features/runs/lib/runForm';
 import { diagnosticNote, engineRowText, probedCheckCount, structuredSpectrumNote } from '../../src/features/runs/lib/engineText';
-import { formatSignificant, splitDecimal } from '../../src/features/runs/lib/numbers';
+import { formatSignificant, splitDecimal } from '../../src/lib/numbers';
 import { parseCompareIds, runLabel } from '../../src/features/runs/lib/runIds';
 
 const form = (changes: Partial<RunFormValues> = {}): RunFormValues => ({ ...defaultRunForm('seed-1'), ...changes });

@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import { describeRegion, type CausalSetSummary } from '@shared/causalSets';
-import { Figure } from '../../runs/components/Figure';
+import { Figure } from '../../../ui/Figure';
 import { formatBytes } from '../lib/importForm';
 
 function Row({ label, children, note }: { label: string; children: ReactNode; note?: string }) {

@@ -4,14 +4,14 @@ import type { CausalSetSummary } from '@shared/causalSets';
 import { createRunRequestSchema } from '@shared/runs';
 import { defaultTruncationFor, parseSubregion } from '@shared/vacuum';
 import { isApiError } from '../../../lib/apiClient';
-import { validate, type FieldErrors } from '../../../lib/forms';
+import { parseNumber, validate, type FieldErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
-import { parseNumber, truncationFieldMessages, truncationFromForm, truncationKinds, truncationToForm, type TruncationFormValues } from '../../cutRules/lib/truncationForm';
+import { truncationFieldMessages, truncationFromForm, truncationKinds, truncationToForm, type TruncationFormValues } from '../../../lib/truncationForm';
 import { useCreateRun } from '../../runs/api/runs';
-import { Checkbox } from '../../runs/components/Checkbox';
-import { RestrictedCutFields } from '../../runs/components/SubregionFields';
-import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
+import { Checkbox } from '../../../ui/Checkbox';
+import { RestrictedCutFields } from '../../../ui/RestrictedCutFields';
+import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../../lib/truncationForm';
 
 /** A vacuum run on this causal set in place of a sprinkling: truncation, mass and an optional subregion. */
 export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {

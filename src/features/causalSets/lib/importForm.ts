@@ -1,7 +1,6 @@
 import { causalSetMetadataSchema, type CausalSetKind, type CausalSetMetadata } from '@shared/causalSets';
 import { defaultRegionKind, regionDescriptors, regionFieldKeys, regionFromFieldText, type RegionFieldValues } from '@shared/regions';
-import { validate, type FieldErrors } from '../../../lib/forms';
-import { parseNumber } from '../../cutRules/lib/truncationForm';
+import { parseNumber, validate, type FieldErrors } from '../../../lib/forms';
 
 /** The import form as typed: every number is text until submitted. */
 export interface ImportFormValues extends RegionFieldValues {

@@ -4,7 +4,7 @@ import { formatDateTime } from '../../../lib/format';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
-import { Figure } from '../../runs/components/Figure';
+import { Figure } from '../../../ui/Figure';
 import { useCausalSets } from '../api/causalSets';
 
 export const kindLabels = { coordinates: 'Coordinates', relations: 'Relations' } as const;

@@ -8,14 +8,14 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { useCreateCutRule, useCutRules, useDeleteCutRule } from '../api/cutRules';
-import { TruncationRuleFields } from '../components/TruncationRuleFields';
+import { TruncationRuleFields } from '../../../ui/TruncationRuleFields';
 import {
   defaultTruncation,
   describeTruncation,
   truncationFieldMessages,
   truncationFromForm,
   type TruncationFormValues,
-} from '../lib/truncationForm';
+} from '../../../lib/truncationForm';
 
 export function CutRulesPage() {
   const cutRules = useCutRules();

@@ -6,7 +6,7 @@ import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, TextField } from '../../../ui/Field';
 import { useCutRules } from '../../cutRules/api/cutRules';
-import { TruncationRuleFields } from '../../cutRules/components/TruncationRuleFields';
+import { TruncationRuleFields } from '../../../ui/TruncationRuleFields';
 import { useReanalyseRun } from '../api/runs';
 import { useEngineLimits } from '../api/limits';
 import { denseLimitN, initialReanalyseValues, reanalyseEngineNote, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/runForm';

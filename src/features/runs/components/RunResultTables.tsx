@@ -1,10 +1,10 @@
 import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import type { RunDetail, RunResult } from '@shared/runs';
 import { entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
-import { describeTruncation } from '../../cutRules/lib/truncationForm';
+import { describeTruncation } from '../../../lib/truncationForm';
 import { diagnosticNote, engineRowText, probedCheckCount } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
-import { Figure } from './Figure';
+import { Figure } from '../../../ui/Figure';
 import { stageLabels } from './RunProgress';
 
 function Row({ label, children, note }: { label: string; children: React.ReactNode; note?: string }) {

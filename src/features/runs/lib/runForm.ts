@@ -17,15 +17,18 @@ import {
 } from '@shared/regions';
 import { defaultTruncationFor, type PrngName, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import type { z } from 'zod';
-import type { FieldErrors } from '../../../lib/forms';
+import { parseNumber, type FieldErrors } from '../../../lib/forms';
 import {
+  defaultRestrictedCutForm,
   defaultTruncation,
-  parseNumber,
+  restrictedCutFromForm,
+  restrictedCutToForm,
   truncationFieldMessages,
   truncationFromForm,
   truncationToForm,
+  type RestrictedCutFormValues,
   type TruncationFormValues,
-} from '../../cutRules/lib/truncationForm';
+} from '../../../lib/truncationForm';
 
 /**
  * Largest N the server's dense engine accepts, per linear-algebra backend (server/engine
@@ -35,27 +38,6 @@ import {
  */
 export const denseLimits = { native: 6000, 'ml-matrix': 3000 } as const;
 export const denseLimitN = Math.max(...Object.values(denseLimits));
-
-/** The restricted cut of double truncation as typed: √n/(4π), or a fixed λ (its number as text). */
-export interface RestrictedCutFormValues {
-  kind: RestrictedCut['rule'];
-  value: string;
-}
-
-export const defaultRestrictedCutForm: RestrictedCutFormValues = { kind: 'sqrtN', value: '' };
-
-/**
- * The restricted cut to send: none without double truncation; √n/(4π) is the server's default, so only
- * a fixed λ is sent (unvalidated: the shared schema names a bad number at `restrictedCut.cut`).
- */
-export function restrictedCutFromForm(doubleTruncation: boolean, values: RestrictedCutFormValues): unknown {
-  if (!doubleTruncation || values.kind === 'sqrtN') return undefined;
-  return { rule: 'lambda', cut: parseNumber(values.value) };
-}
-
-export function restrictedCutToForm(cut: RestrictedCut | null | undefined): RestrictedCutFormValues {
-  return cut?.rule === 'lambda' ? { kind: 'lambda', value: String(cut.cut) } : { ...defaultRestrictedCutForm };
-}
 
 /**
  * The truncation the form proposes when the region changes: √N/(4π) in 2D, the knee in 4D (√N/(4π) is a

@@ -1,20 +1,16 @@
 import { useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
-import tailwindConfig from '../../../../tailwind.config';
 import { plotPalette } from '../../../lib/plotTheme';
 import { PageHeader, Section } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useRunDetails } from '../api/runs';
-import { Caution } from '../components/Caution';
-import { Checkbox } from '../components/Checkbox';
-import { Figure } from '../components/Figure';
+import { Caution } from '../../../ui/Caution';
+import { Checkbox } from '../../../ui/Checkbox';
+import { Figure } from '../../../ui/Figure';
 import { PlotFigure } from '../../../ui/PlotFigure';
-import { StatusLabel } from '../components/StatusLabel';
+import { StatusLabel } from '../../../ui/StatusLabel';
 import { compareTraces, logDecadeStep, tickFont, type CompareRun } from '../lib/plotData';
 import { maxCompared, parseCompareIds, runLabel } from '../lib/runIds';
-
-const colors = tailwindConfig.theme.extend.colors;
-const comparePalette = { ...plotPalette, accentDeep: colors.accent.deep, inkFaint: colors.ink.faint };
 
 export function ComparePage() {
   const [params] = useSearchParams();
@@ -68,7 +64,7 @@ export function ComparePage() {
             title="Compared spectra"
             fileName={`tacet-compare-${compared.map((r) => r.id.slice(0, 4)).join('-')}`}
             height={480}
-            data={compareTraces(compared, normalised, comparePalette)}
+            data={compareTraces(compared, normalised, plotPalette)}
             layout={{
               xaxis: { type: 'log', dtick: 1, title: { text: 'rank k' }, tickfont: tickFont, gridcolor: plotPalette.grid },
               yaxis: {

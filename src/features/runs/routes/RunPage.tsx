@@ -9,13 +9,13 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
-import { Caution, RuleCautions } from '../components/Caution';
+import { Caution, RuleCautions } from '../../../ui/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
 import { DiagnosticsTable, EntropyTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
 import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
 import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
-import { StatusLabel } from '../components/StatusLabel';
+import { StatusLabel } from '../../../ui/StatusLabel';
 import { runLabel } from '../lib/runIds';
 
 export function RunPage() {

@@ -7,11 +7,11 @@ import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
-import { describeRestrictedCutText, describeTruncationText } from '../../cutRules/lib/truncationForm';
+import { describeRestrictedCutText, describeTruncationText } from '../../../lib/truncationForm';
 import { useRuns, type RunFilters } from '../api/runs';
-import { Checkbox } from '../components/Checkbox';
-import { Figure } from '../components/Figure';
-import { StatusLabel, statusLabels } from '../components/StatusLabel';
+import { Checkbox } from '../../../ui/Checkbox';
+import { Figure } from '../../../ui/Figure';
+import { StatusLabel, statusLabels } from '../../../ui/StatusLabel';
 import { regionLabels } from '../lib/runForm';
 import { maxCompared, runLabel } from '../lib/runIds';
 

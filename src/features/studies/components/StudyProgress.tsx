@@ -1,5 +1,5 @@
 import type { StudyDetail } from '@shared/studies';
-import { StatusLabel } from '../../runs/components/StatusLabel';
+import { StatusLabel } from '../../../ui/StatusLabel';
 
 /** Overall progress (k of n sprinklings) and one mark per cell, so a stuck or failed cell is visible. */
 export function StudyProgress({ study }: { study: StudyDetail }) {

@@ -1,5 +1,5 @@
 import type { StudyAggregate, StudyFit } from '@shared/studies';
-import { Figure } from '../../runs/components/Figure';
+import { Figure } from '../../../ui/Figure';
 
 const th = 'border-b border-ink-faint px-2 py-1.5 text-left text-xs font-medium text-ink-soft';
 const td = 'border-b border-rule px-2 py-1';

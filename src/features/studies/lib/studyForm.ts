@@ -17,7 +17,7 @@ import {
   type RegionSpec,
 } from '@shared/regions';
 import { defaultTruncationFor } from '@shared/vacuum';
-import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../runs/lib/runForm';
+import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../../lib/truncationForm';
 
 /** Whether concentric sub-diamonds (ℓ/L) can be asked for on a kind: it needs a diamond of its own. */
 export const offersConcentric = (kind: RegionKind): boolean => regionDescriptors[kind].ownDiamond !== undefined;

@@ -3,7 +3,7 @@ import { formatDateTime } from '../../../lib/format';
 import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
-import { StatusLabel } from '../../runs/components/StatusLabel';
+import { StatusLabel } from '../../../ui/StatusLabel';
 import { useStudies } from '../api/studies';
 
 const th = 'border-b border-ink-faint px-2 py-1.5 text-left text-xs font-medium text-ink-soft';

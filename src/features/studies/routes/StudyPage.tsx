@@ -5,11 +5,11 @@ import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
-import { StatusLabel } from '../../runs/components/StatusLabel';
-import { regionLabels } from '../../runs/lib/runForm';
+import { StatusLabel } from '../../../ui/StatusLabel';
+import { findRegionDescriptor } from '@shared/regions';
 import { isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
-import { RuleCautions } from '../../runs/components/Caution';
+import { RuleCautions } from '../../../ui/Caution';
 import { StudyPlots } from '../components/StudyPlots';
 import { AggregateTable, FitsTable } from '../components/StudyTables';
 
@@ -45,7 +45,7 @@ export function StudyPage() {
                 </>
               )}
               {s.subregions.length} subregion{s.subregions.length === 1 ? '' : 's'} × {s.rules.length} rule{s.rules.length === 1 ? '' : 's'}
-              {s.regionKind !== 'imported' && <> · {regionLabels[s.regionKind] ?? s.regionKind}</>}
+              {s.regionKind !== 'imported' && <> · {findRegionDescriptor(s.regionKind)?.label ?? s.regionKind}</>}
             </span>
             <span>
               {s.author.name}, {formatDateTime(s.createdAt)}

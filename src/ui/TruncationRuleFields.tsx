@@ -1,5 +1,5 @@
 import type { CutRule } from '@shared/runs';
-import { SelectField, TextField } from '../../../ui/Field';
+import { SelectField, TextField } from './Field';
 import { describeTruncation, truncationKinds, truncationToForm, type TruncationFormValues } from '../lib/truncationForm';
 
 interface TruncationRuleFieldsProps {

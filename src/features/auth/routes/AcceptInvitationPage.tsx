@@ -7,10 +7,10 @@ import { Button } from '../../../ui/Button';
 import { FormError } from '../../../ui/Field';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useMe } from '../../../lib/currentUser';
-import { useSignOut } from '../../auth/api/session';
-import { AuthLayout } from '../../auth/components/AuthLayout';
-import { SignInForm } from '../../auth/components/SignInForm';
-import { SignUpForm } from '../../auth/components/SignUpForm';
+import { useSignOut } from '../api/session';
+import { AuthLayout } from '../components/AuthLayout';
+import { SignInForm } from '../components/SignInForm';
+import { SignUpForm } from '../components/SignUpForm';
 import { useAcceptInvitation, useInvitationPreview } from '../api/invitations';
 
 type Path = 'signin' | 'signup';

@@ -1,7 +1,7 @@
 import { Link } from 'react-router';
 import { describeRegion, type CausalSetSummary } from '@shared/causalSets';
-import { ErrorState, Loading } from '../../../ui/States';
-import { useCausalSets } from '../api/causalSets';
+import { ErrorState, Loading } from './States';
+import { useCausalSets } from '../features/causalSets/api/causalSets';
 
 const th = 'border-b border-rule py-1.5 pr-4 text-left text-xs font-normal tracking-wide text-ink-soft';
 const td = 'border-b border-rule/60 py-1.5 pr-4 align-baseline';

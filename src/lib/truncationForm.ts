@@ -1,4 +1,5 @@
-import type { TruncationRule } from '@shared/vacuum';
+import type { RestrictedCut, TruncationRule } from '@shared/vacuum';
+import { parseNumber } from './forms';
 
 /** The editable form of a truncation rule: its kind and the one number some kinds take, as typed. */
 export interface TruncationFormValues {
@@ -28,13 +29,6 @@ export const truncationFieldMessages: Record<string, string> = {
 };
 
 export const defaultTruncation: TruncationFormValues = { kind: 'sqrtN', value: '' };
-
-/** Parses a typed number; empty text is `undefined`, anything else that is not a number is NaN. */
-export function parseNumber(text: string): number | undefined {
-  const trimmed = text.trim();
-  if (trimmed === '') return undefined;
-  return Number(trimmed);
-}
 
 /**
  * The rule the fields describe, still unvalidated (the shared schema checks it, so a bad value gets the
@@ -110,4 +104,25 @@ export function describeTruncationText(text: string): string {
     default:
       return text;
   }
+}
+
+/** The restricted cut of double truncation as typed: √n/(4π), or a fixed λ (its number as text). */
+export interface RestrictedCutFormValues {
+  kind: RestrictedCut['rule'];
+  value: string;
+}
+
+export const defaultRestrictedCutForm: RestrictedCutFormValues = { kind: 'sqrtN', value: '' };
+
+/**
+ * The restricted cut to send: none without double truncation; √n/(4π) is the server's default, so only
+ * a fixed λ is sent (unvalidated: the shared schema names a bad number at `restrictedCut.cut`).
+ */
+export function restrictedCutFromForm(doubleTruncation: boolean, values: RestrictedCutFormValues): unknown {
+  if (!doubleTruncation || values.kind === 'sqrtN') return undefined;
+  return { rule: 'lambda', cut: parseNumber(values.value) };
+}
+
+export function restrictedCutToForm(cut: RestrictedCut | null | undefined): RestrictedCutFormValues {
+  return cut?.rule === 'lambda' ? { kind: 'lambda', value: String(cut.cut) } : { ...defaultRestrictedCutForm };
 }
