@@ -41,7 +41,8 @@ async function childRows(n: number): Promise<DenseBenchRow[]> {
   const { retardedGreen } = await import('../../server/engine/green');
   const { pauliJordan, pauliJordanSpectrum } = await import('../../server/engine/pauliJordan');
   const { applyTruncation } = await import('../../server/engine/truncation');
-  const { sjDiagnostics, sjState } = await import('../../server/engine/sjState');
+  const { sjDiagnostics } = await import('../../server/engine/sjDiagnostics');
+  const { sjState } = await import('../../server/engine/sjState');
   const { entanglementEntropy, subregionElements } = await import('../../server/engine/entropy');
   const { getBackend } = await import('../../server/engine/linalg');
   const backend = getBackend('ml-matrix');

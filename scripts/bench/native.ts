@@ -55,7 +55,8 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
   const { retardedGreenOperator } = await import('../../server/engine/green');
   const { pauliJordan, pauliJordanSpectrum } = await import('../../server/engine/pauliJordan');
   const { applyTruncation } = await import('../../server/engine/truncation');
-  const { sjState, sjDiagnostics } = await import('../../server/engine/sjState');
+  const { sjState } = await import('../../server/engine/sjState');
+  const { sjDiagnostics } = await import('../../server/engine/sjDiagnostics');
   const { entanglementEntropy, subregionElements } = await import('../../server/engine/entropy');
   const { getBackend } = await import('../../server/engine/linalg');
   const { sprinklingSpecSchema } = await import('../../shared/vacuum');

@@ -21,7 +21,8 @@ export { checkDenseSize, DENSE_SIZE_LIMIT, DENSE_SIZE_LIMITS, denseMemoryBytes, 
 export { validateVacuumRequest } from './validate';
 export type { VacuumStage } from '../../shared/vacuum';
 export type { EntropyResult } from './entropy';
-export type { SjDiagnostics, SjState } from './sjState';
+export type { SjDiagnostics } from './sjDiagnostics';
+export type { SjState } from './sjState';
 export type { KneeFit, TruncationResult } from './truncation';
 export { continuumDiamondSpectrum } from './continuum';
 export { sprinkle } from './sprinkle';

@@ -2,7 +2,8 @@ import type { RegionSpec, RestrictedCut, SprinklingSpecInput, SubregionSpec, Tru
 import type { EntropyResult } from './entropy';
 import type { BackendPreference } from './linalg';
 import type { LinearAlgebraBackend } from './linalg/backend';
-import type { SjDiagnostics, SjState } from './sjState';
+import type { SjDiagnostics } from './sjDiagnostics';
+import type { SjState } from './sjState';
 import type { Sprinkling } from './sprinkle';
 import type { EngineName, EngineRequest } from './structured/engineChoice';
 import type { KneeFit } from './truncation';

@@ -4,7 +4,8 @@ import { entanglementEntropy, subregionElements } from '../../server/engine/entr
 import { retardedGreen } from '../../server/engine/green';
 import { causalMatrix } from '../../server/engine/order';
 import { pauliJordan, pauliJordanSpectrum, type PauliJordanSpectrum } from '../../server/engine/pauliJordan';
-import { sjDiagnostics, sjState } from '../../server/engine/sjState';
+import { sjDiagnostics } from '../../server/engine/sjDiagnostics';
+import { sjState } from '../../server/engine/sjState';
 import { applyTruncation } from '../../server/engine/truncation';
 import type { DenseMatrix } from '../../server/engine/linalg/backend';
 

@@ -13,7 +13,8 @@ import { mlMatrixBackend } from '../../server/engine/linalg/mlMatrixBackend';
 import { nativeBackendStatus } from '../../server/engine/linalg/nativeBackend';
 import { causalMatrix } from '../../server/engine/order';
 import { pauliJordan, pauliJordanSpectrum, type PauliJordanSpectrum } from '../../server/engine/pauliJordan';
-import { sjDiagnostics, sjState, type SjDiagnostics, type SjState } from '../../server/engine/sjState';
+import { sjDiagnostics, type SjDiagnostics } from '../../server/engine/sjDiagnostics';
+import { sjState, type SjState } from '../../server/engine/sjState';
 import { sprinkle } from '../../server/engine/sprinkle';
 import { applyTruncation } from '../../server/engine/truncation';
 

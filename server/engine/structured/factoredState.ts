@@ -1,6 +1,7 @@
 import type { DenseMatrix, LinearAlgebraBackend } from '../linalg/backend';
 import { denseMatrix, getBackend } from '../linalg';
-import type { SjDiagnostics, SjState } from '../sjState';
+import type { SjDiagnostics } from '../sjDiagnostics';
+import type { SjState } from '../sjState';
 import type { SkewPairs } from './lanczos';
 
 /**
@@ -91,8 +92,8 @@ export function toDenseSjState(state: FactoredSjState, delta: DenseMatrix): SjSt
 
 /**
  * The checks of server/engine/README.md §5 on the factored state, in the same form as the dense engine's
- * SjDiagnostics, from the one Gram product H = FᵀF of F = [a_1, b_1, a_2, b_2, …] (O(N k²), dsyrk on
- * native) and the Lanczos residuals:
+ * `sjDiagnostics` (../sjDiagnostics.ts), from the one Gram product H = FᵀF of F = [a_1, b_1, a_2, b_2, …]
+ * (O(N k²), dsyrk on native) and the Lanczos residuals:
  * - W_c = E S E† with S = diag(σ) ≥ 0 is Hermitian and positive semidefinite by construction, and has a
  *   kernel (rank k < N): smallest eigenvalue 0 exactly, Hermiticity error 0 exactly.
  * - W − W̄ = iΔ_c holds by construction; what can fail is Δ_c = Δ on the kept span, so commutatorError is
