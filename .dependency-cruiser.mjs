@@ -1,5 +1,6 @@
 // Import boundaries of Tacet, checked by dependency-cruiser. `npm test` runs them
-// (tests/architecture/boundaries.test.ts); `npx depcruise server src shared` prints the same report.
+// (tests/architecture/boundaries.test.ts); `npx depcruise server src shared tests scripts bin` prints
+// the same report.
 // Paths are relative to the repository root. DEVELOPERS.md ("Import boundaries") says why each exists.
 
 /** Modules that do I/O: never imported by the engine. */
@@ -24,6 +25,29 @@ const workerSide = '^server/worker/';
 /** @type {import('dependency-cruiser').IConfiguration} */
 export default {
   forbidden: [
+    {
+      name: 'shared-through-its-alias',
+      severity: 'error',
+      comment:
+        "Outside shared/, import it as '@shared/<module>' (tsconfig paths, Vite's alias; tsx reads the tsconfig), " +
+        'one spelling wherever the importing file sits.',
+      from: { pathNot: '^shared/' },
+      to: { path: '^shared/', dependencyTypesNot: ['aliased-tsconfig-paths'] },
+    },
+    {
+      name: 'shared-imports-its-own-relatively',
+      severity: 'error',
+      comment: "Inside shared/, modules import each other as './<module>'.",
+      from: { path: '^shared/' },
+      to: { path: '^shared/', dependencyTypes: ['aliased'] },
+    },
+    {
+      name: 'imports-resolve',
+      severity: 'error',
+      comment: 'An import that does not resolve (a misspelt path, a bare shared/… without the alias) fails here first.',
+      from: { path: '^(server|src|shared|tests|scripts|bin)/' },
+      to: { couldNotResolve: true },
+    },
     {
       name: 'no-cycles',
       severity: 'error',
@@ -135,6 +159,8 @@ export default {
   ],
   options: {
     doNotFollow: { path: 'node_modules' },
+    // One crossing of each rule, on purpose (the boundary test cruises it on its own).
+    exclude: { path: '^tests/architecture/fixtures/' },
     // Type-only imports count for the boundaries: they couple modules too.
     tsPreCompilationDeps: true,
     tsConfig: { fileName: 'tsconfig.json' },

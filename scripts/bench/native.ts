@@ -59,7 +59,7 @@ export async function runPipeline(engine: BenchRow['engine'], N: number): Promis
   const { sjDiagnostics } = await import('../../server/engine/sjDiagnostics');
   const { entanglementEntropy, subregionElements } = await import('../../server/engine/entropy');
   const { getBackend } = await import('../../server/engine/linalg');
-  const { sprinklingSpecSchema } = await import('../../shared/vacuum');
+  const { sprinklingSpecSchema } = await import('@shared/vacuum');
 
   const backend = getBackend(engine);
   const rows: BenchRow[] = [];

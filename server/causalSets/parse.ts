@@ -1,4 +1,4 @@
-import type { RegionSpec } from '../../shared/vacuum';
+import type { RegionSpec } from '@shared/vacuum';
 import { BitRelation, causalMatrix } from '../engine/order';
 import { RelationCycleError, transitiveClosure } from '../engine/orderAlgorithms';
 import { makeRegion } from '../engine/regions';

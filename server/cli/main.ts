@@ -10,8 +10,8 @@ import {
   parseTruncationRule,
   regionSpecSchema,
   type RegionSpec,
-} from '../../shared/vacuum';
-import { findRegionDescriptor, regionDescriptors, regionKinds } from '../../shared/regions';
+} from '@shared/vacuum';
+import { findRegionDescriptor, regionDescriptors, regionKinds } from '@shared/regions';
 import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type VacuumRequest, type VacuumResult } from '../engine/index';
 import { sprinkle } from '../engine/sprinkle';
 import { ZodError } from 'zod';

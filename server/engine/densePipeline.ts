@@ -1,4 +1,4 @@
-import { ruleCautions, type SubregionSpec } from '../../shared/vacuum';
+import { ruleCautions, type SubregionSpec } from '@shared/vacuum';
 import { entanglementEntropy, subregionElements } from './entropy';
 import { EngineInputError } from './errors';
 import { retardedGreenOperator } from './green';

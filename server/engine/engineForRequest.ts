@@ -1,5 +1,5 @@
-import { isPeriodicRegionKind } from '../../shared/regions';
-import { sprinklingSpecSchema } from '../../shared/vacuum';
+import { isPeriodicRegionKind } from '@shared/regions';
+import { sprinklingSpecSchema } from '@shared/vacuum';
 import { EngineInputError } from './errors';
 import { checkDenseSize, DENSE_SIZE_LIMIT } from './limits';
 import { makeRegion } from './regions';

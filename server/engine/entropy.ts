@@ -1,4 +1,4 @@
-import type { RestrictedCut, SubregionSpec } from '../../shared/vacuum';
+import type { RestrictedCut, SubregionSpec } from '@shared/vacuum';
 import type { DenseMatrix, LinearAlgebraBackend } from './linalg/backend';
 import { denseMatrix, getBackend } from './linalg';
 import { pairedSingularValues } from './pauliJordan';

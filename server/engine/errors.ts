@@ -1,4 +1,4 @@
-import type { VacuumStage } from '../../shared/vacuum';
+import type { VacuumStage } from '@shared/vacuum';
 
 /**
  * Bad input to the engine: the message says what is wrong and is meant for the user; `field`, when

@@ -1,4 +1,4 @@
-import type { VacuumStage } from '../../shared/vacuum';
+import type { VacuumStage } from '@shared/vacuum';
 import { denseVacuum } from './densePipeline';
 import { engineAndLimit } from './engineForRequest';
 import { EngineInputError } from './errors';
@@ -19,7 +19,7 @@ export { ENGINE_VERSION, type PointSource, type VacuumHooks, type VacuumRequest,
 export { stageRunner } from './stages';
 export { checkDenseSize, DENSE_SIZE_LIMIT, DENSE_SIZE_LIMITS, denseMemoryBytes, denseSizeLimit } from './limits';
 export { validateVacuumRequest } from './validate';
-export type { VacuumStage } from '../../shared/vacuum';
+export type { VacuumStage } from '@shared/vacuum';
 export type { EntropyResult } from './entropy';
 export type { SjDiagnostics } from './sjDiagnostics';
 export type { SjState } from './sjState';

@@ -1,4 +1,4 @@
-import { regionSpecSchema, sprinklingSpecSchema } from '../../shared/vacuum';
+import { regionSpecSchema, sprinklingSpecSchema } from '@shared/vacuum';
 import { EngineInputError } from './errors';
 import { checkDenseSize } from './limits';
 import { BitRelation } from './order';

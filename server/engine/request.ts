@@ -1,4 +1,4 @@
-import type { RegionSpec, RestrictedCut, SprinklingSpecInput, SubregionSpec, TruncationRule, VacuumStage } from '../../shared/vacuum';
+import type { RegionSpec, RestrictedCut, SprinklingSpecInput, SubregionSpec, TruncationRule, VacuumStage } from '@shared/vacuum';
 import type { EntropyResult } from './entropy';
 import type { BackendPreference } from './linalg';
 import type { LinearAlgebraBackend } from './linalg/backend';

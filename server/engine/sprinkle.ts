@@ -1,5 +1,5 @@
 import seedrandom from 'seedrandom';
-import type { PrngName, SprinklingSpec } from '../../shared/vacuum';
+import type { PrngName, SprinklingSpec } from '@shared/vacuum';
 import { makeRegion, type Region } from './regions';
 
 export interface Sprinkling {

@@ -1,4 +1,4 @@
-import type { VacuumStage } from '../../shared/vacuum';
+import type { VacuumStage } from '@shared/vacuum';
 import { CancelledError } from './errors';
 import type { VacuumHooks } from './request';
 

@@ -1,4 +1,4 @@
-import type { Event, RegionSpec } from '../../shared/vacuum';
+import type { Event, RegionSpec } from '@shared/vacuum';
 import { eventText, makeRegion, numberText as show, separationX, type Region } from './regions';
 
 /** An event as flat coordinates t, x[, y, z]. */

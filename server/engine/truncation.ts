@@ -1,4 +1,4 @@
-import type { RestrictedCut, TruncationRule } from '../../shared/vacuum';
+import type { RestrictedCut, TruncationRule } from '@shared/vacuum';
 
 export interface KneeFit {
   /** the continuum-like law of the kept modes, λ_k ≈ amplitude · k^(−exponent) */

@@ -1,4 +1,4 @@
-import { regionSpecSchema, restrictedCutSchema, sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, type RegionSpec } from '../../shared/vacuum';
+import { regionSpecSchema, restrictedCutSchema, sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, type RegionSpec } from '@shared/vacuum';
 import { subregionElements } from './entropy';
 import { sizeLimitFor } from './engineForRequest';
 import { EngineInputError } from './errors';

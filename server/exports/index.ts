@@ -1,4 +1,4 @@
-import { exportFileName, exportTables, type ExportFormatOf, type ExportKind } from '../../shared/exports';
+import { exportFileName, exportTables, type ExportFormatOf, type ExportKind } from '@shared/exports';
 
 export { runRenderers, type RunExportSource } from './runs';
 export { studyRenderers, type StudyExportInput } from './studies';

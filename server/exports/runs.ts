@@ -1,5 +1,5 @@
-import type { RunExportFormat, RunSpectrumExport } from '../../shared/exports';
-import type { RunPoints } from '../../shared/runs';
+import type { RunExportFormat, RunSpectrumExport } from '@shared/exports';
+import type { RunPoints } from '@shared/runs';
 
 /** 17 significant digits: enough for every float64 to read back as the same number (IEEE 754 §5.12.2). */
 const fullPrecision = (value: number) => value.toPrecision(17);

@@ -1,7 +1,7 @@
-import type { StudyExportFormat } from '../../shared/exports';
-import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyRule, StudyStatus } from '../../shared/studies';
-import { studyRuleKey, studyRuleLabel } from '../../shared/studies';
-import { regionDimension, regionLatex } from '../../shared/regions';
+import type { StudyExportFormat } from '@shared/exports';
+import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyRule, StudyStatus } from '@shared/studies';
+import { studyRuleKey, studyRuleLabel } from '@shared/studies';
+import { regionDimension, regionLatex } from '@shared/regions';
 import {
   effectiveRestrictedCut,
   formatRestrictedCut,
@@ -9,7 +9,7 @@ import {
   restrictedCutText,
   ruleCautions,
   type RegionSpec,
-} from '../../shared/vacuum';
+} from '@shared/vacuum';
 
 /** What every export of a study is made from (the service loads it; these functions are pure). */
 export interface StudyExportInput {

@@ -1,4 +1,4 @@
-import type { RegionSpec, RestrictedCut, SprinklingSpec, SubregionSpec, TruncationRule } from '../../shared/vacuum';
+import type { RegionSpec, RestrictedCut, SprinklingSpec, SubregionSpec, TruncationRule } from '@shared/vacuum';
 import { EngineInputError, type VacuumRequest } from '../engine/index';
 
 /** Where a run's elements came from, kept in the run's stored request. */

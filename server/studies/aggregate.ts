@@ -1,4 +1,4 @@
-import type { StudyAggregate, StudyEntropy, StudyFit } from '../../shared/studies';
+import type { StudyAggregate, StudyEntropy, StudyFit } from '@shared/studies';
 
 /** Mean and sample standard deviation (n − 1 in the denominator; null for fewer than two values). */
 export function meanAndDeviation(values: number[]): { mean: number; sd: number | null } {

@@ -1,6 +1,6 @@
-import type { ResolvedSubregion, StudyRule } from '../../shared/studies';
-import { studyRuleKey } from '../../shared/studies';
-import type { RegionSpec, SprinklingSpecInput, VacuumStage } from '../../shared/vacuum';
+import type { ResolvedSubregion, StudyRule } from '@shared/studies';
+import { studyRuleKey } from '@shared/studies';
+import type { RegionSpec, SprinklingSpecInput, VacuumStage } from '@shared/vacuum';
 import { denseSpectrumStages } from '../engine/densePipeline';
 import { entanglementEntropy, subregionElements } from '../engine/entropy';
 import { CancelledError, EngineInputError } from '../engine/errors';

@@ -1,8 +1,8 @@
-import type { CreateStudyRequest, ImportedStudyRequest, ResolvedSubregion, SprinkledStudyRequest, StudyCausalSet } from '../../shared/studies';
-import { STUDY_MIN_SUBREGION_ELEMENTS, studyRuleKey, studyRuleLabel } from '../../shared/studies';
-import type { Event, RegionSpec, SprinklingSpecInput, SubregionSpec } from '../../shared/vacuum';
+import type { CreateStudyRequest, ImportedStudyRequest, ResolvedSubregion, SprinkledStudyRequest, StudyCausalSet } from '@shared/studies';
+import { STUDY_MIN_SUBREGION_ELEMENTS, studyRuleKey, studyRuleLabel } from '@shared/studies';
+import type { Event, RegionSpec, SprinklingSpecInput, SubregionSpec } from '@shared/vacuum';
 import { subregionElements } from '../engine/entropy';
-import { concentricTips, regionOwnDiamond, type DiamondTips } from '../../shared/regions';
+import { concentricTips, regionOwnDiamond, type DiamondTips } from '@shared/regions';
 import { makeRegion } from '../engine/regions';
 import { diamondPlacementIssue } from '../engine/subregionCheck';
 

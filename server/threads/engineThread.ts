@@ -1,5 +1,5 @@
 import { Worker } from 'node:worker_threads';
-import type { VacuumStage } from '../../shared/vacuum';
+import type { VacuumStage } from '@shared/vacuum';
 import { CancelledError, EngineInputError, type VacuumRequest, type VacuumResult } from '../engine/index';
 
 /** What the thread receives: the request (no backend object, the thread picks its own) and the cancel flag. */

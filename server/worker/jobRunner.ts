@@ -1,5 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq';
-import type { VacuumStage } from '../../shared/vacuum';
+import type { VacuumStage } from '@shared/vacuum';
 import * as users from '../db/repositories/users';
 import { CancelledError, EngineInputError } from '../engine/index';
 import { AbandonedError, type EngineThreadOptions } from '../threads/engineThread';

@@ -33,8 +33,8 @@ async function violations(baseDir: string, folders: string[], tsConfigFile: stri
 }
 
 describe('import boundaries', () => {
-  it('holds in server/, src/ and shared/', async () => {
-    const found = await violations(projectRoot, ['server', 'src', 'shared'], 'tsconfig.json', true);
+  it('holds in server/, src/, shared/, tests/, scripts/ and bin/', async () => {
+    const found = await violations(projectRoot, ['server', 'src', 'shared', 'tests', 'scripts', 'bin'], 'tsconfig.json', true);
     expect(found, found.join('\n')).toEqual([]);
   });
 
@@ -48,6 +48,9 @@ describe('import boundaries', () => {
         'engine-no-io: server/engine/solver.ts → fs',
         'engine-no-io: server/engine/solver.ts → server/db/store.ts',
         'feature-imports-only-shared-pieces: src/features/alpha/routes/Page.ts → src/features/beta/components/Widget.ts',
+        'imports-resolve: server/exports/bare.ts → shared/names',
+        'shared-through-its-alias: server/exports/bare.ts → shared/names',
+        'shared-through-its-alias: server/exports/table.ts → shared/names.ts',
         'no-cycles: server/engine/first.ts → server/engine/second.ts (cycle server/engine/second.ts → server/engine/first.ts)',
         'shared-pieces-stand-below-features: src/ui/Panel.ts → src/features/beta/components/Widget.ts',
         'shared-stands-alone: shared/names.ts → server/db/store.ts',

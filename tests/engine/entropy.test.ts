@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { TruncationRule } from '../../shared/vacuum';
+import type { TruncationRule } from '@shared/vacuum';
 import { computeVacuum } from '../../server/engine/index';
 import { entanglementEntropy, subregionElements } from '../../server/engine/entropy';
 import { retardedGreen } from '../../server/engine/green';

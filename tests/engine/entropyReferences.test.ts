@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { RegionSpec, SubregionSpec, TruncationRule } from '../../shared/vacuum';
+import type { RegionSpec, SubregionSpec, TruncationRule } from '@shared/vacuum';
 import { computeVacuum, type EngineName, type VacuumResult } from '../../server/engine/index';
 import { sprinkle } from '../../server/engine/sprinkle';
 import { runPython } from '../support/python';

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { CancelledError, computeVacuum, DENSE_SIZE_LIMIT, EngineInputError, validateVacuumRequest } from '../../server/engine/index';
-import { vacuumStages } from '../../shared/vacuum';
+import { vacuumStages } from '@shared/vacuum';
 
 const source = { kind: 'sprinkling' as const, sprinkling: { region: { kind: 'diamond2d' as const, properTime: 2 }, count: 120, seed: 'pipeline' } };
 

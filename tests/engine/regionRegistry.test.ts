@@ -20,7 +20,7 @@ import {
   type RegionKind,
   type RegionOptionReader,
   type RegionSpec,
-} from '../../shared/regions';
+} from '@shared/regions';
 import { makeRegion, precedes, regionGeometries } from '../../server/engine/regions';
 import { diamondPlacementIssue } from '../../server/engine/subregionCheck';
 import { diamondVolume } from '../../server/studies/plan';

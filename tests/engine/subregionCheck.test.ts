@@ -1,6 +1,6 @@
 import seedrandom from 'seedrandom';
 import { describe, expect, it } from 'vitest';
-import type { RegionSpec } from '../../shared/vacuum';
+import type { RegionSpec } from '@shared/vacuum';
 import { computeVacuum, EngineInputError, validateVacuumRequest, type VacuumRequest } from '../../server/engine/index';
 import { makeRegion, precedes, separationX } from '../../server/engine/regions';
 import { diamondPlacementIssue, elementListIssue } from '../../server/engine/subregionCheck';

@@ -1,4 +1,4 @@
-import type { RegionKind, RegionSpec, RegionSpecOf } from '../../../shared/regions';
+import type { RegionKind, RegionSpec, RegionSpecOf } from '@shared/regions';
 
 /**
  * Spacetime regions with exact volume, exact membership and their causal relation

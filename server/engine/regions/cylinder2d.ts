@@ -1,4 +1,4 @@
-import { regionDescriptors } from '../../../shared/regions';
+import { regionDescriptors } from '@shared/regions';
 import { separationX, type RegionGeometry } from './common';
 
 /**

@@ -1,4 +1,4 @@
-import { regionDescriptors } from '../../../shared/regions';
+import { regionDescriptors } from '@shared/regions';
 import { continuumDiamondSpectrum } from '../continuum';
 import type { RegionGeometry } from './common';
 

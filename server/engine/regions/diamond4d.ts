@@ -1,4 +1,4 @@
-import { regionDescriptors } from '../../../shared/regions';
+import { regionDescriptors } from '@shared/regions';
 import type { RegionGeometry } from './common';
 
 /** 4D causal diamond with tips (±τ/2, 0⃗): |x⃗| < τ/2 − |t|, volume πτ⁴/24 (server/engine/README.md §2). */

@@ -1,4 +1,4 @@
-import type { RegionKind, RegionSpec } from '../../../shared/regions';
+import type { RegionKind, RegionSpec } from '@shared/regions';
 import type { Region, RegionGeometry } from './common';
 import { cylinder2dGeometry } from './cylinder2d';
 import { diamond2dGeometry } from './diamond2d';

@@ -1,4 +1,4 @@
-import { regionDescriptors } from '../../../shared/regions';
+import { regionDescriptors } from '@shared/regions';
 import { eventText, type RegionGeometry } from './common';
 
 /** The 2D slab (rectangle) t ∈ (t₀, t₁), x ∈ (x₀, x₁), volume (t₁ − t₀)(x₁ − x₀) (server/engine/README.md §2). */

@@ -1,5 +1,5 @@
 import { restrictedEntropy, type EntropyResult } from '../entropy';
-import type { RestrictedCut } from '../../../shared/vacuum';
+import type { RestrictedCut } from '@shared/vacuum';
 import type { DenseMatrix, LinearAlgebraBackend } from '../linalg/backend';
 import { denseMatrix, getBackend } from '../linalg';
 import type { FactoredSjState } from './factoredState';

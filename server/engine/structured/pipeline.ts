@@ -1,4 +1,4 @@
-import type { SubregionSpec, TruncationRule } from '../../../shared/vacuum';
+import type { SubregionSpec, TruncationRule } from '@shared/vacuum';
 import { subregionElements } from '../entropy';
 import { EngineInputError } from '../errors';
 import type { LinearAlgebraBackend } from '../linalg/backend';

@@ -1,5 +1,5 @@
-import { createStudyRequestSchema, type StudyCausalSet } from '../../../shared/studies';
-import type { VacuumStage } from '../../../shared/vacuum';
+import { createStudyRequestSchema, type StudyCausalSet } from '@shared/studies';
+import type { VacuumStage } from '@shared/vacuum';
 import { decodeFloat64, decodeRelationWords, encodeFloat64 } from '../../db/codecs';
 import * as studies from '../../db/repositories/studies';
 import type { StudyCellRow, StudyRow } from '../../db/study-entities';

@@ -1,4 +1,4 @@
-import { entropyRuleLabel, vacuumStages, type VacuumStage } from '../../../shared/vacuum';
+import { entropyRuleLabel, vacuumStages, type VacuumStage } from '@shared/vacuum';
 import { decodeFloat64, decodeRelationWords } from '../../db/codecs';
 import * as runs from '../../db/repositories/runs';
 import type { RunRow } from '../../db/run-entities';
