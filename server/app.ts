@@ -20,16 +20,16 @@ import { outboxRoutes } from './api/routes/outbox';
 import { runRoutes } from './api/routes/runs';
 import { studyRoutes } from './api/routes/studies';
 import { teamRoutes } from './api/routes/team';
-import { createApiTokenService } from './api/services/api-token-service';
-import { createAuthService } from './api/services/auth-service';
-import { createCausalSetService } from './api/services/causal-set-service';
-import { createCutRuleService } from './api/services/cut-rule-service';
-import { createHealthService } from './api/services/health-service';
-import { createInvitationService } from './api/services/invitation-service';
-import { createOutboxService } from './api/services/outbox-service';
-import { createRunService } from './api/services/run-service';
-import { createStudyService } from './api/services/study-service';
-import { createTeamService } from './api/services/team-service';
+import { createApiTokenService } from './api/services/apiTokens';
+import { createAuthService } from './api/services/auth';
+import { createCausalSetService } from './api/services/causalSets';
+import { createCutRuleService } from './api/services/cutRules';
+import { createHealthService } from './api/services/health';
+import { createInvitationService } from './api/services/invitations';
+import { createOutboxService } from './api/services/outbox';
+import { createRunService } from './api/services/runs';
+import { createStudyService } from './api/services/studies';
+import { createTeamService } from './api/services/team';
 
 export type { AppDeps } from './api/context';
 

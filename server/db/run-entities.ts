@@ -37,7 +37,7 @@ export interface RunRow {
   stage: VacuumStage | null;
   percent: number;
   cancelRequested: boolean;
-  /** the validated request (see run-service for the re-analysis form) */
+  /** the validated request (see server/runs/request.ts for the re-analysis form) */
   request: Record<string, unknown>;
   dimension: 2 | 4;
   regionKind: string;

@@ -3,8 +3,8 @@ import { sessionCookieName, teamHeaderName } from '@shared/headers';
 import { roleAllows, type Permission } from '@shared/roles';
 import { forbidden, notFound, unauthorized } from '../errors';
 import { checkCsrf } from './csrf';
-import type { AuthService } from '../services/auth-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { TeamService } from '../services/team';
 
 function tokenFrom(req: Parameters<RequestHandler>[0]): { token: string; source: 'bearer' | 'cookie' } | null {
   const header = req.get('authorization');

@@ -2,8 +2,8 @@ import { Router } from 'express';
 import { createApiTokenRequestSchema } from '@shared/apiTokens';
 import { requireAuth } from '../context';
 import { authenticate, requireSession } from '../middleware/auth';
-import type { ApiTokenService } from '../services/api-token-service';
-import type { AuthService } from '../services/auth-service';
+import type { ApiTokenService } from '../services/apiTokens';
+import type { AuthService } from '../services/auth';
 
 /** The signed-in user's personal API tokens: list, create (secret shown once), revoke. */
 export function apiTokenRoutes(deps: { auth: AuthService; apiTokens: ApiTokenService }): Router {

@@ -12,7 +12,7 @@ import { requireAuth } from '../context';
 import { authenticate } from '../middleware/auth';
 import { setCsrfCookie } from '../middleware/csrf';
 import { loginRateLimit, passwordResetRateLimit } from '../middleware/rate-limit';
-import type { AuthService } from '../services/auth-service';
+import type { AuthService } from '../services/auth';
 
 function cookieOptions(config: Config) {
   return {

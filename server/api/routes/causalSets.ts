@@ -5,9 +5,9 @@ import { CausalSetFileError } from '../../causalSets/parse';
 import { requireAuth, requireTeam } from '../context';
 import { badRequest, HttpError } from '../errors';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { CausalSetService } from '../services/causal-set-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { CausalSetService } from '../services/causalSets';
+import type { TeamService } from '../services/team';
 
 function formatBytes(bytes: number): string {
   if (bytes >= 1024 * 1024 && bytes % (1024 * 1024) === 0) return `${bytes / (1024 * 1024)} MiB`;

@@ -1,9 +1,9 @@
 import { Router } from 'express';
 import { requireAuth, requireTeam } from '../context';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { CutRuleService } from '../services/cut-rule-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { CutRuleService } from '../services/cutRules';
+import type { TeamService } from '../services/team';
 
 /** The current team's saved truncation rules. */
 export function cutRuleRoutes(deps: { auth: AuthService; teams: TeamService; cutRules: CutRuleService }): Router {

@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import type { HealthService } from '../services/health-service';
+import type { HealthService } from '../services/health';
 
 export function healthRoutes(deps: { health: HealthService }): Router {
   const router = Router();

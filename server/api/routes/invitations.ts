@@ -1,8 +1,8 @@
 import { Router } from 'express';
 import { requireAuth } from '../context';
 import { authenticate } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { InvitationService } from '../services/invitation-service';
+import type { AuthService } from '../services/auth';
+import type { InvitationService } from '../services/invitations';
 
 /** Invitation links as the invited person sees them: a public preview, then acceptance once signed in. */
 export function invitationRoutes(deps: { auth: AuthService; invitations: InvitationService }): Router {

@@ -4,9 +4,9 @@ import { listRunsQuerySchema } from '@shared/runs';
 import { requireAuth, requireTeam } from '../context';
 import { sendExportFile } from '../exportResponse';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { RunService } from '../services/run-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { RunService } from '../services/runs';
+import type { TeamService } from '../services/team';
 
 /** Vacuum runs of the current team; other teams' ids answer 404 like missing ones. */
 export function runRoutes(deps: { auth: AuthService; teams: TeamService; runs: RunService }): Router {

@@ -3,9 +3,9 @@ import { studyExportQuerySchema } from '@shared/exports';
 import { requireAuth, requireTeam } from '../context';
 import { sendExportFile } from '../exportResponse';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { StudyService } from '../services/study-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { StudyService } from '../services/studies';
+import type { TeamService } from '../services/team';
 
 /** Scaling studies of the current team; other teams' ids answer 404 like missing ones. */
 export function studyRoutes(deps: { auth: AuthService; teams: TeamService; studies: StudyService }): Router {

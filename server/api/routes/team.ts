@@ -2,9 +2,9 @@ import { Router } from 'express';
 import { changeRoleRequestSchema, createInvitationRequestSchema, renameTeamRequestSchema } from '@shared/teams';
 import { requireAuth, requireTeam } from '../context';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
-import type { AuthService } from '../services/auth-service';
-import type { InvitationService } from '../services/invitation-service';
-import type { TeamService } from '../services/team-service';
+import type { AuthService } from '../services/auth';
+import type { InvitationService } from '../services/invitations';
+import type { TeamService } from '../services/team';
 
 /** The current team (x-tacet-team), its members and its invitations. */
 export function teamRoutes(deps: { auth: AuthService; teams: TeamService; invitations: InvitationService }): Router {

@@ -3,15 +3,15 @@ import jwt from 'jsonwebtoken';
 import type { DataSource } from 'typeorm';
 import type { LoginRequest, MeResponse, SignupRequest, User } from '@shared/auth';
 import type { Config } from '../../config';
-import * as passwordResets from '../../db/repositories/password-resets';
+import * as passwordResets from '../../db/repositories/passwordResets';
 import * as sessions from '../../db/repositories/sessions';
 import * as teams from '../../db/repositories/teams';
 import * as users from '../../db/repositories/users';
 import type { Mailer } from '../../mail/mailer';
 import type { AuthContext } from '../context';
 import { badRequest, conflict, unauthorized } from '../errors';
-import { createApiTokenService, looksLikeApiToken } from './api-token-service';
-import type { InvitationService } from './invitation-service';
+import { createApiTokenService, looksLikeApiToken } from './apiTokens';
+import type { InvitationService } from './invitations';
 import { toUser } from './serializers';
 import { hashLinkToken, newLinkToken } from './tokens';
 

@@ -15,7 +15,7 @@ import { decodeFloat64, decodeInt32, decodeRelationWords } from '../../db/codecs
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
-import { loadCausalSetRunInput } from './causal-set-service';
+import { loadCausalSetRunInput } from './causalSets';
 import { EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
 import { continuumSpectrumFor } from '../../engine/regions';
 import { discardJob, enqueueJob, vacuumRunJobId } from '../../queue/jobs';

@@ -10,7 +10,7 @@ import {
 } from '@shared/causalSets';
 import { importValuesOffThread } from '../../causalSets/importFile';
 import { decodeFloat64, decodeRelationWords, decompressBytes, encodeFloat64 } from '../../db/codecs';
-import * as causalSets from '../../db/repositories/causal-sets';
+import * as causalSets from '../../db/repositories/causalSets';
 import type { UserRow } from '../../db/entities';
 import { DENSE_SIZE_LIMIT } from '../../engine/index';
 import type { CausalSetReference } from '../../runs/request';

@@ -1,6 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { createCutRuleRequestSchema, type CutRule } from '@shared/runs';
-import * as cutRules from '../../db/repositories/cut-rules';
+import * as cutRules from '../../db/repositories/cutRules';
 import type { UserRow } from '../../db/entities';
 import type { TeamContext } from '../context';
 import { conflict, notFound } from '../errors';

@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto';
 import type { DataSource } from 'typeorm';
 import { apiTokenPrefix, type ApiToken, type CreateApiTokenRequest, type CreatedApiToken } from '@shared/apiTokens';
-import * as apiTokens from '../../db/repositories/api-tokens';
+import * as apiTokens from '../../db/repositories/apiTokens';
 import * as teams from '../../db/repositories/teams';
 import * as users from '../../db/repositories/users';
 import type { UserRow } from '../../db/entities';
