@@ -10,17 +10,11 @@ import {
   truncationToForm,
 } from '../../src/lib/truncationForm';
 import { AUTO_STRUCTURED_FROM, STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
+import { denseLimitN, denseLimits, engineNote, reanalyseEngineNote, sizeHint } from '../../src/features/runs/lib/engineNotes';
+import { initialReanalyseValues, reanalyseRequestFromForm, type ReanalyseFormValues } from '../../src/features/runs/lib/reanalyseForm';
 import {
   defaultRunForm,
-  denseLimitN,
-  engineNote,
-  sizeHint,
-  denseLimits,
-  initialReanalyseValues,
   insideFutureLightCone,
-  reanalyseEngineNote,
-  reanalyseRequestFromForm,
-  type ReanalyseFormValues,
   runRequestFromForm,
   serverFieldErrors,
   type RunFormValues,

@@ -1,8 +1,7 @@
-import { AUTO_STRUCTURED_FROM, chooseEngine, sizeLimitForRequest, STRUCTURED_MAX_N_2D, type EngineRequest } from '@shared/engineChoice';
-import { createRunRequestSchema, reanalyseRunRequestSchema, type CreateRunRequest, type ReanalyseRunRequest } from '@shared/runs';
+import { STRUCTURED_MAX_N_2D, type EngineRequest } from '@shared/engineChoice';
+import { createRunRequestSchema, type CreateRunRequest } from '@shared/runs';
 import {
   defaultRegionKind,
-  isPeriodicRegionKind,
   regionDefaultSubDiamond,
   regionDimension,
   regionFieldDefaults,
@@ -15,29 +14,20 @@ import {
   type RegionFieldValues,
   type RegionKind,
 } from '@shared/regions';
-import { defaultTruncationFor, type PrngName, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
+import { defaultTruncationFor, type PrngName } from '@shared/vacuum';
 import type { z } from 'zod';
 import { parseNumber, type FieldErrors } from '../../../lib/forms';
 import {
   defaultRestrictedCutForm,
   defaultTruncation,
   restrictedCutFromForm,
-  restrictedCutToForm,
   truncationFieldMessages,
   truncationFromForm,
   truncationToForm,
   type RestrictedCutFormValues,
   type TruncationFormValues,
 } from '../../../lib/truncationForm';
-
-/**
- * Largest N the server's dense engine accepts, per linear-algebra backend (server/engine
- * DENSE_SIZE_LIMITS; a unit test keeps the two equal). Until GET /api/limits says which backend the
- * server runs, the form refuses only what no server takes and states both; the server's 422 has the
- * last word.
- */
-export const denseLimits = { native: 6000, 'ml-matrix': 3000 } as const;
-export const denseLimitN = Math.max(...Object.values(denseLimits));
+import { capitalise, denseLimitN, denseLimits, engineLimitOf } from './engineNotes';
 
 /**
  * The truncation the form proposes when the region changes: √N/(4π) in 2D, the knee in 4D (√N/(4π) is a
@@ -137,7 +127,7 @@ const runRegionLabels: Record<RegionKind | 'imported', string> = { ...regionKind
 export const regionLabels: Readonly<Record<string, string>> = runRegionLabels;
 
 /** Numbers typed into the form, with the path each goes to; text that is no number is reported here. */
-class NumberReader {
+export class NumberReader {
   readonly errors: FieldErrors = {};
   read(text: string, path: string): number | undefined {
     const value = parseNumber(text);
@@ -187,7 +177,7 @@ export function fieldForIssuePath(path: string): string {
   return path;
 }
 
-function humanise(errors: FieldErrors): FieldErrors {
+export function humanise(errors: FieldErrors): FieldErrors {
   const out: FieldErrors = {};
   for (const [rawPath, message] of Object.entries(errors)) {
     const path = fieldForIssuePath(rawPath);
@@ -199,7 +189,7 @@ function humanise(errors: FieldErrors): FieldErrors {
   return out;
 }
 
-function schemaErrors(issues: z.core.$ZodIssue[]): FieldErrors {
+export function schemaErrors(issues: z.core.$ZodIssue[]): FieldErrors {
   const errors: FieldErrors = {};
   for (const issue of issues) {
     const path = issue.path.map(String).join('.') || 'form';
@@ -227,7 +217,7 @@ export function insideFutureLightCone(past: TipNumbers, future: TipNumbers): boo
 const lightConeMessage =
   'The future tip must lie strictly inside the future light cone of the past tip (Δt greater than the spatial distance), or the subregion is empty.';
 
-function subregionFromForm(reader: NumberReader, v: RunFormValues, dimension: 2 | 4) {
+export function subregionFromForm(reader: NumberReader, v: RunFormValues, dimension: 2 | 4) {
   return { kind: 'diamond', past: tip(reader, v.past, 'subregion.past', dimension), future: tip(reader, v.future, 'subregion.future', dimension) };
 }
 
@@ -239,7 +229,7 @@ function finiteTip(tip: unknown): tip is TipNumbers {
  * Checks what the shared schema cannot: the subregion's tips are causally ordered. Done on the typed
  * numbers, so the message shows together with any other field's.
  */
-function subregionLightConeError(subregion: unknown): FieldErrors {
+export function subregionLightConeError(subregion: unknown): FieldErrors {
   const diamond = subregion as { past?: unknown; future?: unknown } | undefined;
   if (!diamond || !finiteTip(diamond.past) || !finiteTip(diamond.future)) return {};
   if (insideFutureLightCone(diamond.past, diamond.future)) return {};
@@ -348,145 +338,6 @@ export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN,
           : `N = ${count} is above the structured limit of ${limit.maxN} elements (the truncated state alone is N × 2k numbers, k ≈ 2√N).`;
   }
   Object.assign(errors, subregionLightConeError(candidate.subregion));
-  if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
-  return { ok: true, request: parsed.data };
-}
-
-const capitalise = (text: string) => text.charAt(0).toUpperCase() + text.slice(1);
-/** The engine choice reads only the kind of rule, never its number, so a half-typed cut still tells. */
-const ruleOnly = (v: RunFormValues) => ({ rule: v.truncation.kind }) as TruncationRule;
-
-/**
- * The engine the shared rule (shared/engineChoice.ts) would consider for the form's settings and the
- * size limit that follows: the structured limit for 2D non-periodic regions with a sqrtN, lambda or
- * modes cut (unless dense is forced), the dense limit `denseMaxN` otherwise.
- */
-export function engineLimitOf(v: RunFormValues, denseMaxN: number = denseLimitN): ReturnType<typeof sizeLimitForRequest> {
-  return sizeLimitForRequest({
-    dimension: regionDimension(v.regionKind),
-    truncation: ruleOnly(v),
-    requested: v.engine,
-    denseMaxN,
-    periodic: isPeriodicRegionKind(v.regionKind),
-  });
-}
-
-/** The hint beside N: the range the current settings allow, and which engine's limit that is. */
-export function sizeHint(v: RunFormValues, denseMaxN: number = denseLimitN): string {
-  const limit = engineLimitOf(v, denseMaxN);
-  if (limit.maxN === 0) return `The structured engine cannot take these settings; the dense one takes 2 to ${denseMaxN}.`;
-  if (limit.engine === 'dense') return `2 to ${limit.maxN} (dense engine${v.engine === 'dense' ? ', forced' : ''}).`;
-  const forced = v.engine === 'structured' ? 'forced' : `auto uses it from N = ${AUTO_STRUCTURED_FROM}`;
-  return `2 to ${limit.maxN} (structured engine, ${forced}; the dense one takes up to ${denseMaxN}).`;
-}
-
-/**
- * What the engine choice does with the settings as typed, in one sentence for the form (the rule of
- * shared/engineChoice.ts, so the run page says the same afterwards), or why the settings cannot run.
- */
-export function engineNote(v: RunFormValues, denseMaxN: number = denseLimitN, picked: PickedCausalSet | null = null): string {
-  if (v.source === 'imported') {
-    if (picked?.kind === 'relations') return relationListEngineNote;
-    return 'The server applies the same rule to the set’s own region and size; the run page says which engine ran.';
-  }
-  const N = Number(v.count);
-  if (!Number.isInteger(N) || N < 2 || (v.process === 'poisson' && v.sizeBy === 'density')) {
-    return `The engine follows from N: structured for 2D cuts from N = ${AUTO_STRUCTURED_FROM}, dense otherwise.`;
-  }
-  return engineChoiceText({ N, dimension: regionDimension(v.regionKind), truncation: ruleOnly(v), requested: v.engine, denseMaxN, periodic: isPeriodicRegionKind(v.regionKind) });
-}
-
-const relationListEngineNote = 'A relation list runs on the dense engine: it has no coordinates to sweep.';
-
-/** The engine the shared rule picks, in one sentence, or why it refuses (both run forms show this). */
-function engineChoiceText(input: Parameters<typeof chooseEngine>[0]): string {
-  try {
-    const choice = chooseEngine(input);
-    if (choice.engine === 'dense') return `Dense engine (${choice.reason}); it computes the whole spectrum.`;
-    if (choice.reason.includes('only the modes above the cut')) return `Structured engine (${choice.reason}).`;
-    return `Structured engine (${choice.reason}): only the modes above the cut are computed.`;
-  } catch (error) {
-    return `${capitalise((error as Error).message)}.`;
-  }
-}
-
-/** The re-analysis form: another truncation, subregion, mass or title for the same points. */
-export interface ReanalyseFormValues {
-  title: string;
-  mass: string;
-  truncation: TruncationFormValues;
-  withSubregion: boolean;
-  past: TipValues;
-  future: TipValues;
-  doubleTruncation: boolean;
-  restrictedCut: RestrictedCutFormValues;
-  engine: EngineRequest;
-}
-
-interface StoredSettings {
-  mass?: number;
-  truncation?: TruncationRule;
-  doubleTruncation?: boolean;
-  restrictedCut?: RestrictedCut;
-  engine?: EngineRequest;
-  subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number> } | null;
-}
-
-function tipValues(tip: Record<string, number> | undefined, fallback: TipValues): TipValues {
-  if (!tip) return fallback;
-  return { t: String(tip.t ?? ''), x: String(tip.x ?? ''), y: String(tip.y ?? '0'), z: String(tip.z ?? '0') };
-}
-
-/** Starts from the run's own settings, so only what is changed differs in the new run. */
-export function initialReanalyseValues(request: unknown): ReanalyseFormValues {
-  const stored = (request ?? {}) as StoredSettings;
-  const defaults = defaultRunForm('');
-  const diamond = stored.subregion?.kind === 'diamond' ? stored.subregion : null;
-  return {
-    title: '',
-    mass: String(stored.mass ?? 0),
-    truncation: stored.truncation ? truncationToForm(stored.truncation) : { ...defaultTruncation },
-    withSubregion: diamond !== null,
-    past: tipValues(diamond?.past, defaults.past),
-    future: tipValues(diamond?.future, defaults.future),
-    doubleTruncation: stored.doubleTruncation ?? false,
-    restrictedCut: restrictedCutToForm(stored.restrictedCut),
-    engine: stored.engine ?? 'auto',
-  };
-}
-
-/** What the re-analysed run is: its size, dimension and whether it has coordinates to sweep. */
-export interface ReanalysedRun {
-  N: number;
-  dimension: 2 | 4;
-  periodic: boolean;
-  /** an imported relation list: no coordinates, so the dense engine only */
-  relationOnly: boolean;
-}
-
-/** The engine the rule picks for the re-analysis as typed, or why it cannot run; same rule as the server. */
-export function reanalyseEngineNote(v: ReanalyseFormValues, run: ReanalysedRun, denseMaxN: number = denseLimitN): string {
-  if (run.relationOnly && v.engine !== 'structured') return relationListEngineNote;
-  if (run.relationOnly) return 'The structured engine needs coordinates; a relation list runs on the dense engine only.';
-  const truncation = { rule: v.truncation.kind } as TruncationRule;
-  return engineChoiceText({ N: run.N, dimension: run.dimension, truncation, requested: v.engine, denseMaxN, periodic: run.periodic });
-}
-
-export function reanalyseRequestFromForm(v: ReanalyseFormValues, dimension: 2 | 4): Checked<ReanalyseRunRequest> {
-  const reader = new NumberReader();
-  const candidate: Record<string, unknown> = {
-    mass: reader.read(v.mass, 'mass') ?? 0,
-    truncation: truncationFromForm(v.truncation),
-    subregion: v.withSubregion ? subregionFromForm(reader, { ...defaultRunForm(''), ...v }, dimension) : null,
-    doubleTruncation: v.withSubregion && v.doubleTruncation,
-    // null: the default √n/(4π), so a parent's fixed λ does not carry over once the form shows √n/(4π)
-    restrictedCut: v.withSubregion && v.doubleTruncation ? (restrictedCutFromForm(true, v.restrictedCut) ?? null) : undefined,
-    engine: v.engine,
-  };
-  if (v.title.trim()) candidate.title = v.title.trim();
-  const parsed = reanalyseRunRequestSchema.safeParse(candidate);
-  const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
-  if (candidate.subregion) Object.assign(errors, subregionLightConeError(candidate.subregion));
   if (!parsed.success || Object.keys(errors).length > 0) return { ok: false, errors };
   return { ok: true, request: parsed.data };
 }

@@ -16,15 +16,12 @@ import { useEngineLimits } from '../api/limits';
 import { useCreateRun } from '../api/runs';
 import { EngineFields } from '../components/EngineFields';
 import { SubregionFields } from '../components/SubregionFields';
+import { denseLimitN, denseLimits, engineNote, sizeHint } from '../lib/engineNotes';
 import {
   defaultRunForm,
-  denseLimitN,
-  denseLimits,
-  engineNote,
   newSeed,
   regionDimension,
   runRequestFromForm,
-  sizeHint,
   truncationForRegionChange,
   type PickedCausalSet,
   type RunFormValues,

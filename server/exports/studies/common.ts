@@ -1,0 +1,81 @@
+import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyStatus } from '@shared/studies';
+import { regionDimension, regionLatex } from '@shared/regions';
+import { ruleCautions, type RegionSpec } from '@shared/vacuum';
+
+/** What every export of a study is made from (the service loads it; these functions are pure). */
+export interface StudyExportInput {
+  id: string;
+  title: string | null;
+  status: StudyStatus;
+  author: string;
+  createdAt: string;
+  finishedAt: string | null;
+  request: CreateStudyRequest;
+  /** the imported causal sets of a study over them, in cell order; empty for sprinklings */
+  causalSets: StudyCausalSet[];
+  subregions: ResolvedSubregion[];
+  entropies: StudyEntropy[];
+  aggregates: StudyAggregate[];
+  fits: StudyFit[];
+  cells: {
+    id: string;
+    N: number;
+    seed: string;
+    status: string;
+    elements: number | null;
+    backend: string | null;
+    engineVersion: string | null;
+    startedAt: string | null;
+    finishedAt: string | null;
+    timings: Record<string, number> | null;
+    states: { rule: string; cutoff: number; modesKept: number }[] | null;
+    error: string | null;
+  }[];
+}
+
+/** The dimension of the study's regions: its region's, or that of its imported sets. */
+export function studyDimension(input: Pick<StudyExportInput, 'request' | 'causalSets'>): 2 | 4 {
+  if (input.request.source === 'sprinkled') return regionDimension(input.request.region.kind);
+  return input.causalSets.some((c) => c.dimension === 4) ? 4 : 2;
+}
+
+/** The cautions of every rule of the study (shared/vacuum.ts ruleCautions), without repeats. */
+export function studyCautions(input: Pick<StudyExportInput, 'request' | 'causalSets'>): string[] {
+  const dimension = studyDimension(input);
+  return [...new Set(input.request.rules.flatMap((r) => ruleCautions(dimension, r)))];
+}
+
+/** Escapes LaTeX's special characters in running text. */
+export function escapeLatex(text: string): string {
+  return text.replace(/[\\{}&%$#_~^]/g, (c) => {
+    switch (c) {
+      case '\\':
+        return '\\textbackslash{}';
+      case '~':
+        return '\\textasciitilde{}';
+      case '^':
+        return '\\textasciicircum{}';
+      default:
+        return `\\${c}`;
+    }
+  })
+    .replace(/ℓ/g, '$\\ell$')
+    .replace(/√/g, '$\\surd$')
+    .replace(/π/g, '$\\pi$')
+    .replace(/λ/g, '$\\lambda$')
+    .replace(/≤/g, '$\\leq$')
+    .replace(/–/g, '--');
+}
+
+/**
+ * A value with its uncertainty, the uncertainty to two significant digits and the value to the same
+ * decimal place (common practice): 1.86431, 0.03124 → "1.864 \pm 0.031". Without an uncertainty,
+ * four significant digits.
+ */
+export function formatWithUncertainty(value: number, error: number | null): string {
+  if (error === null || !(error > 0) || !Number.isFinite(error)) return Number(value.toPrecision(4)).toString();
+  const decimals = Math.max(0, 1 - Math.floor(Math.log10(error)));
+  return `${value.toFixed(decimals)} \\pm ${error.toFixed(decimals)}`;
+}
+
+export const regionText = (region: RegionSpec): string => regionLatex(region);
