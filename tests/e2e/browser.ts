@@ -5,7 +5,7 @@ import type { AddressInfo } from 'node:net';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { createApp } from '../../server/app';
-import { seedDemoTeam } from '../../server/db/demo-team';
+import { demoPassword, seedDemoTeam } from '../../server/db/demo-team';
 import { createTestContext, type TestContext } from '../support/app';
 import { buildClient } from '../support/clientBuild';
 
@@ -82,4 +82,16 @@ export async function startApp(): Promise<RunningApp> {
 
 export function screenshot(page: Page, name: string): Promise<Buffer> {
   return page.screenshot({ path: join(screenshotDir, `${name}.png`), fullPage: true });
+}
+
+/** Signs a demo-team member in on a fresh 1280 × 900 context; the start page is the runs table. */
+export async function signIn(running: RunningApp, email: string): Promise<Page> {
+  const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 }, acceptDownloads: true });
+  const page = await context.newPage();
+  await page.goto(`${running.baseUrl}/signin`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(demoPassword);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL('**/runs');
+  return page;
 }

@@ -1,25 +1,11 @@
 import { readFile } from 'node:fs/promises';
 import type { Worker } from 'bullmq';
-import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { demoPassword } from '../../server/db/demo-team';
 import { startComputeWorker } from '../../server/worker/worker';
-import { screenshot, startApp, type RunningApp } from './browser';
+import { screenshot, signIn, startApp, type RunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
 const viewer = 'mira.castellanos@tacet.example';
-
-async function signIn(running: RunningApp, email: string): Promise<Page> {
-  const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 }, acceptDownloads: true });
-  const page = await context.newPage();
-  await page.goto(`${running.baseUrl}/signin`);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(demoPassword);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  // The start page is the runs table.
-  await page.waitForURL('**/runs');
-  return page;
-}
 
 describe('a vacuum run in the browser', () => {
   let running: RunningApp;

@@ -1,19 +1,7 @@
 import type { Worker } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { demoPassword } from '../../server/db/demo-team';
 import { startComputeWorker } from '../../server/worker/worker';
-import { screenshot, startApp, type RunningApp } from './browser';
-
-async function signIn(running: RunningApp) {
-  const context = await running.browser.newContext({ viewport: { width: 1280, height: 900 } });
-  const page = await context.newPage();
-  await page.goto(`${running.baseUrl}/signin`);
-  await page.getByLabel('E-mail').fill('tomas.okafor@tacet.example');
-  await page.getByLabel('Password').fill(demoPassword);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL('**/runs');
-  return { context, page };
-}
+import { screenshot, signIn, startApp, type RunningApp } from './browser';
 
 /**
  * The restricted cut of double truncation and the 4D caution, as a researcher meets them in the browser:
@@ -36,7 +24,8 @@ describe('truncation rules in the browser: restricted cut, 4D caution, knee', ()
   });
 
   it('a 4D run with √N/4π and a fixed restricted λ shows both on its page', async () => {
-    const { context, page } = await signIn(running);
+    const page = await signIn(running, 'tomas.okafor@tacet.example');
+    const context = page.context();
     const pageErrors: string[] = [];
     page.on('pageerror', (error) => pageErrors.push(error.message));
 
@@ -75,7 +64,8 @@ describe('truncation rules in the browser: restricted cut, 4D caution, knee', ()
   }, 150_000);
 
   it('a 2D knee run draws the knee, its tolerance band and the fitted law on the spectrum', async () => {
-    const { context, page } = await signIn(running);
+    const page = await signIn(running, 'tomas.okafor@tacet.example');
+    const context = page.context();
     await page.goto(`${running.baseUrl}/runs/new`);
     await page.getByLabel('Truncation rule').selectOption('knee');
     await page.getByLabel('N (elements)').fill('1000');

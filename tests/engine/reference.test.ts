@@ -8,6 +8,7 @@ import { sjDiagnostics } from '../../server/engine/sjDiagnostics';
 import { sjState } from '../../server/engine/sjState';
 import { applyTruncation } from '../../server/engine/truncation';
 import type { DenseMatrix } from '../../server/engine/linalg/backend';
+import { diamond300Points } from '../support/diamond300';
 
 // Source of every value checked here: fixtures/diamond300.ref.json, computed by numpy 1.24.2 with LAPACK
 // (Debian python3-numpy/scipy) on exactly the points of fixtures/diamond300.csv (see fixtures/README.md).
@@ -25,13 +26,7 @@ interface Reference {
 }
 
 const ref: Reference = JSON.parse(readFileSync(new URL('../../fixtures/diamond300.ref.json', import.meta.url), 'utf8'));
-const points = Float64Array.from(
-  readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url), 'utf8')
-    .trim()
-    .split('\n')
-    .slice(1)
-    .flatMap((line) => line.split(',').map(Number)),
-);
+const points = diamond300Points();
 const subregion = { kind: 'diamond' as const, past: { t: -Math.SQRT1_2, x: 0 }, future: { t: Math.SQRT1_2, x: 0 } };
 
 let delta: DenseMatrix;

@@ -1,8 +1,8 @@
-import { readFileSync } from 'node:fs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { studyRuleKey, studyRuleLabel, studyRuleSchema } from '@shared/studies';
 import { entropyRuleLabel, parseRestrictedCut, ruleCautions } from '@shared/vacuum';
 import { computeVacuum, EngineInputError, validateVacuumRequest } from '../../server/engine/index';
+import { diamond300Points, diamond300Reference } from '../support/diamond300';
 import { runPython } from '../support/python';
 
 // The second cut of double truncation as a setting of its own (Sorkin–Yazdi 2018, CQG 35 074004: after
@@ -10,18 +10,12 @@ import { runPython } from '../support/python';
 // |λ| ≤ √n/(4π)). Outside references: fixtures/diamond300.ref.json (numpy 1.24.2 + LAPACK on the
 // points of fixtures/diamond300.csv, see fixtures/README.md) and an independent numpy computation below.
 
-const points = Float64Array.from(
-  readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url), 'utf8')
-    .trim()
-    .split('\n')
-    .slice(1)
-    .flatMap((line) => line.split(',').map(Number)),
-);
-const ref = JSON.parse(readFileSync(new URL('../../fixtures/diamond300.ref.json', import.meta.url), 'utf8')) as {
+const points = diamond300Points();
+const ref = diamond300Reference<{
   N: number;
   n_sub: number;
   S_double_truncated: number;
-};
+}>();
 const subregion = { kind: 'diamond' as const, past: { t: -Math.SQRT1_2, x: 0 }, future: { t: Math.SQRT1_2, x: 0 } };
 const source = { kind: 'points' as const, points, dimension: 2 as const, region: { kind: 'diamond2d' as const, properTime: 2 * Math.SQRT2 } };
 

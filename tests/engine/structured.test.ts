@@ -16,6 +16,7 @@ import { factoredEntropy } from '../../server/engine/structured/factoredEntropy'
 import { applyWightman, factoredState, factoredTrace } from '../../server/engine/structured/factoredState';
 import { topSkewPairs } from '../../server/engine/structured/lanczos';
 import { computeVacuum, EngineInputError } from '../../server/engine';
+import { diamond300Points } from '../support/diamond300';
 
 function denseDelta(points: Float64Array, mass = 0, density?: number): DenseMatrix {
   return pauliJordan(retardedGreen({ points, dimension: 2, causal: causalMatrix(points, 2), mass, density }));
@@ -74,13 +75,7 @@ describe('2D dominance-sum operator against the brute-force dense Δ (common pra
 // Source: fixtures/diamond300.ref.json — numpy 1.24.2 / LAPACK on exactly the points of fixtures/diamond300.csv
 describe('structured engine on the diamond300 reference (server/engine/README.md §13)', () => {
   const ref = JSON.parse(readFileSync(new URL('../../fixtures/diamond300.ref.json', import.meta.url), 'utf8'));
-  const points = Float64Array.from(
-    readFileSync(new URL('../../fixtures/diamond300.csv', import.meta.url), 'utf8')
-      .trim()
-      .split('\n')
-      .slice(1)
-      .flatMap((line) => line.split(',').map(Number)),
-  );
+  const points = diamond300Points();
   it('eigenvalues above the cut and the double-truncated S', () => {
     const pairs = topSkewPairs(pauliJordan2DFromPoints(points), { cut: ref.lam_cut });
     expect(pairs.sigma.length).toBe(ref.n_pos_above_cut);

@@ -2,6 +2,7 @@ import type { Queue } from 'bullmq';
 import type { DataSource } from 'typeorm';
 import {
   createRunRequestSchema,
+  type CreateRunRequest,
   reanalyseRunRequestSchema,
   type ListRunsQuery,
   type RunDetail,
@@ -70,6 +71,19 @@ export function toRunSummary(row: RunWithAuthor): RunSummary {
     restrictedCut: restrictedCutOf(row.request as unknown as StoredRunRequest),
     S: row.entropyS,
     parentRunId: row.parentRunId,
+  };
+}
+
+/** The field settings of a POST body as a run stores them (absent options stay absent). */
+function storedSettings(request: CreateRunRequest): Omit<StoredRunRequest, 'sprinkling' | 'causalSet' | 'reusedPoints'> {
+  return {
+    ...(request.title ? { title: request.title } : {}),
+    mass: request.mass,
+    truncation: request.truncation,
+    ...(request.subregion ? { subregion: request.subregion } : {}),
+    doubleTruncation: request.doubleTruncation,
+    ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
+    ...(request.engine ? { engine: request.engine } : {}),
   };
 }
 
@@ -199,13 +213,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         const imported = await loadCausalSetRunInput(m, team.id, request.causalSetId);
         if (!imported) throw new HttpError(422, 'invalid_request', `No imported causal set ${request.causalSetId} exists in this team.`);
         const stored: StoredRunRequest = {
-          ...(request.title ? { title: request.title } : {}),
-          mass: request.mass,
-          truncation: request.truncation,
-          ...(request.subregion ? { subregion: request.subregion } : {}),
-          doubleTruncation: request.doubleTruncation,
-          ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
-          ...(request.engine ? { engine: request.engine } : {}),
+          ...storedSettings(request),
           causalSet: imported.reference,
         };
         validateForEngine(toEngineRequest(stored, imported.dimension, imported.points, imported.relationWords));
@@ -228,13 +236,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       if (!request.sprinkling) throw new HttpError(422, 'invalid_request', 'Give a sprinkling or the id of an imported causal set.');
       const sprinkling = request.sprinkling;
       const stored: StoredRunRequest = {
-        ...(request.title ? { title: request.title } : {}),
-        mass: request.mass,
-        truncation: request.truncation,
-        ...(request.subregion ? { subregion: request.subregion } : {}),
-        doubleTruncation: request.doubleTruncation,
-        ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
-        ...(request.engine ? { engine: request.engine } : {}),
+        ...storedSettings(request),
         sprinkling,
       };
       validateForEngine(toEngineRequest(stored, 2, null));
