@@ -6,8 +6,7 @@ import { runExportFormats } from '@shared/exports';
 import { permissions, roles, type Role } from '@shared/roles';
 import { apiRoutes, openApiPath, type RouteAccess } from '../../server/api/openapi';
 import { insertMembership } from '../../server/db/repositories/teams';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, testPassword, tokenFromMail, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, testPassword, tokenFromMail, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { listApiRoutes } from '../support/routes';
 import { diamondRun, postRun, waitUntil } from '../worker/runHelpers';
 
@@ -236,8 +235,7 @@ beforeAll(async () => {
 
   // A done run and a study with a finished cell for the read routes; afterwards no worker runs, so
   // every run and study the matrix creates stays queued and can be cancelled or deleted exactly.
-  const worker: Worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await worker.waitUntilReady();
+  const worker: Worker = await startTestWorker(ctx);
   doneRunId = await newRun();
   doneStudyId = await newStudy();
   await waitUntil(

@@ -5,8 +5,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runDetailSchema, runPointsSchema, type RunDetail } from '@shared/runs';
 import { computeVacuum } from '../../server/engine/index';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 
 /**
  * Runs on imported causal sets, through the API and the real worker (PostgreSQL, Redis, the engine
@@ -19,8 +18,7 @@ let outsider: SignedUpUser;
 
 beforeAll(async () => {
   ctx = await createTestContext();
-  worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await worker.waitUntilReady();
+  worker = await startTestWorker(ctx);
   researcher = await signUp(ctx.app);
   outsider = await signUp(ctx.app);
 });

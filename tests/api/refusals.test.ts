@@ -2,8 +2,7 @@ import type { Worker } from 'bullmq';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sprinkle } from '../../server/engine/sprinkle';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { bearer, diamondRun, postRun, waitForRun } from '../worker/runHelpers';
 
 /**
@@ -37,9 +36,8 @@ beforeAll(async () => {
   const rows = Array.from({ length: 40 }, (_, i) => `${points[2 * i]},${points[2 * i + 1]}`);
   coordinatesId = await upload(`t,x\n${rows.join('\n')}\n`, { name: 'forty points', kind: 'coordinates', region: JSON.stringify(diamond) });
   relationsId = await upload('i,j\n0,1\n1,2\n2,3\n0,4\n', { name: 'six elements', kind: 'relations', count: '6', dimension: '2' });
-  const worker: Worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
+  const worker: Worker = await startTestWorker(ctx);
   try {
-    await worker.waitUntilReady();
     parentRunId = await postRun(ctx.app, researcher.token, diamondRun({ title: 'parent' }, { count: 60 }));
     const { run } = await waitForRun(ctx.app, researcher.token, parentRunId);
     if (run.status !== 'done') throw new Error(`the parent run ended ${run.status}: ${run.error}`);

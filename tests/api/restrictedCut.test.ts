@@ -5,8 +5,7 @@ import { runDetailSchema } from '@shared/runs';
 import type { SprinklingSpecInput } from '@shared/vacuum';
 import { studyDetailSchema, type StudyDetail } from '@shared/studies';
 import { computeVacuum } from '../../server/engine/index';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { bearer, diamondRun, getRun, parseCsv, postRun, waitForRun, waitUntil } from '../worker/runHelpers';
 
 /**
@@ -21,8 +20,7 @@ let researcher: SignedUpUser;
 
 beforeAll(async () => {
   ctx = await createTestContext();
-  worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await worker.waitUntilReady();
+  worker = await startTestWorker(ctx);
   researcher = await signUp(ctx.app, { name: 'Ilse Marnoch' });
 });
 afterAll(async () => {

@@ -5,8 +5,7 @@ import { runDetailSchema, runListResponseSchema, runPointsSchema } from '@shared
 import type { SprinklingSpecInput } from '@shared/vacuum';
 import { computeVacuum, DENSE_SIZE_LIMIT } from '../../server/engine/index';
 import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { bearer, diamondRun, getRun, parseCsv, postRun, waitForRun, waitUntil } from '../worker/runHelpers';
 
 /** Lifecycle of vacuum runs against the real worker (in this process), PostgreSQL and Redis. */
@@ -16,8 +15,7 @@ let researcher: SignedUpUser;
 
 beforeAll(async () => {
   ctx = await createTestContext();
-  worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await worker.waitUntilReady();
+  worker = await startTestWorker(ctx);
   researcher = await signUp(ctx.app, { name: 'Ada Lindqvist' });
 });
 afterAll(async () => {

@@ -7,8 +7,7 @@ import { resolveSubregions } from '../../server/studies/plan';
 import { studyCellJobId } from '../../server/queue/jobs';
 import { studyCellHandler } from '../../server/worker/handlers/studyCell';
 import { sweepOrphanedWork } from '../../server/worker/recovery';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { bearer, parseCsv, waitUntil } from '../worker/runHelpers';
 
 /** Scaling studies through the API, PostgreSQL, Redis and the real worker (in this process). */
@@ -17,11 +16,7 @@ let worker: Worker | null = null;
 let researcher: SignedUpUser;
 let stranger: SignedUpUser;
 
-const startWorker = async () => {
-  const w = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await w.waitUntilReady();
-  return w;
-};
+const startWorker = () => startTestWorker(ctx);
 
 beforeAll(async () => {
   ctx = await createTestContext();

@@ -5,8 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { studyDetailSchema, type StudyDetail } from '@shared/studies';
 import { causalMatrix } from '../../server/engine/order';
 import { sprinkle } from '../../server/engine/sprinkle';
-import { startComputeWorker } from '../../server/worker/worker';
-import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
+import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 import { bearer, parseCsv, waitUntil } from '../worker/runHelpers';
 
 /**
@@ -21,8 +20,7 @@ let stranger: SignedUpUser;
 
 beforeAll(async () => {
   ctx = await createTestContext();
-  worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
-  await worker.waitUntilReady();
+  worker = await startTestWorker(ctx);
   researcher = await signUp(ctx.app, { name: 'Noor Abernethy' });
   stranger = await signUp(ctx.app, { name: 'Other Team' });
 });

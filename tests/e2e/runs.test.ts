@@ -1,7 +1,7 @@
 import { readFile } from 'node:fs/promises';
 import type { Worker } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startComputeWorker } from '../../server/worker/worker';
+import { startTestWorker } from '../support/app';
 import { screenshot, signIn, startApp, type RunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
@@ -14,9 +14,7 @@ describe('a vacuum run in the browser', () => {
 
   beforeAll(async () => {
     running = await startApp();
-    const { config, dataSource, mailer } = running.context;
-    worker = startComputeWorker({ context: { config, dataSource, mailer } });
-    await worker.waitUntilReady();
+    worker = await startTestWorker(running.context);
   });
   afterAll(async () => {
     await worker?.close();

@@ -2,7 +2,7 @@ import type { Worker } from 'bullmq';
 import { readFile } from 'node:fs/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoPassword } from '../../server/db/demo-team';
-import { startComputeWorker } from '../../server/worker/worker';
+import { startTestWorker } from '../support/app';
 import { screenshot, startApp, type RunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
@@ -13,9 +13,7 @@ describe('a scaling study in the browser', () => {
 
   beforeAll(async () => {
     running = await startApp();
-    const c = running.context;
-    worker = startComputeWorker({ context: { config: c.config, dataSource: c.dataSource, mailer: c.mailer } });
-    await worker.waitUntilReady();
+    worker = await startTestWorker(running.context);
   }, 120_000);
   afterAll(async () => {
     await worker?.close();

@@ -1,6 +1,6 @@
 import type { Worker } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startComputeWorker } from '../../server/worker/worker';
+import { startTestWorker } from '../support/app';
 import { screenshot, signIn, startApp, type RunningApp } from './browser';
 
 /**
@@ -14,9 +14,7 @@ describe('truncation rules in the browser: restricted cut, 4D caution, knee', ()
 
   beforeAll(async () => {
     running = await startApp();
-    const { config, dataSource, mailer } = running.context;
-    worker = startComputeWorker({ context: { config, dataSource, mailer } });
-    await worker.waitUntilReady();
+    worker = await startTestWorker(running.context);
   });
   afterAll(async () => {
     await worker?.close();

@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import type { Queue } from 'bullmq';
+import type { Queue, Worker } from 'bullmq';
 import type { Express } from 'express';
 import type { Redis } from 'ioredis';
 import request from 'supertest';
@@ -10,6 +10,7 @@ import { createDataSource, runMigrations } from '../../server/db/data-source';
 import { OutboxMessageEntity, type OutboxMessageRow } from '../../server/db/entities';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { createComputeQueue, createRedisConnection } from '../../server/queue/compute-queue';
+import { startComputeWorker } from '../../server/worker/worker';
 import { createTestDatabase, type TestDatabase } from './db';
 
 export interface TestContext {
@@ -65,6 +66,13 @@ export async function createTestContext(overrides: Partial<Config> = {}): Promis
       await database.drop();
     },
   };
+}
+
+/** A compute worker in this process on the context's database, queue and mailer, ready to take jobs. */
+export async function startTestWorker(ctx: Pick<TestContext, 'config' | 'dataSource' | 'mailer'>): Promise<Worker> {
+  const worker = startComputeWorker({ context: { config: ctx.config, dataSource: ctx.dataSource, mailer: ctx.mailer } });
+  await worker.waitUntilReady();
+  return worker;
 }
 
 let userCounter = 0;
