@@ -137,11 +137,6 @@ export function restrictedCutText(cut: RestrictedCut): string {
   return cut.rule === 'sqrtN' ? '√n/(4π)' : `λ = ${cut.cut}`;
 }
 
-/** The restricted cut in LaTeX (math mode). */
-export function restrictedCutLatex(cut: RestrictedCut): string {
-  return cut.rule === 'sqrtN' ? '\\sqrt{n}/(4\\pi)' : `\\lambda_c = ${cut.cut}`;
-}
-
 /** The whole-region rule in words and symbols, for labels: "√N/(4π)", "knee", "λ = 0.5", "48 modes". */
 export function truncationRuleText(rule: TruncationRule): string {
   switch (rule.rule) {

@@ -1,6 +1,6 @@
 import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import type { RunDetail, RunResult } from '@shared/runs';
-import { entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
+import { effectiveRestrictedCut, entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import { describeTruncation } from '../../../lib/truncationForm';
 import { diagnosticNote, engineRowText, probedCheckCount } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
@@ -54,8 +54,8 @@ export function EntropyTable({
   note?: string | null;
 }) {
   const positive = entropy.generalizedEigenvalues.filter((mu) => mu > 1).length;
-  // runs stored before the restricted cut was a setting used √n/(4π) when doubly truncated
-  const restrictedCut = entropy.restrictedCut !== undefined ? entropy.restrictedCut : doubleTruncation ? { rule: 'sqrtN' as const } : null;
+  // the server fills the restricted cut in for runs stored before it was a setting
+  const restrictedCut = entropy.restrictedCut ?? null;
   return (
     <>
       <table className="w-full max-w-md border-collapse text-sm" aria-label="Entropy">
@@ -69,7 +69,7 @@ export function EntropyTable({
             <Figure value={entropy.n} />
           </Row>
           <Row label="Restricted cut" note="second cut of double truncation, on |λ| of iΔ_sub">
-            <span data-testid="restricted-cut">{restrictedCutRowText(restrictedCut, doubleTruncation ? entropy.cutoff : undefined)}</span>
+            <span data-testid="restricted-cut">{restrictedCutRowText(restrictedCut, entropy.cutoff)}</span>
           </Row>
           <Row label="Modes kept in the subregion" note={restrictedCut ? 'after the restricted cut' : undefined}>
             <Figure value={entropy.modesKept} />
@@ -203,10 +203,10 @@ export function SettingsTable({ run }: { run: RunDetail }) {
         : `${request.subregion.indices?.length ?? 0} listed elements`,
     ]);
     rows.push(['Double truncation', request.doubleTruncation ? 'yes' : 'no']);
-    rows.push(['Restricted cut', request.doubleTruncation ? restrictedCutText(request.restrictedCut ?? { rule: 'sqrtN' }) : 'none']);
-    if (request.truncation) {
-      rows.push(['Entropy rule', entropyRuleLabel({ truncation: request.truncation as TruncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut })]);
-    }
+    const settings = { truncation: (request.truncation ?? { rule: 'none' }) as TruncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut };
+    const restricted = effectiveRestrictedCut(settings);
+    rows.push(['Restricted cut', restricted ? restrictedCutText(restricted) : 'none']);
+    if (request.truncation) rows.push(['Entropy rule', entropyRuleLabel(settings)]);
   }
   if (run.result) {
     rows.push(['Engine', engineRowText(run.result)]);
