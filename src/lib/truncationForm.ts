@@ -21,11 +21,12 @@ export const truncationKinds: { kind: TruncationRule['rule']; label: string; val
   { kind: 'none', label: 'No truncation', hint: 'Keep every positive mode.' },
 ];
 
-/** Plain messages for the rule's number, replacing the schema's terse ones ("Too small: ..."). */
+/** Plain messages for the numbers of a truncation rule and of the restricted cut, replacing the schema's terse ones ("Too small: ..."). */
 export const truncationFieldMessages: Record<string, string> = {
   'truncation.cut': 'λc is a number ≥ 0.',
   'truncation.count': 'The number of modes kept is a whole number ≥ 1.',
   'truncation.tolerance': 'The tolerance is a positive number, at most 10 (or leave it empty).',
+  'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.',
 };
 
 export const defaultTruncation: TruncationFormValues = { kind: 'sqrtN', value: '' };

@@ -48,8 +48,7 @@ export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {
       ...(parsedSubregion ? { subregion: parsedSubregion, doubleTruncation, restrictedCut: restrictedCutFromForm(doubleTruncation, restrictedCut) } : {}),
     };
     const checked = validate(createRunRequestSchema, body);
-    const messages: Record<string, string> = { ...truncationFieldMessages, 'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.' };
-    if (!checked.ok) for (const [path, message] of Object.entries(checked.errors)) found[path] ??= messages[path] ?? message;
+    if (!checked.ok) for (const [path, message] of Object.entries(checked.errors)) found[path] ??= truncationFieldMessages[path] ?? message;
     setErrors(found);
     if (!checked.ok || Object.keys(found).length) return;
     try {

@@ -159,7 +159,6 @@ const fieldMessages: Record<string, string> = {
   'sprinkling.seed': 'Give a seed (any text or number), or press “New seed”.',
   ...Object.fromEntries(regionFieldKeys.flatMap((key) => (regionFieldTexts[key].invalid ? [[`sprinkling.region.${key}`, regionFieldTexts[key].invalid]] : []))),
   mass: 'The mass is a number ≥ 0.',
-  'restrictedCut.cut': 'The restricted cut λ is a number ≥ 0.',
   ...truncationFieldMessages,
 };
 
