@@ -108,6 +108,16 @@ export const runDiagnosticsSchema = z.object({
   trace: z.number(),
 }).catchall(z.unknown());
 
+/** One entropy beside the main one (A, B, A∪B of a pair; the causal complement): its value, size and cut. */
+export const entropyPartSchema = z.object({
+  S: z.number(),
+  n: z.number().int(),
+  modesKept: z.number().int(),
+  cutoff: z.number(),
+  restrictedCut: restrictedCutSchema.nullable().optional(),
+});
+export type EntropyPart = z.infer<typeof entropyPartSchema>;
+
 /** `result` of GET /api/runs/:id once the run is done. */
 export const runResultSchema = z.object({
   N: z.number().int(),
@@ -147,8 +157,22 @@ export const runResultSchema = z.object({
       /** the second cut of double truncation; null without it */
       restrictedCut: restrictedCutSchema.nullable().optional(),
       generalizedEigenvalues: z.array(z.number()),
+      /** S_α by renyiKey ("0.5", "2", "inf"), when the run asked for Rényi orders */
+      renyi: z.record(z.string(), z.number()).nullable().optional(),
     })
     .nullable(),
+  /** I(A:B) = S_A + S_B − S_{A∪B} and its three entropies, when the run asked for a pair */
+  mutualInformation: z
+    .object({
+      I: z.number(),
+      a: entropyPartSchema,
+      b: entropyPartSchema,
+      union: entropyPartSchema,
+    })
+    .nullable()
+    .optional(),
+  /** the entropy of the subregion's causal complement O′ and S_O′ − S_O, when asked (a purity check) */
+  complement: entropyPartSchema.extend({ difference: z.number() }).nullable().optional(),
   /** cautions for the rule on this dimension (e.g. a 2D cut on a 4D region), to show beside the result */
   cautions: z.array(z.string()).optional(),
   backend: z.string(),

@@ -7,6 +7,7 @@ import {
   formatTruncationRule,
   prngSchema,
   regionSpecSchema,
+  renyiOrdersSchema,
   restrictedCutSchema,
   truncationRuleSchema,
   type EntropyRuleSettings,
@@ -101,6 +102,21 @@ export const studySubregionsSchema = z.discriminatedUnion('kind', [
       .refine((f) => new Set(f).size === f.length, { message: 'ℓ/L values must differ' }),
   }),
   z.strictObject({
+    kind: z.literal('pairs'),
+    /** proper time ℓ/L of each of the two equal sub-diamonds */
+    sizes: z
+      .array(fraction)
+      .min(1, { message: 'give at least one ℓ/L' })
+      .max(6, { message: 'at most 6 sizes' })
+      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/L values must differ' }),
+    /** gap d/L between the facing corners of the two sub-diamonds, on the region's central slice */
+    separations: z
+      .array(z.number().refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'd/L must lie strictly between 0 and 1' }))
+      .min(1, { message: 'give at least one d/L' })
+      .max(12, { message: 'at most 12 separations' })
+      .refine((d) => new Set(d).size === d.length, { message: 'd/L values must differ' }),
+  }),
+  z.strictObject({
     kind: z.literal('tips'),
     diamonds: z.array(tipsDiamondSchema).min(1, { message: 'give at least one sub-diamond' }).max(12, { message: 'at most 12 sub-diamonds' }),
   }),
@@ -152,6 +168,7 @@ export const sprinkledStudyRequestSchema = z
     subregions: studySubregionsSchema,
     rules: rulesSchema,
     mass: massSchema,
+    renyi: renyiOrdersSchema.optional(),
   })
   .refine((r) => r.subregions.kind !== 'elements', {
     message: 'element lists are for imported causal sets; give concentric sub-diamonds or tips for sprinklings',
@@ -177,6 +194,7 @@ export const importedStudyRequestSchema = z.strictObject({
   subregions: studySubregionsSchema,
   rules: rulesSchema,
   mass: massSchema,
+  renyi: renyiOrdersSchema.optional(),
 });
 
 const studyRequestUnion = z.discriminatedUnion('source', [sprinkledStudyRequestSchema, importedStudyRequestSchema]);
@@ -222,6 +240,15 @@ export const resolvedSubregionSchema = z.object({
   future: eventSchema.nullable(),
   /** the element labels of an element-list subregion */
   elements: z.array(z.number().int()).optional(),
+  /** a pair for the mutual information: the two sub-diamonds (past/future above are null), ℓ/L and d/L */
+  pair: z
+    .object({
+      size: z.number(),
+      separation: z.number(),
+      a: z.object({ past: eventSchema, future: eventSchema }),
+      b: z.object({ past: eventSchema, future: eventSchema }),
+    })
+    .optional(),
 });
 export type ResolvedSubregion = z.infer<typeof resolvedSubregionSchema>;
 
@@ -244,6 +271,12 @@ export const studyEntropySchema = z.object({
   /** positive modes of the whole region's iΔ kept and the whole-region cut */
   stateModesKept: z.number().int(),
   stateCutoff: z.number(),
+  /** S_α by renyiKey, when the study asked for Rényi orders (not for pairs) */
+  renyi: z.record(z.string(), z.number()).optional(),
+  /** a pair row: S and n above are those of A∪B; I = S_A + S_B − S_{A∪B} */
+  pair: z
+    .object({ size: z.number(), separation: z.number(), SA: z.number(), SB: z.number(), SAB: z.number(), I: z.number(), nA: z.number().int(), nB: z.number().int() })
+    .optional(),
 });
 export type StudyEntropy = z.infer<typeof studyEntropySchema>;
 
@@ -261,6 +294,10 @@ export const studyAggregateSchema = z.object({
   sdS: z.number().nullable(),
   /** standard error of the mean, sdS/√seeds; null for a single seed */
   seS: z.number().nullable(),
+  /** mean and standard error of each S_α over seeds, by renyiKey */
+  renyi: z.record(z.string(), z.object({ mean: z.number(), se: z.number().nullable() })).optional(),
+  /** a pair's mutual information over seeds */
+  pair: z.object({ size: z.number(), separation: z.number(), meanI: z.number(), sdI: z.number().nullable(), seI: z.number().nullable() }).optional(),
 });
 export type StudyAggregate = z.infer<typeof studyAggregateSchema>;
 
@@ -269,8 +306,15 @@ export const studyFitSchema = z.object({
   rule: z.string(),
   /** null: over every aggregate of the rule; otherwise one subregion's aggregates across N */
   subregion: z.string().nullable(),
-  /** 'log': S against ln √n (slope = b); 'linear': S against n (the volume-law slope) */
-  model: z.enum(['log', 'linear']),
+  /**
+   * 'log': the quantity against ln √n (slope = b); 'linear': against n (the volume-law slope);
+   * 'loglog': ln I against ln d (pairs; slope = the decay exponent)
+   */
+  model: z.enum(['log', 'linear', 'loglog']),
+  /** what is fitted: "S" (absent on studies stored before Rényi orders), "renyi:2" (S_2, by renyiKey), "I" */
+  quantity: z.string().optional(),
+  /** pairs: the size ℓ/L whose separations were fitted */
+  size: z.number().optional(),
   points: z.number().int(),
   slope: z.number(),
   slopeError: z.number().nullable(),

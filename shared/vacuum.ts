@@ -241,6 +241,65 @@ export function parseSubregion(text: string): SubregionSpec {
   return fail();
 }
 
+/** At most this many Rényi orders per run or study (each is one sum over the μ, but every output lists them all). */
+export const MAX_RENYI_ORDERS = 8;
+
+/**
+ * One Rényi order α: a number α > 0, α ≠ 1 (α = 1 is the von Neumann S, reported anyway), or "inf" for
+ * the min-entropy S_∞ = Σ ln μ (server/engine/README.md §15).
+ */
+export const renyiOrderSchema = z.union([
+  z.literal('inf'),
+  finite
+    .refine((a) => a > 0, { message: 'a Rényi order α must be > 0' })
+    .refine((a) => a !== 1, { message: 'α = 1 is the von Neumann entropy S, which every result reports; give α ≠ 1' }),
+]);
+export type RenyiOrder = z.infer<typeof renyiOrderSchema>;
+
+/** The α of one run or study: distinct, at most MAX_RENYI_ORDERS. */
+export const renyiOrdersSchema = z
+  .array(renyiOrderSchema)
+  .min(1, { message: 'give at least one α, or leave the Rényi orders out' })
+  .max(MAX_RENYI_ORDERS, { message: `at most ${MAX_RENYI_ORDERS} Rényi orders` })
+  .refine((orders) => new Set(orders.map(renyiKey)).size === orders.length, { message: 'Rényi orders must differ' });
+
+/** The key of an order in results and exports: "0.5", "2", "inf" (JSON has no ∞). */
+export function renyiKey(order: RenyiOrder): string {
+  return order === 'inf' ? 'inf' : String(order);
+}
+
+/** Orders sorted ascending, ∞ last: the order of every table, plot and export. */
+export function sortedRenyiOrders(orders: readonly RenyiOrder[]): RenyiOrder[] {
+  const value = (o: RenyiOrder) => (o === 'inf' ? Number.POSITIVE_INFINITY : o);
+  return [...orders].sort((p, q) => value(p) - value(q));
+}
+
+/** The symbol of an order for labels: "S_0.5", "S_2", "S_∞". */
+export function renyiLabel(order: RenyiOrder | string): string {
+  return `S_${order === 'inf' ? '∞' : String(order)}`;
+}
+
+/** Parses "0.5,2,3" or "2,inf" (the command line's --renyi). */
+export function parseRenyiOrders(text: string): RenyiOrder[] {
+  const items = text.split(',').map((s) => s.trim());
+  const candidate = items.map((s) => (s === 'inf' || s === '∞' ? 'inf' : s === '' ? Number.NaN : Number(s)));
+  const parsed = renyiOrdersSchema.safeParse(candidate);
+  if (!parsed.success) {
+    throw new Error(`Rényi orders must be a comma-separated list of α > 0, α ≠ 1 (or inf), at most ${MAX_RENYI_ORDERS}, all different; got "${text}": ${parsed.error.issues[0]?.message ?? ''}`);
+  }
+  return parsed.data;
+}
+
+/**
+ * Two subregions A and B for the mutual information I(A:B) = S_A + S_B − S_{A∪B} on one state
+ * (server/engine/README.md §15): both sub-diamonds (disjoint and spacelike to each other) or both element
+ * lists (which a relation list needs).
+ */
+export const subregionPairSchema = z
+  .strictObject({ a: subregionSpecSchema, b: subregionSpecSchema })
+  .refine((p) => p.a.kind === p.b.kind, { message: 'A and B must both be sub-diamonds or both element lists', path: ['b'] });
+export type SubregionPair = z.infer<typeof subregionPairSchema>;
+
 /** Which engine a request asks for: one of the two, or auto (the rule in shared/engineChoice.ts). */
 export const engineRequestSchema = z.enum(['auto', 'dense', 'structured']);
 
@@ -258,6 +317,12 @@ export const vacuumSettingsSchema = z.strictObject({
    * modes above the cut, N ≤ 100 000) or auto (the rule in shared/engineChoice.ts)
    */
   engine: engineRequestSchema.optional(),
+  /** Rényi entropies S_α of the subregion, from the same generalised eigenvalues as S */
+  renyi: renyiOrdersSchema.optional(),
+  /** I(A:B) of two spacelike subregions on the same state; with double truncation each of A, B, A∪B gets its own restricted cut */
+  mutualInformation: subregionPairSchema.optional(),
+  /** also the entropy of the subregion's causal complement in the region (a purity check of the whole-region state) */
+  complement: z.boolean().default(false),
 });
 export type VacuumSettings = z.infer<typeof vacuumSettingsSchema>;
 export type VacuumSettingsInput = z.input<typeof vacuumSettingsSchema>;

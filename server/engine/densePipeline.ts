@@ -97,7 +97,7 @@ export async function denseVacuum(input: {
       if (elements.length < 2) {
         throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
       }
-      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements };
+      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements, renyi: null };
     });
   }
 
@@ -123,6 +123,8 @@ export async function denseVacuum(input: {
     knee: truncation.knee ?? null,
     diagnostics,
     entropy,
+    mutualInformation: null,
+    complement: null,
     cautions: ruleCautions(
       dimension,
       { truncation: truncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut },

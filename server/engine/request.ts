@@ -1,5 +1,6 @@
-import type { RegionSpec, RestrictedCut, SprinklingSpecInput, SubregionSpec, TruncationRule, VacuumStage } from '@shared/vacuum';
+import type { RegionSpec, RenyiOrder, RestrictedCut, SprinklingSpecInput, SubregionPair, SubregionSpec, TruncationRule, VacuumStage } from '@shared/vacuum';
 import type { EntropyResult } from './entropy';
+import type { MutualInformationResult } from './mutualInformation';
 import type { BackendPreference } from './linalg';
 import type { LinearAlgebraBackend } from './linalg/backend';
 import type { SjDiagnostics } from './sjDiagnostics';
@@ -50,6 +51,12 @@ export interface VacuumRequest {
   keepState?: boolean;
   /** dense, structured (2D, modes above a cut only) or auto: the rule in structured/engineChoice.ts */
   engine?: EngineRequest;
+  /** Rényi orders of the subregion's entropy (renyi.ts); needs a subregion */
+  renyi?: RenyiOrder[];
+  /** two spacelike subregions for I(A:B) on the same state, under the request's rule (mutualInformation.ts) */
+  mutualInformation?: SubregionPair;
+  /** also the entropy of the subregion's causal complement in the region; needs a subregion */
+  complement?: boolean;
 }
 
 export interface VacuumHooks {
@@ -81,7 +88,14 @@ export interface VacuumResult {
   modesKept: number;
   knee: KneeFit | null;
   diagnostics: SjDiagnostics;
-  entropy: (EntropyResult & { elements: Int32Array }) | null;
+  entropy: (EntropyResult & { elements: Int32Array; /** S_α by renyiKey, when orders were asked */ renyi: Record<string, number> | null }) | null;
+  /** I(A:B) with the entropies of A, B and A∪B, when a pair was asked */
+  mutualInformation: MutualInformationResult | null;
+  /**
+   * the entropy of the causal complement O′ (elements unrelated to every element of O) beside S_O: for a
+   * pure whole-region state the two agree in the continuum, so `difference` = S_O′ − S_O is a purity check
+   */
+  complement: (EntropyResult & { elements: Int32Array; difference: number }) | null;
   /** cautions for the rule used on this dimension (shared/vacuum.ts ruleCautions), to show beside the result */
   cautions: string[];
   /** seconds per stage */

@@ -87,7 +87,7 @@ export async function structuredVacuum(input: {
     entropy = await stage('entropy', () => {
       const elements = subregionElements(subregion, points, 2, region?.periodX);
       if (elements.length < 2) throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
-      return { ...factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements };
+      return { ...factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements, renyi: null };
     });
   }
 
@@ -113,6 +113,8 @@ export async function structuredVacuum(input: {
     knee: null,
     diagnostics,
     entropy,
+    mutualInformation: null,
+    complement: null,
     // the structured engine takes 2D regions only, where the cuts need no caution
     cautions: [],
     timings: input.timings,
