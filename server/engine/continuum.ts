@@ -49,3 +49,15 @@ export function continuumDiamondSpectrum(size: number, count: number): Float64Ar
   xs.sort((a, b) => a - b);
   return Float64Array.from(xs.slice(0, count), (x) => size / (4 * x));
 }
+
+/**
+ * The continuum trend of the mutual information of two intervals of lengths ℓ₁, ℓ₂ a distance d apart
+ * in a c = 1 vacuum (Calabrese–Cardy 2004, J. Stat. Mech. P06002; Casini–Huerta 2009, J. Phys. A 42
+ * 504007): I ≈ (1/3) ln[(ℓ₁ + d)(ℓ₂ + d) / (d(ℓ₁ + ℓ₂ + d))] — exact for a free Dirac fermion, a trend
+ * for the boson (server/engine/README.md §15). A sub-diamond of proper time ℓ stands for its base
+ * interval of length ℓ.
+ */
+export function continuumMutualInformation(lengthA: number, lengthB: number, separation: number): number {
+  if (!(lengthA > 0 && lengthB > 0 && separation > 0)) throw new RangeError('interval lengths and the separation must be positive');
+  return Math.log(((lengthA + separation) * (lengthB + separation)) / (separation * (lengthA + lengthB + separation))) / 3;
+}
