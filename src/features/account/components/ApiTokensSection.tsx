@@ -114,7 +114,7 @@ function CreateTokenForm({ memberships, onCreated }: { memberships: Membership[]
 
   return (
     <form onSubmit={submit} noValidate aria-label="Create API token" className="flex flex-col gap-3">
-      <div className="grid grid-cols-1 gap-4 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end">
+      <div className="grid grid-cols-1 gap-4 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-start">
         <TextField label="Token name" name="name" value={name} onChange={(e) => setName(e.target.value)} error={errors.fieldErrors.name} hint="e.g. the notebook that uses it" />
         <SelectField label="Team" name="teamId" value={teamId} onChange={(e) => setTeamId(e.target.value)} error={errors.fieldErrors.teamId}>
           {memberships.map((ms) => (
@@ -130,7 +130,8 @@ function CreateTokenForm({ memberships, onCreated }: { memberships: Membership[]
           <option value="365">in a year</option>
           <option value="">never</option>
         </SelectField>
-        <Button type="submit" busy={create.isPending}>
+        {/* tops aligned: a field's hint or message below it must not lift its input; the button sits level with the inputs */}
+        <Button type="submit" busy={create.isPending} className="h-9 justify-center sm:mt-5">
           Create token
         </Button>
       </div>

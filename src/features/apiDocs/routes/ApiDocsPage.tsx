@@ -1,5 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
+import { Link } from 'react-router';
 import { api } from '../../../lib/apiClient';
+import { Markdown } from '../../../ui/Markdown';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { describeType, operationsByTag, type JsonSchema, type OpenApiDocument, type OperationEntry } from '../lib/openApi';
@@ -17,6 +19,9 @@ export function ApiDocsPage() {
 
   return (
     <main className="mx-auto max-w-5xl px-6 py-10">
+      <Link to="/" className="mb-6 inline-block text-sm text-accent underline underline-offset-4">
+        ← Back to Tacet
+      </Link>
       <PageHeader
         title="Tacet API reference"
         context={
@@ -35,7 +40,7 @@ export function ApiDocsPage() {
         <ErrorState error={doc.error} onRetry={() => doc.refetch()} />
       ) : (
         <>
-          <p className="mb-8 max-w-3xl text-sm text-ink-soft">{doc.data.info.description}</p>
+          <Markdown className="mb-8 max-w-3xl text-sm text-ink-soft" text={doc.data.info.description ?? ''} />
           {operationsByTag(doc.data).map(([tag, entries]) => (
             <Section key={tag} title={tag}>
               <ul className="flex flex-col">
@@ -62,10 +67,10 @@ function OperationItem({ entry }: { entry: OperationEntry }) {
         <summary className="flex cursor-pointer items-baseline gap-4 py-2 text-sm">
           <span className="figures w-16 shrink-0 font-semibold uppercase text-accent">{method}</span>
           <span className="figures shrink-0">{path}</span>
-          <span className="text-ink-soft">{operation.summary}</span>
+          <Markdown className="text-ink-soft [&_p]:mb-0" text={operation.summary ?? ''} />
         </summary>
         <div className="flex flex-col gap-4 pb-4 pl-20 text-sm">
-          {operation.description && <p className="text-ink-soft">{operation.description}</p>}
+          {operation.description && <Markdown className="text-ink-soft" text={operation.description} />}
           {params.length > 0 && (
             <div>
               <h3 className="text-xs uppercase tracking-wide text-ink-soft">Parameters</h3>
