@@ -1,5 +1,6 @@
-import { ruleCautions, type SubregionSpec } from '@shared/vacuum';
-import { entanglementEntropy, subregionElements } from './entropy';
+import { ruleCautions } from '@shared/vacuum';
+import { relationNeighbourhood } from './causalSeparation';
+import { entanglementEntropy } from './entropy';
 import { EngineInputError } from './errors';
 import { retardedGreenOperator } from './green';
 import type { LinearAlgebraBackend } from './linalg/backend';
@@ -7,10 +8,11 @@ import { causalMatrix, linkMatrix, type BitRelation } from './order';
 import { linearExtension } from './orderAlgorithms';
 import { pauliJordan, pauliJordanSpectrum } from './pauliJordan';
 import type { PlacedPoints } from './placement';
-import { ENGINE_VERSION, requestTruncation, type VacuumRequest, type VacuumResult } from './request';
+import { ENGINE_VERSION, requestTruncation, type VacuumHooks, type VacuumRequest, type VacuumResult } from './request';
 import { sjDiagnostics } from './sjDiagnostics';
 import { sjState } from './sjState';
 import type { StageRunner } from './stages';
+import { entropyCount, subregionEntropies, subregionSets, type SubregionSets } from './subregionEntropies';
 import type { EngineChoice } from './structured/engineChoice';
 import { applyTruncation } from './truncation';
 
@@ -19,10 +21,18 @@ import { applyTruncation } from './truncation';
  * the causal order (and in 4D its links), the retarded Green function K, Δ = K − Kᵀ and the spectrum
  * of iΔ (server/engine/README.md §1–§4).
  */
-export async function denseSpectrumStages(placed: PlacedPoints, mass: number, backend: LinearAlgebraBackend, stage: StageRunner) {
+export async function denseSpectrumStages(
+  placed: PlacedPoints,
+  mass: number,
+  backend: LinearAlgebraBackend,
+  stage: StageRunner,
+  /** called inside the order stage with the causal relation, before any heavy stage (to check subregions early) */
+  onOrder?: (causal: BitRelation) => void,
+) {
   const { points, dimension, density, region } = placed;
   const order = await stage('order', () => {
     const causal: BitRelation = placed.relation ?? causalMatrix(points, dimension, region?.periodX);
+    onOrder?.(causal);
     const links = dimension === 4 ? linkMatrix(causal) : null;
     return { causal, links };
   });
@@ -50,22 +60,15 @@ export async function denseSpectrumStages(placed: PlacedPoints, mass: number, ba
   return { causal: order.causal, links: order.links, delta, spectrum };
 }
 
-/** The element list of a subregion on a set without coordinates (validation refuses diamonds there). */
-function listedElements(spec: SubregionSpec, count: number): Int32Array {
-  if (spec.kind !== 'elements') throw new EngineInputError('a causal set given by its relation needs the subregion as a list of elements');
-  const unique = Array.from(new Set(spec.indices)).sort((a, b) => a - b);
-  const missing = unique.find((i) => i >= count);
-  if (missing !== undefined) throw new EngineInputError(`subregion element ${missing} does not exist (the causal set has ${count} elements)`);
-  return Int32Array.from(unique);
-}
-
 /**
  * The dense engine after placement (server/engine/README.md §1–§11): causal order, retarded Green
  * function, Pauli–Jordan spectrum, (truncated) SJ state with its diagnostics, and the entanglement
- * entropy of a subregion when one is given.
+ * entropies asked for (§15): the subregion's with its Rényi entropies, the mutual information of a
+ * pair, the causal complement's. The pair and the complement are found from the causal bit rows.
  */
 export async function denseVacuum(input: {
   request: VacuumRequest;
+  hooks?: VacuumHooks;
   placed: PlacedPoints;
   stage: StageRunner;
   backend: LinearAlgebraBackend;
@@ -75,7 +78,10 @@ export async function denseVacuum(input: {
   const { request, placed, stage, backend, choice } = input;
   const { points, dimension, density, region, n } = placed;
   const mass = request.mass ?? 0;
-  const { causal, links, delta, spectrum } = await denseSpectrumStages(placed, mass, backend, stage);
+  let sets: SubregionSets = { main: null, pair: null, complement: null };
+  const { causal, links, delta, spectrum } = await denseSpectrumStages(placed, mass, backend, stage, (relation) => {
+    sets = subregionSets(request, placed, (elements) => relationNeighbourhood(relation, elements));
+  });
 
   const truncationRule = requestTruncation(request);
   const { truncation, state, diagnostics } = await stage('state', () => {
@@ -89,17 +95,17 @@ export async function denseVacuum(input: {
     return { truncation, state, diagnostics: sjDiagnostics(state, spectrum.positive, backend) };
   });
 
-  let entropy: VacuumResult['entropy'] = null;
-  if (request.subregion) {
-    const subregion = request.subregion;
-    entropy = await stage('entropy', () => {
-      const elements = placed.relation ? listedElements(subregion, n) : subregionElements(subregion, points, dimension, region?.periodX);
-      if (elements.length < 2) {
-        throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
-      }
-      return { ...entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements, renyi: null };
-    });
-  }
+  const entropies: Pick<VacuumResult, 'entropy' | 'mutualInformation' | 'complement'> =
+    entropyCount(sets) > 0
+      ? await stage('entropy', () =>
+          subregionEntropies(
+            request,
+            sets,
+            (elements) => entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }),
+            input.hooks ?? {},
+          ),
+        )
+      : { entropy: null, mutualInformation: null, complement: null };
 
   return {
     engineVersion: ENGINE_VERSION,
@@ -122,9 +128,7 @@ export async function denseVacuum(input: {
     modesKept: truncation.modesKept,
     knee: truncation.knee ?? null,
     diagnostics,
-    entropy,
-    mutualInformation: null,
-    complement: null,
+    ...entropies,
     cautions: ruleCautions(
       dimension,
       { truncation: truncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut },

@@ -54,5 +54,5 @@ export async function computeVacuum(request: VacuumRequest, hooks: VacuumHooks =
     if (issue) throw new EngineInputError(issue.message, 'subregion.indices');
   }
   const pipeline = { request, placed, stage, backend, choice, timings };
-  return choice.engine === 'structured' ? structuredVacuum({ ...pipeline, hooks }) : denseVacuum(pipeline);
+  return choice.engine === 'structured' ? structuredVacuum({ ...pipeline, hooks }) : denseVacuum({ ...pipeline, hooks });
 }

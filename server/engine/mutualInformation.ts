@@ -1,3 +1,4 @@
+import { firstRelated, type CausalNeighbourhood } from './causalSeparation';
 import type { EntropyResult } from './entropy';
 
 export interface MutualInformationResult {
@@ -16,19 +17,31 @@ export interface PairIssue {
 
 /**
  * Whether A and B are disjoint and spacelike to each other in the causal order, as the mutual
- * information of §15 asks (null when they are). `precedes(i, j)` is the order i ≺ j of the whole set.
+ * information of server/engine/README.md §15 asks (null when they are). The order is given either as
+ * `precedes(i, j)`, i ≺ j in the whole set (|A|·|B| questions), or as the causal neighbourhood of A
+ * (causalSeparation.ts: bit rows or a light-cone staircase, one question per element of B).
  */
-export function pairIssue(a: ArrayLike<number>, b: ArrayLike<number>, precedes: (i: number, j: number) => boolean): PairIssue | null {
+export function pairIssue(
+  a: ArrayLike<number>,
+  b: ArrayLike<number>,
+  order: ((i: number, j: number) => boolean) | CausalNeighbourhood,
+): PairIssue | null {
   const inA = new Set(Array.from(a));
   const shared = Array.from(b).filter((j) => inA.has(j));
   if (shared.length > 0) {
     return { kind: 'overlap', message: `A and B overlap: ${shared.length} element(s) lie in both (element ${shared[0]} is one); the mutual information needs disjoint subregions` };
   }
+  if (typeof order !== 'function') {
+    const j = firstRelated(order, b);
+    return j < 0
+      ? null
+      : { kind: 'related', message: `A and B are causally related (element ${j} of B is related to an element of A); the mutual information needs spacelike-separated subregions` };
+  }
   for (let p = 0; p < a.length; p++) {
     for (let q = 0; q < b.length; q++) {
       const i = a[p];
       const j = b[q];
-      if (precedes(i, j) || precedes(j, i)) {
+      if (order(i, j) || order(j, i)) {
         return { kind: 'related', message: `A and B are causally related (element ${i} of A and element ${j} of B are related); the mutual information needs spacelike-separated subregions` };
       }
     }

@@ -17,7 +17,8 @@ function upperMembers(mu: ArrayLike<number>): Float64Array {
  * (server/engine/README.md §15; the standard bosonic Gaussian-state formula): for α > 0, α ≠ 1,
  * S_α = Σ_{μ>1} ln(μ^α − (μ−1)^α)/(α − 1); the min-entropy S_∞ = Σ_{μ>1} ln μ; α = 1 gives the von
  * Neumann S = Σ [μ ln μ − (μ−1) ln(μ−1)]. ln(μ^α − (μ−1)^α) is taken as α ln μ + ln(1 − r^α) with
- * r = (μ−1)/μ < 1, which neither overflows for large μ^α nor loses the small difference near μ = 1.
+ * r = (μ−1)/μ < 1 and 1 − r^α = −expm1(α log1p(−1/μ)), which neither overflows for large μ^α, nor loses
+ * the small difference near μ = 1, nor the one of r^α near 1 (large μ, small α).
  */
 export function renyiEntropy(mu: ArrayLike<number>, order: RenyiOrder | 1): number {
   const upper = upperMembers(mu);
@@ -27,8 +28,8 @@ export function renyiEntropy(mu: ArrayLike<number>, order: RenyiOrder | 1): numb
     if (order === 'inf') sum += Math.log(m);
     else if (order === 1) sum += m * Math.log(m) - (m - 1) * Math.log(m - 1);
     else {
-      const r = (m - 1) / m;
-      sum += (order * Math.log(m) + Math.log1p(-Math.pow(r, order))) / (order - 1);
+      const oneMinusRToAlpha = -Math.expm1(order * Math.log1p(-1 / m));
+      sum += (order * Math.log(m) + Math.log(oneMinusRToAlpha)) / (order - 1);
     }
   }
   return sum;

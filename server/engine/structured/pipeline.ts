@@ -1,10 +1,11 @@
-import type { SubregionSpec, TruncationRule } from '@shared/vacuum';
-import { subregionElements } from '../entropy';
+import type { TruncationRule } from '@shared/vacuum';
+import { lightConeNeighbourhood } from '../causalSeparation';
 import { EngineInputError } from '../errors';
 import type { LinearAlgebraBackend } from '../linalg/backend';
 import type { PlacedPoints } from '../placement';
 import { ENGINE_VERSION, requestTruncation, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../request';
 import type { StageRunner } from '../stages';
+import { entropyCount, subregionEntropies, subregionSets } from '../subregionEntropies';
 import { applyTruncation, sqrtNCutoff } from '../truncation';
 import { dominanceSweep, lightConeSweep, PauliJordan2D } from './dominance2d';
 import type { EngineChoice } from './engineChoice';
@@ -14,8 +15,9 @@ import { topSkewPairs } from './lanczos';
 
 /**
  * The structured pipeline for 2D (issue 9): light-cone sweep order, Δ as an operator, the pairs above
- * the cut by block skew Lanczos, the truncated state as N × k factors, its checks, and the entropy
- * from the subregion's rows. `eigenvalues` in the result are the computed ones only (those above the cut,
+ * the cut by block skew Lanczos, the truncated state as N × k factors, its checks, and the entropies
+ * from the rows of the subregion, of a pair A, B and of the causal complement (server/engine/README.md
+ * §15; pair and complement found by the light-cone staircase of causalSeparation.ts). `eigenvalues` in the result are the computed ones only (those above the cut,
  * one more for modes:K), never the whole spectrum.
  */
 export async function structuredVacuum(input: {
@@ -34,7 +36,9 @@ export async function structuredVacuum(input: {
   const mass = request.mass ?? 0;
   const truncationRule: TruncationRule = requestTruncation(request);
 
-  const { sweep, relations } = await stage('order', () => {
+  const { sweep, relations, sets } = await stage('order', () => {
+    // the subregions first, so a bad pair or complement is refused before the Lanczos solve
+    const sets = subregionSets(request, placed, (elements) => lightConeNeighbourhood(points, elements));
     const t = new Float64Array(n);
     const x = new Float64Array(n);
     for (let i = 0; i < n; i++) {
@@ -47,7 +51,7 @@ export async function structuredVacuum(input: {
     dominanceSweep(sweep, new Float64Array(n).fill(1), sums, 0, false);
     let relations = 0;
     for (let i = 0; i < n; i++) relations += sums[i];
-    return { sweep, relations };
+    return { sweep, relations, sets };
   });
 
   const operator = await stage('green', () => new PauliJordan2D(sweep, { mass, density: density ?? undefined }));
@@ -81,15 +85,17 @@ export async function structuredVacuum(input: {
     return { truncation, state, diagnostics: factoredDiagnostics(state, pairs.relativeResiduals.subarray(0, keep), backend) };
   });
 
-  let entropy: VacuumResult['entropy'] = null;
-  if (request.subregion) {
-    const subregion: SubregionSpec = request.subregion;
-    entropy = await stage('entropy', () => {
-      const elements = subregionElements(subregion, points, 2, region?.periodX);
-      if (elements.length < 2) throw new EngineInputError(`the subregion holds ${elements.length} element(s); the entropy needs at least 2`);
-      return { ...factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }), elements, renyi: null };
-    });
-  }
+  const entropies: Pick<VacuumResult, 'entropy' | 'mutualInformation' | 'complement'> =
+    entropyCount(sets) > 0
+      ? await stage('entropy', () =>
+          subregionEntropies(
+            request,
+            sets,
+            (elements) => factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }),
+            hooks,
+          ),
+        )
+      : { entropy: null, mutualInformation: null, complement: null };
 
   return {
     engineVersion: ENGINE_VERSION,
@@ -112,9 +118,7 @@ export async function structuredVacuum(input: {
     modesKept: truncation.modesKept,
     knee: null,
     diagnostics,
-    entropy,
-    mutualInformation: null,
-    complement: null,
+    ...entropies,
     // the structured engine takes 2D regions only, where the cuts need no caution
     cautions: [],
     timings: input.timings,
