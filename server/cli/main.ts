@@ -5,14 +5,20 @@ import {
   entropyRuleLabel,
   formatRestrictedCut,
   formatTruncationRule,
+  parseRenyiOrders,
   parseRestrictedCut,
   parseSubregion,
   parseTruncationRule,
   regionSpecSchema,
+  renyiLabel,
+  sortedRenyiOrders,
+  renyiKey,
   type RegionSpec,
+  type SubregionSpec,
 } from '@shared/vacuum';
 import { findRegionDescriptor, regionDescriptors, regionKinds } from '@shared/regions';
-import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type VacuumRequest, type VacuumResult } from '../engine/index';
+import { commandHelp, commandNames, OVERVIEW_HELP, type CommandName } from './help';
+import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type EntropyResult, type VacuumRequest, type VacuumResult } from '../engine/index';
 import { sprinkle } from '../engine/sprinkle';
 import { ZodError } from 'zod';
 
@@ -20,34 +26,6 @@ import { ZodError } from 'zod';
 export class UsageError extends Error {
   override readonly name = 'UsageError';
 }
-
-const HELP = `tacet — quantum-field vacua and entanglement entropy on causal sets
-
-usage:
-  tacet sprinkle --region ${regionKinds.join('|')} --n N [--poisson] --seed S
-                 [region size options] [--prng arc4|alea|xor4096] [--out points.csv]
-  tacet vacuum   --points points.csv [--mass M] [--density RHO | --region R [size options]]
-                 [--truncation none|sqrtN|lambda:X|modes:K|knee[:TOL]] [--json]
-  tacet entropy  --points points.csv --subregion diamond:T0,X0:T1,X1 | elements:I,J,...
-                 [--truncation RULE] [--double] [--restricted-cut sqrtN|lambda:X|none]
-                 [--mass M] [--density RHO | --region R ...] [--json]
-
-region size options (defaults in brackets):
-${regionKinds.map((kind) => `  ${kind.padEnd(12)}${regionDescriptors[kind].cli.usage}`).join('\n')}
-
-points files are CSV with a header t,x (2D) or t,x,y,z (4D). A massive field or a 4D Green function
-needs the density: --density, or --region with its size so the volume is known (ρ = N/V).
---poisson: N ~ Poisson(ρV) with mean --n (or with --density RHO instead of --n).
---double: double truncation (Sorkin–Yazdi); the whole-region rule defaults to sqrtN.
---restricted-cut: the second cut of double truncation, on |λ| of the restricted iΔ: sqrtN [default]
-  is √n/(4π) with n the subregion's elements, lambda:X a fixed cut; sqrtN or lambda:X imply --double,
-  none means no second cut. With --truncation none it is the restricted cut only.
---backend auto|native|ml-matrix selects the dense linear algebra.
---engine auto|dense|structured: dense diagonalises N×N matrices (N ≤ 6000 native, 3000 ml-matrix);
-  structured (2D, non-periodic, truncation sqrtN, lambda:X or modes:K) computes only the modes above
-  the cut and accepts N up to 100000; auto [default] takes structured from N = 1000 when it can.
-exit codes: 0 success, 2 bad input, 1 failure.
-`;
 
 /** Every region kind's size options, in registry order without repeats. */
 const regionSizeOptions = [...new Set(regionKinds.flatMap((kind) => regionDescriptors[kind].cli.options))];
@@ -172,7 +150,7 @@ function runSprinkle(args: string[], io: Io): void {
     out: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
-  if (values.help) return io.stdout(HELP);
+  if (values.help) return io.stdout(commandHelp('sprinkle'));
   const region = regionFromOptions(values);
   if (!region) throw new UsageError('sprinkle needs --region');
   if (values.seed === undefined || values.seed === '') throw new UsageError('sprinkle needs --seed');
@@ -250,7 +228,7 @@ function common(result: VacuumResult) {
 
 async function runVacuum(args: string[], io: Io): Promise<void> {
   const values = parse(args, computeOptions);
-  if (values.help) return io.stdout(HELP);
+  if (values.help) return io.stdout(commandHelp('vacuum'));
   const result = await computeVacuum(vacuumRequest(values), progressHooks(io));
   const out = {
     ...common(result),
@@ -275,32 +253,72 @@ async function runVacuum(args: string[], io: Io): Promise<void> {
   );
 }
 
-async function runEntropy(args: string[], io: Io): Promise<void> {
-  const values = parse(args, { ...computeOptions, subregion: { type: 'string' }, double: { type: 'boolean' }, 'restricted-cut': { type: 'string' } });
-  if (values.help) return io.stdout(HELP);
-  if (values.subregion === undefined) throw new UsageError('entropy needs --subregion diamond:T0,X0:T1,X1 or elements:I,J,...');
-  const request = vacuumRequest(values);
+/** A subregion in the text form of parseSubregion; a malformed one names its option. */
+function subregionOption(values: Record<string, string | boolean | undefined>, option: 'subregion' | 'a' | 'b', needed: string): SubregionSpec {
+  const text = values[option] as string | undefined;
+  if (text === undefined) throw new UsageError(`${needed} needs --${option} diamond:T0,X0:T1,X1 or elements:I,J,...`);
   try {
-    request.subregion = parseSubregion(values.subregion as string);
+    return parseSubregion(text);
   } catch (error) {
-    throw new UsageError((error as Error).message);
+    throw new UsageError(`--${option}: ${(error as Error).message}`);
   }
+}
+
+const entropyRuleOptions = { double: { type: 'boolean' }, 'restricted-cut': { type: 'string' } } as const satisfies ParseArgsConfig['options'];
+
+/** --double and --restricted-cut onto the request: the rule of every entropy the request computes. */
+function applyEntropyRule(values: Record<string, string | boolean | undefined>, request: VacuumRequest): void {
   request.doubleTruncation = values.double === true;
-  if (values['restricted-cut'] !== undefined) {
-    let cut;
+  if (values['restricted-cut'] === undefined) return;
+  let cut;
+  try {
+    cut = parseRestrictedCut(values['restricted-cut'] as string);
+  } catch (error) {
+    throw new UsageError(`--restricted-cut: ${(error as Error).message}`);
+  }
+  if (cut === null && request.doubleTruncation) throw new UsageError('--double asks for a second cut and --restricted-cut none for none: give one of them');
+  if (cut !== null) {
+    request.doubleTruncation = true;
+    request.restrictedCut = cut;
+  }
+}
+
+/** The rule settings an entropy was computed with, as the JSON of entropy and mutual-information gives them. */
+function entropyRuleFields(result: VacuumResult, e: EntropyResult) {
+  return {
+    doubleTruncation: e.doubleTruncation,
+    restrictedCut: e.restrictedCut ? formatRestrictedCut(e.restrictedCut) : null,
+    rule: entropyRuleLabel({ truncation: result.truncation, doubleTruncation: e.doubleTruncation, restrictedCut: e.restrictedCut }),
+  };
+}
+
+function cautionLines(result: VacuumResult): string {
+  return result.cautions.map((c) => `caution: ${c}\n`).join('');
+}
+
+async function runEntropy(args: string[], io: Io): Promise<void> {
+  const values = parse(args, { ...computeOptions, ...entropyRuleOptions, subregion: { type: 'string' }, renyi: { type: 'string' }, complement: { type: 'boolean' } });
+  if (values.help) return io.stdout(commandHelp('entropy'));
+  const subregion = subregionOption(values, 'subregion', 'entropy');
+  let renyi;
+  if (values.renyi !== undefined) {
     try {
-      cut = parseRestrictedCut(values['restricted-cut'] as string);
+      renyi = parseRenyiOrders(values.renyi as string);
     } catch (error) {
-      throw new UsageError((error as Error).message);
-    }
-    if (cut === null && request.doubleTruncation) throw new UsageError('--double asks for a second cut and --restricted-cut none for none: give one of them');
-    if (cut !== null) {
-      request.doubleTruncation = true;
-      request.restrictedCut = cut;
+      throw new UsageError(`--renyi: ${(error as Error).message}`);
     }
   }
+  const request = vacuumRequest(values);
+  request.subregion = subregion;
+  applyEntropyRule(values, request);
+  if (renyi) request.renyi = renyi;
+  if (values.complement) request.complement = true;
   const result = await computeVacuum(request, progressHooks(io));
   const e = result.entropy!;
+  // the orders as asked, sorted as every table lists them; the values are the engine's, key by key
+  const orders = renyi ? sortedRenyiOrders(renyi) : [];
+  const renyiValues = renyi ? Object.fromEntries(orders.map((order) => [renyiKey(order), engineValue(e.renyi, renyiKey(order), '--renyi')])) : null;
+  const complement = values.complement ? required(result.complement, '--complement') : null;
   const out = {
     ...common(result),
     wholeRegionModesKept: result.modesKept,
@@ -308,24 +326,92 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
     S: e.S,
     modesKept: e.modesKept,
     subregionCutoff: e.cutoff,
-    doubleTruncation: e.doubleTruncation,
-    restrictedCut: e.restrictedCut ? formatRestrictedCut(e.restrictedCut) : null,
-    rule: entropyRuleLabel({ truncation: result.truncation, doubleTruncation: e.doubleTruncation, restrictedCut: e.restrictedCut }),
+    ...entropyRuleFields(result, e),
+    ...(renyiValues ? { renyi: renyiValues } : {}),
+    ...(complement ? { complement: { S: complement.S, n: complement.n, difference: complement.difference } } : {}),
     generalizedEigenvalues: Array.from(e.generalizedEigenvalues),
     timings: result.timings,
   };
   if (values.json) return io.stdout(JSON.stringify(out) + '\n');
+  const lines = [`S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${out.rule}), ${e.modesKept} modes of iΔ_O kept`];
+  if (renyiValues) lines.push(`Rényi: ${orders.map((order) => `${renyiLabel(order)} = ${renyiValues[renyiKey(order)].toPrecision(10)}`).join(', ')}`);
+  if (complement) {
+    lines.push(`complement O′: S = ${complement.S.toPrecision(10)} for n = ${complement.n} elements; S_O′ − S_O = ${complement.difference.toPrecision(6)}`);
+  }
+  io.stdout(lines.join('\n') + '\n' + cautionLines(result));
+}
+
+async function runMutualInformation(args: string[], io: Io): Promise<void> {
+  const values = parse(args, { ...computeOptions, ...entropyRuleOptions, a: { type: 'string' }, b: { type: 'string' } });
+  if (values.help) return io.stdout(commandHelp('mutual-information'));
+  const a = subregionOption(values, 'a', 'mutual-information');
+  const b = subregionOption(values, 'b', 'mutual-information');
+  const request = vacuumRequest(values);
+  request.mutualInformation = { a, b };
+  applyEntropyRule(values, request);
+  const result = await computeVacuum(request, progressHooks(io));
+  const mi = required(result.mutualInformation, '--a/--b');
+  const out = {
+    ...common(result),
+    wholeRegionModesKept: result.modesKept,
+    S_A: mi.a.S,
+    S_B: mi.b.S,
+    S_AB: mi.union.S,
+    I: mi.I,
+    n_A: mi.a.n,
+    n_B: mi.b.n,
+    ...entropyRuleFields(result, mi.union),
+    timings: result.timings,
+  };
+  if (values.json) return io.stdout(JSON.stringify(out) + '\n');
   io.stdout(
-    `S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${out.rule}), ${e.modesKept} modes of iΔ_O kept\n` +
-      result.cautions.map((c) => `caution: ${c}\n`).join(''),
+    [
+      `S_A = ${mi.a.S.toPrecision(10)} (n_A = ${mi.a.n}), S_B = ${mi.b.S.toPrecision(10)} (n_B = ${mi.b.n}), S_AB = ${mi.union.S.toPrecision(10)} (n = ${mi.union.n})`,
+      `I(A:B) = S_A + S_B − S_AB = ${mi.I.toPrecision(10)} for N = ${result.N} elements (${out.rule}), engine ${result.engine}`,
+    ].join('\n') +
+      '\n' +
+      cautionLines(result),
   );
+}
+
+/** A part of the result the request asked for; its absence is an engine fault (exit 1), not bad input. */
+function required<T>(value: T | null, option: string): T {
+  if (value === null) throw new Error(`the engine returned no result for ${option}`);
+  return value;
+}
+
+function engineValue(values: Record<string, number> | null, key: string, option: string): number {
+  const value = required(values, option)[key];
+  if (value === undefined) throw new Error(`the engine returned no value for ${option} order ${key}`);
+  return value;
 }
 
 /** The option that sets an engine request field, so a refusal names what to change. */
 function optionOfField(field: string): string | null {
-  const head = field.split('.')[0];
-  const options: Record<string, string> = { subregion: '--subregion', truncation: '--truncation', engine: '--engine', mass: '--mass', doubleTruncation: '--double' };
+  const [head, part] = field.split('.');
+  if (head === 'mutualInformation') return part === 'a' ? '--a' : part === 'b' ? '--b' : '--a/--b';
+  const options: Record<string, string> = {
+    subregion: '--subregion',
+    truncation: '--truncation',
+    engine: '--engine',
+    mass: '--mass',
+    doubleTruncation: '--double',
+    restrictedCut: '--restricted-cut',
+    renyi: '--renyi',
+    complement: '--complement',
+  };
   return options[head] ?? null;
+}
+
+const commands: Record<CommandName, (args: string[], io: Io) => void | Promise<void>> = {
+  sprinkle: runSprinkle,
+  vacuum: runVacuum,
+  entropy: runEntropy,
+  'mutual-information': runMutualInformation,
+};
+
+function isCommand(name: string): name is CommandName {
+  return (commandNames as readonly string[]).includes(name);
 }
 
 /** Runs the command line; returns the exit code (0 success, 2 bad input, 1 failure). */
@@ -338,19 +424,17 @@ export async function runCli(argv: string[], io: Partial<Io> = {}): Promise<numb
   const [command, ...rest] = argv;
   try {
     if (command === undefined || command === '--help' || command === '-h' || command === 'help') {
-      sink.stdout(HELP);
+      sink.stdout(OVERVIEW_HELP);
       return command === undefined ? 2 : 0;
     }
-    if (command === 'sprinkle') runSprinkle(rest, sink);
-    else if (command === 'vacuum') await runVacuum(rest, sink);
-    else if (command === 'entropy') await runEntropy(rest, sink);
-    else throw new UsageError(`unknown command "${command}"; use sprinkle, vacuum or entropy (tacet --help)`);
+    if (!isCommand(command)) throw new UsageError(`unknown command "${command}"; use ${commandNames.join(', ')} (tacet --help)`);
+    await commands[command](rest, sink);
     return 0;
   } catch (error) {
     if (error instanceof UsageError || error instanceof EngineInputError || error instanceof ZodError) {
       let message = error instanceof ZodError ? error.issues.map((i) => i.message).join('; ') : error.message;
       const option = error instanceof EngineInputError && error.field ? optionOfField(error.field) : null;
-      if (option) message = `${option}: ${message}`;
+      if (option && !message.startsWith(option)) message = `${option}: ${message}`;
       sink.stderr(`tacet: ${message.replace(/\s*\n\s*/g, ' ')}\n`);
       return 2;
     }
