@@ -24,3 +24,26 @@ export function runBenchChild<T>(file: string, args: string[], what: string): Pr
     });
   });
 }
+
+/**
+ * The sizes a bench module runs: its defaults, without those above BENCH_MAX_N when that is set
+ * (the quick mode, e.g. BENCH_MAX_N=4000).
+ */
+export function benchSizes(defaults: readonly number[]): number[] {
+  const text = process.env.BENCH_MAX_N;
+  if (!text) return [...defaults];
+  const max = Number(text);
+  if (!Number.isFinite(max) || max < 10) throw new Error(`BENCH_MAX_N must be a number ≥ 10, got "${text}"`);
+  return defaults.filter((n) => n <= max);
+}
+
+/**
+ * What a bench module does when run as a script: as a child (`--child N`) it prints its rows for that N
+ * on one line; alone it prints `{ rows }` of all its sizes.
+ */
+export async function runBenchScript<T>(file: string, childRows: (n: number) => Promise<T[]>, benchRows: () => Promise<T[]>): Promise<void> {
+  if (process.argv[1] !== file) return;
+  const childIndex = process.argv.indexOf('--child');
+  if (childIndex >= 0) process.stdout.write(JSON.stringify(await childRows(Number(process.argv[childIndex + 1]))));
+  else process.stdout.write(JSON.stringify({ rows: await benchRows() }, null, 2) + '\n');
+}

@@ -13,7 +13,7 @@
  *
  * Run alone with `npx tsx scripts/bench/dense.ts`, or through `npm run bench`.
  */
-import { runBenchChild } from '../benchChild';
+import { benchSizes, runBenchChild, runBenchScript } from '../benchChild';
 import { fileURLToPath } from 'node:url';
 
 export interface DenseBenchRow {
@@ -27,13 +27,6 @@ export interface DenseBenchRow {
 const thisFile = fileURLToPath(import.meta.url);
 const SIZES = [500, 1000, 2000];
 
-function sizes(): number[] {
-  const text = process.env.BENCH_MAX_N;
-  if (!text) return SIZES;
-  const max = Number(text);
-  if (!Number.isFinite(max) || max < 10) throw new Error(`BENCH_MAX_N must be a number ≥ 10, got "${text}"`);
-  return SIZES.filter((n) => n <= max);
-}
 
 async function childRows(n: number): Promise<DenseBenchRow[]> {
   const { sprinkle } = await import('../../server/engine/sprinkle');
@@ -80,15 +73,11 @@ function runChild(n: number): Promise<DenseBenchRow[]> {
 
 export async function benchRows(): Promise<DenseBenchRow[]> {
   const rows: DenseBenchRow[] = [];
-  for (const n of sizes()) {
+  for (const n of benchSizes(SIZES)) {
     process.stderr.write(`bench dense: N = ${n}…\n`);
     rows.push(...(await runChild(n)));
   }
   return rows;
 }
 
-if (process.argv[1] === thisFile) {
-  const childIndex = process.argv.indexOf('--child');
-  if (childIndex >= 0) process.stdout.write(JSON.stringify(await childRows(Number(process.argv[childIndex + 1]))));
-  else process.stdout.write(JSON.stringify({ rows: await benchRows() }, null, 2) + '\n');
-}
+await runBenchScript(thisFile, childRows, benchRows);

@@ -14,7 +14,7 @@
  *
  * Run alone with `npx tsx scripts/bench/structured.ts`, or through `npm run bench`.
  */
-import { runBenchChild } from '../benchChild';
+import { benchSizes, runBenchChild, runBenchScript } from '../benchChild';
 import { fileURLToPath } from 'node:url';
 
 export interface StructuredBenchRow {
@@ -42,13 +42,6 @@ export interface StructuredBenchRow {
 const thisFile = fileURLToPath(import.meta.url);
 const SIZES = [4000, 20_000, 100_000];
 
-function sizes(): number[] {
-  const text = process.env.BENCH_MAX_N;
-  if (!text) return SIZES;
-  const max = Number(text);
-  if (!Number.isFinite(max) || max < 10) throw new Error(`BENCH_MAX_N must be a number ≥ 10, got "${text}"`);
-  return SIZES.filter((n) => n <= max);
-}
 
 async function childRows(n: number): Promise<StructuredBenchRow[]> {
   const { sprinkle } = await import('../../server/engine/sprinkle');
@@ -121,15 +114,11 @@ function runChild(n: number): Promise<StructuredBenchRow[]> {
 
 export async function benchRows(): Promise<StructuredBenchRow[]> {
   const rows: StructuredBenchRow[] = [];
-  for (const n of sizes()) {
+  for (const n of benchSizes(SIZES)) {
     process.stderr.write(`bench structured: N = ${n}…\n`);
     rows.push(...(await runChild(n)));
   }
   return rows;
 }
 
-if (process.argv[1] === thisFile) {
-  const childIndex = process.argv.indexOf('--child');
-  if (childIndex >= 0) process.stdout.write(JSON.stringify(await childRows(Number(process.argv[childIndex + 1]))));
-  else process.stdout.write(JSON.stringify({ rows: await benchRows() }, null, 2) + '\n');
-}
+await runBenchScript(thisFile, childRows, benchRows);
