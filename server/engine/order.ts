@@ -61,7 +61,8 @@ export class BitRelation {
   }
 }
 
-function popcount(x: number): number {
+/** Set bits of a 32-bit word. */
+export function popcount(x: number): number {
   x -= (x >>> 1) & 0x55555555;
   x = (x & 0x33333333) + ((x >>> 2) & 0x33333333);
   x = (x + (x >>> 4)) & 0x0f0f0f0f;
