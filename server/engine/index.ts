@@ -19,12 +19,16 @@ export { ENGINE_VERSION, type PointSource, type VacuumHooks, type VacuumRequest,
 export { stageRunner } from './stages';
 export { checkDenseSize, DENSE_SIZE_LIMIT, DENSE_SIZE_LIMITS, denseMemoryBytes, denseSizeLimit } from './limits';
 export { validateVacuumRequest } from './validate';
+export { subregionPairIssue, type SubregionPairIssue } from './subregionCheck';
+export { renyiEntropies, renyiEntropy } from './renyi';
+export { mutualInformation, pairIssue, unionElements, type MutualInformationResult } from './mutualInformation';
+export { causalComplement, lightConeNeighbourhood, relationNeighbourhood, type CausalNeighbourhood } from './causalSeparation';
 export type { VacuumStage } from '@shared/vacuum';
 export type { EntropyResult } from './entropy';
 export type { SjDiagnostics } from './sjDiagnostics';
 export type { SjState } from './sjState';
 export type { KneeFit, TruncationResult } from './truncation';
-export { continuumDiamondSpectrum } from './continuum';
+export { continuumDiamondSpectrum, continuumMutualInformation } from './continuum';
 export { sprinkle } from './sprinkle';
 export { makeRegion } from './regions';
 export { getBackend } from './linalg';

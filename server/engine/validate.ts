@@ -1,15 +1,25 @@
-import { regionSpecSchema, restrictedCutSchema, sprinklingSpecSchema, subregionSpecSchema, truncationRuleSchema, type RegionSpec } from '@shared/vacuum';
+import {
+  regionSpecSchema,
+  renyiOrdersSchema,
+  restrictedCutSchema,
+  sprinklingSpecSchema,
+  subregionPairSchema,
+  subregionSpecSchema,
+  truncationRuleSchema,
+  type RegionSpec,
+} from '@shared/vacuum';
 import { subregionElements } from './entropy';
 import { sizeLimitFor } from './engineForRequest';
 import { EngineInputError } from './errors';
 import { checkDenseSize } from './limits';
 import { makeRegion } from './regions';
 import type { VacuumRequest } from './request';
-import { diamondPlacementIssue, elementListIssue, tipCoordinates } from './subregionCheck';
+import { diamondPlacementIssue, elementListIssue, subregionPairIssue, tipCoordinates } from './subregionCheck';
 
 /**
  * Validates a request before any work: schemas, consistency (density for massive or 4D fields,
- * subregion dimension) and the dense size limit — for Poisson sprinklings the expected N plus five
+ * subregion dimension; Rényi orders and the complement need a subregion; a mutual-information pair as
+ * subregionPairIssue rules, server/engine/README.md §15) and the dense size limit — for Poisson sprinklings the expected N plus five
  * standard deviations. Throws EngineInputError with a message for the user.
  */
 export function validateVacuumRequest(request: VacuumRequest, maxN: number = sizeLimitFor(request)): void {
@@ -106,7 +116,32 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
       if (held < 2) fail(`the subregion holds ${held} of the ${size.n} elements; the entropy needs at least 2`, 'subregion');
     }
   }
-  if (request.doubleTruncation && !request.subregion) fail('double truncation needs a subregion', 'doubleTruncation');
+  if (request.renyi !== undefined) {
+    const parsed = renyiOrdersSchema.safeParse(request.renyi);
+    if (!parsed.success) fail(`invalid Rényi orders: ${zodMessage(parsed.error)}`, 'renyi');
+    if (!request.subregion) fail('Rényi entropies need a subregion: they are entropies of the subregion', 'renyi');
+  }
+  if (request.complement && !request.subregion) fail('the complement check needs a subregion: it compares the subregion with its causal complement', 'complement');
+  if (request.mutualInformation !== undefined) {
+    const parsed = subregionPairSchema.safeParse(request.mutualInformation);
+    if (!parsed.success) {
+      const issue = parsed.error.issues[0]!;
+      fail(`invalid mutual-information pair: ${zodMessage(parsed.error)}`, ['mutualInformation', ...issue.path.slice(0, 1)].join('.'));
+      return;
+    }
+    const pairIssue = subregionPairIssue(parsed.data, dimension, placedIn, { elementCount: size, hasCoordinates: request.source.kind !== 'order' });
+    if (pairIssue) fail(pairIssue.message, `mutualInformation.${pairIssue.field}`);
+    if (request.source.kind === 'points') {
+      const points = request.source.points;
+      for (const side of ['a', 'b'] as const) {
+        const spec = parsed.data[side];
+        if (spec.kind !== 'diamond') continue;
+        const held = subregionElements(spec, points, dimension, placedIn ? makeRegion(placedIn).periodX : undefined).length;
+        if (held < 2) fail(`subregion ${side.toUpperCase()} holds ${held} of the ${size.n} elements; its entropy needs at least 2`, `mutualInformation.${side}`);
+      }
+    }
+  }
+  if (request.doubleTruncation && !request.subregion && !request.mutualInformation) fail('double truncation needs a subregion or a mutual-information pair', 'doubleTruncation');
   if (request.restrictedCut !== undefined) {
     if (!request.doubleTruncation) fail('restrictedCut: a restricted cut applies only with double truncation (doubleTruncation: true)');
     const parsed = restrictedCutSchema.safeParse(request.restrictedCut);
