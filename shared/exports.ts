@@ -22,6 +22,27 @@ export interface ExportFormatRow {
 export const runExportFormats = ['points.csv', 'spectrum.csv', 'spectrum.json'] as const;
 export type RunExportFormat = (typeof runExportFormats)[number];
 
+/** One restricted cut as exports give it: the rule's text ("√n/(4π)", "λ = 0.2") and the |λ| it came to; rule null without double truncation. */
+const exportedCutSchema = z.object({ rule: z.string().nullable(), cutoff: z.number(), modesKept: z.number().int() });
+
+/**
+ * The subregion's Rényi entropies, the pair's mutual information and the complement check, in
+ * `spectrum.json` when the run asked for any of them (server/engine/README.md §15).
+ */
+export const runEntropiesExportSchema = z.object({
+  /** the entropy rule, as the run page names it */
+  rule: z.string(),
+  /** the subregion O: S (= S_1), n, and S_α by order ("0.5", "2", "inf") when asked */
+  subregion: z.object({ S: z.number(), n: z.number().int(), cut: exportedCutSchema, renyi: z.record(z.string(), z.number()).nullable() }).nullable(),
+  /** I(A:B) = S_A + S_B − S_AB with each part's size and cut */
+  mutualInformation: z
+    .object({ SA: z.number(), SB: z.number(), SAB: z.number(), I: z.number(), nA: z.number().int(), nB: z.number().int(), nAB: z.number().int(), cuts: z.object({ A: exportedCutSchema, B: exportedCutSchema, AB: exportedCutSchema }) })
+    .nullable(),
+  /** S_O and S_O′ of the causal complement O′ in the region, and S_O′ − S_O (a purity diagnostic) */
+  complement: z.object({ SO: z.number(), SOprime: z.number(), nO: z.number().int(), nOprime: z.number().int(), difference: z.number(), cut: exportedCutSchema }).nullable(),
+});
+export type RunEntropiesExport = z.infer<typeof runEntropiesExportSchema>;
+
 /** The spectrum as `spectrum.json` gives it. */
 export const runSpectrumExportSchema = z.object({
   eigenvalues: z.array(z.number()),
@@ -29,6 +50,8 @@ export const runSpectrumExportSchema = z.object({
   cutoff: z.number(),
   modesKept: z.number().int(),
   N: z.number().int(),
+  /** present when the run asked for Rényi orders, a pair or the complement check */
+  entropies: runEntropiesExportSchema.optional(),
 });
 export type RunSpectrumExport = z.infer<typeof runSpectrumExportSchema>;
 
@@ -58,7 +81,7 @@ export const runExports = {
   },
   'spectrum.json': {
     label: 'Spectrum (JSON)',
-    note: 'eigenvalues, continuum, cut, modes kept, N',
+    note: 'eigenvalues, continuum, cut, modes kept, N; S_α, I(A:B) and the complement check when asked',
     contentType: 'application/json; charset=utf-8',
     nameSuffix: '-spectrum',
     extension: 'json',

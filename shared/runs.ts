@@ -2,8 +2,10 @@ import { z } from 'zod';
 import { regionKinds } from './regions';
 import {
   engineRequestSchema,
+  renyiOrdersSchema,
   restrictedCutSchema,
   sprinklingSpecSchema,
+  subregionPairSchema,
   subregionSpecSchema,
   truncationRuleSchema,
   vacuumSettingsSchema,
@@ -49,6 +51,12 @@ export const reanalyseRunRequestSchema = z.strictObject({
   restrictedCut: restrictedCutSchema.nullable().optional(),
   /** the parent's engine request carries over when absent; auto lets the rule pick for the new cut */
   engine: engineRequestSchema.optional(),
+  /** Rényi orders; the parent's carry over (with a subregion) when absent, null asks for none */
+  renyi: renyiOrdersSchema.nullable().optional(),
+  /** the pair for I(A:B); the parent's carries over when absent, null drops it */
+  mutualInformation: subregionPairSchema.nullable().optional(),
+  /** the complement check; the parent's carries over (with a subregion) when absent */
+  complement: z.boolean().optional(),
 });
 export type ReanalyseRunRequest = z.infer<typeof reanalyseRunRequestSchema>;
 
@@ -204,6 +212,8 @@ export const runPointsSchema = z.object({
   points: z.array(z.array(z.number())),
   /** element labels inside the subregion, when one was asked */
   subregionElements: z.array(z.number().int()).nullable(),
+  /** element labels inside A and inside B, when the run asked for a pair (absent on older servers) */
+  pairElements: z.object({ a: z.array(z.number().int()), b: z.array(z.number().int()) }).nullable().optional(),
 });
 export type RunPoints = z.infer<typeof runPointsSchema>;
 

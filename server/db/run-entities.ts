@@ -8,6 +8,15 @@ import type { RestrictedCut, TruncationRule, VacuumStage } from '@shared/vacuum'
  * (./codecs.ts); the scalar results live in `summary`.
  */
 
+/** One entropy beside the subregion's (A, B, A∪B of a pair; the causal complement), as `summary` keeps it. */
+export interface EntropyPartRecord {
+  S: number;
+  n: number;
+  modesKept: number;
+  cutoff: number;
+  restrictedCut: RestrictedCut | null;
+}
+
 /** Result numbers kept as JSON beside the compressed arrays. */
 export interface RunSummaryRecord {
   density: number | null;
@@ -20,7 +29,12 @@ export interface RunSummaryRecord {
   diagnostics: Record<string, unknown>;
   timings: Record<string, number>;
   /** restrictedCut: the second cut applied (null without double truncation; absent in runs stored before it was a setting, which used √n/(4π)) */
-  entropy: { S: number; n: number; modesKept: number; cutoff: number; doubleTruncation: boolean; restrictedCut?: RestrictedCut | null } | null;
+  /** renyi: S_α by renyiKey when orders were asked (absent in runs stored before them) */
+  entropy: { S: number; n: number; modesKept: number; cutoff: number; doubleTruncation: boolean; restrictedCut?: RestrictedCut | null; renyi?: Record<string, number> | null } | null;
+  /** I(A:B) and the entropies of A, B and A∪B, when a pair was asked (absent in runs stored before pairs) */
+  mutualInformation?: { I: number; a: EntropyPartRecord; b: EntropyPartRecord; union: EntropyPartRecord } | null;
+  /** the causal complement's entropy and S_O′ − S_O, when asked (absent in runs stored before it) */
+  complement?: (EntropyPartRecord & { difference: number }) | null;
   /** cautions for the rule on this dimension (absent in runs stored before them) */
   cautions?: string[];
   /** which engine ran and why (absent in runs stored before the structured engine) */

@@ -1,5 +1,5 @@
 import type { RunOutcome } from '../db/repositories/runs';
-import type { RunSummaryRecord } from '../db/run-entities';
+import type { EntropyPartRecord, RunSummaryRecord } from '../db/run-entities';
 import { encodeFloat64, encodeInt32 } from '../db/codecs';
 import type { VacuumResult } from '../engine/index';
 
@@ -12,6 +12,11 @@ function diagnosticsRecord(d: VacuumResult['diagnostics']): Record<string, unkno
     positiveNegativeOverlap: d.orthogonalityError,
     ...d,
   };
+}
+
+/** The scalars of one entropy beside the subregion's; its element list is not stored (the request recomputes it). */
+function entropyPart(part: Pick<NonNullable<VacuumResult['complement']>, 'S' | 'n' | 'modesKept' | 'cutoff' | 'restrictedCut'>): EntropyPartRecord {
+  return { S: part.S, n: part.n, modesKept: part.modesKept, cutoff: part.cutoff, restrictedCut: part.restrictedCut ?? null };
 }
 
 /** The engine's result as the run's row keeps it: scalars in `summary`, the long arrays encoded for bytea. */
@@ -34,8 +39,18 @@ export function outcomeOf(result: VacuumResult): RunOutcome {
           cutoff: result.entropy.cutoff,
           doubleTruncation: result.entropy.doubleTruncation,
           restrictedCut: result.entropy.restrictedCut,
+          renyi: result.entropy.renyi ?? null,
         }
       : null,
+    mutualInformation: result.mutualInformation
+      ? {
+          I: result.mutualInformation.I,
+          a: entropyPart(result.mutualInformation.a),
+          b: entropyPart(result.mutualInformation.b),
+          union: entropyPart(result.mutualInformation.union),
+        }
+      : null,
+    complement: result.complement ? { ...entropyPart(result.complement), difference: result.complement.difference } : null,
     cautions: result.cautions,
     engine: result.engine,
     engineReason: result.engineReason,

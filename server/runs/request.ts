@@ -1,4 +1,4 @@
-import type { RegionSpec, RestrictedCut, SprinklingSpec, SubregionSpec, TruncationRule } from '@shared/vacuum';
+import type { RegionSpec, RenyiOrder, RestrictedCut, SprinklingSpec, SubregionPair, SubregionSpec, TruncationRule } from '@shared/vacuum';
 import { EngineInputError, type VacuumRequest } from '../engine/index';
 
 /** Where a run's elements came from, kept in the run's stored request. */
@@ -32,6 +32,12 @@ export interface StoredRunRequest {
   causalSet?: CausalSetReference;
   /** dense, structured or auto (absent: auto) */
   engine?: 'auto' | 'dense' | 'structured';
+  /** Rényi orders of the subregion's entropy (absent: none) */
+  renyi?: RenyiOrder[];
+  /** the pair A, B of the mutual information (absent: none) */
+  mutualInformation?: SubregionPair;
+  /** the entropy of the subregion's causal complement beside S (absent: false) */
+  complement?: boolean;
 }
 
 /**
@@ -52,6 +58,9 @@ export function toEngineRequest(
     doubleTruncation: request.doubleTruncation,
     ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
     ...(request.engine ? { engine: request.engine } : {}),
+    ...(request.renyi ? { renyi: request.renyi } : {}),
+    ...(request.mutualInformation ? { mutualInformation: request.mutualInformation } : {}),
+    ...(request.complement ? { complement: true } : {}),
   };
   if (request.causalSet?.kind === 'relations') {
     const imported = request.causalSet;

@@ -11,17 +11,19 @@ import {
   type RunSummary,
 } from '@shared/runs';
 import type { RunExportFormat, RunSpectrumExport } from '@shared/exports';
-import { effectiveRestrictedCut, formatRestrictedCut, formatTruncationRule, ruleCautions } from '@shared/vacuum';
+import { effectiveRestrictedCut, entropyRuleLabel, formatRestrictedCut, formatTruncationRule, ruleCautions } from '@shared/vacuum';
 import { decodeFloat64, decodeInt32, decodeRelationWords } from '../../db/codecs';
 import * as runs from '../../db/repositories/runs';
 import type { RunWithAuthor } from '../../db/repositories/runs';
 import type { UserRow } from '../../db/entities';
 import { loadCausalSetRunInput } from './causalSets';
 import { EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest } from '../../engine/index';
+import { subregionElements } from '../../engine/entropy';
 import { continuumSpectrumFor } from '../../engine/regions';
 import { discardJob, enqueueJob, vacuumRunJobId } from '../../queue/jobs';
 import { toEngineRequest, type StoredRunRequest } from '../../runs/request';
 import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
+import { entropiesExport } from '../../exports/runs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 
@@ -49,7 +51,7 @@ const id8 = (id: string) => id.slice(0, 8);
 
 /** The restricted cut a stored run applies, in short text form; null without double truncation. */
 function restrictedCutOf(request: StoredRunRequest): string | null {
-  const cut = request.subregion ? effectiveRestrictedCut({ truncation: request.truncation, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut }) : null;
+  const cut = request.subregion || request.mutualInformation ? effectiveRestrictedCut({ truncation: request.truncation, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut }) : null;
   return cut ? formatRestrictedCut(cut) : null;
 }
 
@@ -84,6 +86,9 @@ function storedSettings(request: CreateRunRequest): Omit<StoredRunRequest, 'spri
     doubleTruncation: request.doubleTruncation,
     ...(request.restrictedCut ? { restrictedCut: request.restrictedCut } : {}),
     ...(request.engine ? { engine: request.engine } : {}),
+    ...(request.renyi ? { renyi: request.renyi } : {}),
+    ...(request.mutualInformation ? { mutualInformation: request.mutualInformation } : {}),
+    ...(request.complement ? { complement: true } : {}),
   };
 }
 
@@ -137,8 +142,11 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
               // runs stored before the restricted cut was a setting cut at √n/(4π) when doubly truncated
               restrictedCut: s.entropy.restrictedCut !== undefined ? s.entropy.restrictedCut : s.entropy.doubleTruncation ? { rule: 'sqrtN' } : null,
               generalizedEigenvalues: arrays!.generalizedEigenvalues ? Array.from(decodeFloat64(arrays!.generalizedEigenvalues)) : [],
+              renyi: s.entropy.renyi ?? null,
             }
           : null,
+        mutualInformation: s.mutualInformation ?? null,
+        complement: s.complement ?? null,
         backend: row.backend ?? '',
         engineVersion: row.engineVersion ?? '',
         timings: s.timings,
@@ -190,19 +198,49 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       columns: d === 2 ? ['t', 'x'] : ['t', 'x', 'y', 'z'],
       points,
       subregionElements: arrays.subregionElements ? Array.from(decodeInt32(arrays.subregionElements)) : null,
+      pairElements: pairElementsOf(row.request as unknown as StoredRunRequest, flat, d),
     };
+  }
+
+  /**
+   * A and B of the run's pair, found again from the request: the engine's own membership rule for tips
+   * (cheap beside the run), the listed labels otherwise; so the row keeps no second copy of them.
+   */
+  function pairElementsOf(request: StoredRunRequest, points: Float64Array, dimension: 2 | 4): RunPoints['pairElements'] {
+    const pair = request.mutualInformation;
+    if (!pair) return null;
+    const region = request.sprinkling?.region ?? request.causalSet?.region ?? null;
+    const periodX = region ? makeRegion(region).periodX : undefined;
+    const members = (spec: typeof pair.a) => Array.from(subregionElements(spec, points, dimension, periodX));
+    try {
+      return { a: members(pair.a), b: members(pair.b) };
+    } catch {
+      // a label beyond N (refused before the run, so only a stored run of an older check) shows no pair
+      return null;
+    }
   }
 
   async function spectrumOf(row: RunWithAuthor): Promise<RunSpectrumExport> {
     requireDone(row);
     const arrays = await runs.loadRunArrays(m, row.teamId, row.id, ['eigenvalues']);
     const eigenvalues = Array.from(decodeFloat64(arrays!.eigenvalues!));
+    const summary = row.summary!;
+    const request = row.request as unknown as StoredRunRequest;
+    const entropies = entropiesExport(
+      {
+        entropy: summary.entropy ? { ...summary.entropy, generalizedEigenvalues: [] } : null,
+        mutualInformation: summary.mutualInformation ?? null,
+        complement: summary.complement ?? null,
+      },
+      entropyRuleLabel(request),
+    );
     return {
       eigenvalues,
       continuum: continuumFor(row, eigenvalues.length),
-      cutoff: row.summary!.cutoff,
-      modesKept: row.summary!.modesKept,
+      cutoff: summary.cutoff,
+      modesKept: summary.modesKept,
       N: row.n!,
+      ...(entropies ? { entropies } : {}),
     };
   }
 
@@ -292,10 +330,15 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       if (!arrays?.points) throw conflict('points_missing', 'The run has no stored points to re-analyse.');
       const base = parent.request as unknown as StoredRunRequest;
       const subregion = changes.subregion === null ? undefined : (changes.subregion ?? base.subregion);
-      // a parent's double truncation lapses with its subregion unless asked for again
-      const doubleTruncation = changes.doubleTruncation ?? (subregion ? base.doubleTruncation : false);
+      const mutualInformation = changes.mutualInformation === null ? undefined : (changes.mutualInformation ?? base.mutualInformation);
+      // a parent's double truncation lapses with its subregion and pair unless asked for again
+      const doubleTruncation = changes.doubleTruncation ?? (subregion || mutualInformation ? base.doubleTruncation : false);
       // the restricted cut carries over with double truncation; null asks for the default √n/(4π)
       const restrictedCut = !doubleTruncation ? undefined : changes.restrictedCut === null ? undefined : (changes.restrictedCut ?? base.restrictedCut);
+      // the parent's Rényi orders and complement check describe its subregion and lapse with it (asked
+      // for again without one, the engine's check refuses them); the pair stands alone
+      const renyi = changes.renyi === null ? undefined : (changes.renyi ?? (subregion ? base.renyi : undefined));
+      const complement = changes.complement ?? (subregion ? (base.complement ?? false) : false);
       const title = changes.title || (parent.title ? `${parent.title} (re-analysis)` : `Re-analysis of ${id8(parent.id)}`);
       const stored: StoredRunRequest = {
         title,
@@ -309,6 +352,9 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
         // the parent's engine request carries over unless the change names one (the rule may still
         // pick another engine for the new cut under auto)
         ...((changes.engine ?? base.engine) ? { engine: changes.engine ?? base.engine } : {}),
+        ...(renyi ? { renyi } : {}),
+        ...(mutualInformation ? { mutualInformation } : {}),
+        ...(complement ? { complement } : {}),
         reusedPoints: { runId: parent.id, N: parent.n!, density: parent.summary?.density ?? null },
       };
       validateForEngine(
