@@ -7,10 +7,13 @@ import {
   formatTruncationRule,
   prngSchema,
   regionSpecSchema,
+  renyiKey,
   renyiOrdersSchema,
   restrictedCutSchema,
+  sortedRenyiOrders,
   truncationRuleSchema,
   type EntropyRuleSettings,
+  type RenyiOrder,
 } from './vacuum';
 
 /**
@@ -89,6 +92,8 @@ const elementListSchema = z.strictObject({
  * Subregions, each a causal diamond or, on imported causal sets, a list of elements:
  * - `concentric`: sub-diamonds sharing the centre and axis of the region, with proper time ℓ = f·L for
  *   each fraction f = ℓ/L (2D diamonds, cylinder diamonds and 4D diamonds);
+ * - `pairs`: two equal sub-diamonds of proper time ℓ = (ℓ/L)·L on the region's central slice, symmetric
+ *   about its centre, a gap d = (d/L)·L between their facing corners, for the mutual information;
  * - `tips`: sub-diamonds given by their past and future tips;
  * - `elements`: element lists, for imported causal sets (the only choice for a relation list).
  */
@@ -171,7 +176,7 @@ export const sprinkledStudyRequestSchema = z
     renyi: renyiOrdersSchema.optional(),
   })
   .refine((r) => r.subregions.kind !== 'elements', {
-    message: 'element lists are for imported causal sets; give concentric sub-diamonds or tips for sprinklings',
+    message: 'element lists are for imported causal sets; give concentric sub-diamonds, pairs or tips for sprinklings',
     path: ['subregions', 'kind'],
   })
   .refine((r) => r.counts.length * r.seeds.length <= STUDY_MAX_CELLS, {
@@ -273,12 +278,25 @@ export const studyEntropySchema = z.object({
   stateCutoff: z.number(),
   /** S_α by renyiKey, when the study asked for Rényi orders (not for pairs) */
   renyi: z.record(z.string(), z.number()).optional(),
-  /** a pair row: S and n above are those of A∪B; I = S_A + S_B − S_{A∪B} */
+  /** a pair row: S, n and renyi above are those of A∪B; I = S_A + S_B − S_{A∪B} */
   pair: z
-    .object({ size: z.number(), separation: z.number(), SA: z.number(), SB: z.number(), SAB: z.number(), I: z.number(), nA: z.number().int(), nB: z.number().int() })
+    .object({
+      size: z.number(),
+      separation: z.number(),
+      SA: z.number(),
+      SB: z.number(),
+      SAB: z.number(),
+      I: z.number(),
+      nA: z.number().int(),
+      nB: z.number().int(),
+      /** the Rényi mutual information I_α = S_α(A) + S_α(B) − S_α(A∪B), by renyiKey, when Rényi orders were asked */
+      renyiI: z.record(z.string(), z.number()).optional(),
+    })
     .optional(),
 });
 export type StudyEntropy = z.infer<typeof studyEntropySchema>;
+
+const meanWithErrorSchema = z.object({ mean: z.number(), se: z.number().nullable() });
 
 /** Ensemble over seeds for one (N, subregion, rule). */
 export const studyAggregateSchema = z.object({
@@ -295,9 +313,19 @@ export const studyAggregateSchema = z.object({
   /** standard error of the mean, sdS/√seeds; null for a single seed */
   seS: z.number().nullable(),
   /** mean and standard error of each S_α over seeds, by renyiKey */
-  renyi: z.record(z.string(), z.object({ mean: z.number(), se: z.number().nullable() })).optional(),
+  renyi: z.record(z.string(), meanWithErrorSchema).optional(),
   /** a pair's mutual information over seeds */
-  pair: z.object({ size: z.number(), separation: z.number(), meanI: z.number(), sdI: z.number().nullable(), seI: z.number().nullable() }).optional(),
+  pair: z
+    .object({
+      size: z.number(),
+      separation: z.number(),
+      meanI: z.number(),
+      sdI: z.number().nullable(),
+      seI: z.number().nullable(),
+      /** mean and standard error of each Rényi mutual information I_α, by renyiKey */
+      renyiI: z.record(z.string(), meanWithErrorSchema).optional(),
+    })
+    .optional(),
 });
 export type StudyAggregate = z.infer<typeof studyAggregateSchema>;
 
@@ -315,6 +343,15 @@ export const studyFitSchema = z.object({
   quantity: z.string().optional(),
   /** pairs: the size ℓ/L whose separations were fitted */
   size: z.number().optional(),
+  /** pairs: the N whose separations were fitted (a log-log fit is per rule, size and N) */
+  N: z.number().int().optional(),
+  /** pairs: separations left out of the log-log fit because their ⟨I⟩ ≤ 0 (no logarithm) */
+  excluded: z.number().int().optional(),
+  /**
+   * pairs: the log-log slope of the continuum two-interval trend (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] over the same
+   * d/L values (server/engine/README.md §15), beside the measured slope, and the d/L range fitted
+   */
+  continuum: z.object({ slope: z.number(), from: z.number(), to: z.number() }).optional(),
   points: z.number().int(),
   slope: z.number(),
   slopeError: z.number().nullable(),
@@ -330,6 +367,31 @@ export const studyFitSchema = z.object({
   weighting: z.enum(['inverse-variance', 'unweighted']),
 });
 export type StudyFit = z.infer<typeof studyFitSchema>;
+
+/** The quantity key of S_α in fits: "renyi:2", "renyi:inf". */
+export const renyiQuantity = (key: string): string => `renyi:${key}`;
+
+/** The S of a fit: fits stored before Rényi orders carry no quantity. */
+export const fitQuantity = (fit: Pick<StudyFit, 'quantity'>): string => fit.quantity ?? 'S';
+
+/** The renyiKey of each order of a request, ascending with ∞ last (empty without orders). */
+export function studyRenyiKeys(request: { renyi?: RenyiOrder[] }): string[] {
+  return request.renyi ? sortedRenyiOrders(request.renyi).map(renyiKey) : [];
+}
+
+const short = (v: number, digits = 3) => String(Number(v.toPrecision(digits)));
+
+/**
+ * The sentence that states a log-log fit of I against d beside the continuum trend, as the study page,
+ * the LaTeX caption and the methods paragraph give it: "measured slope −1.12 ± 0.15 against continuum
+ * trend −0.87 over d/L ∈ [0.05, 0.2] (4 points)".
+ */
+export function pairDecaySentence(fit: Pick<StudyFit, 'slope' | 'slopeError' | 'continuum' | 'points' | 'excluded'>): string {
+  const measured = `measured slope ${short(fit.slope)}${fit.slopeError !== null ? ` ± ${short(fit.slopeError, 2)}` : ''}`;
+  const trend = fit.continuum ? ` against continuum trend ${short(fit.continuum.slope)} over d/L ∈ [${short(fit.continuum.from)}, ${short(fit.continuum.to)}]` : '';
+  const left = fit.excluded ? `; ${fit.excluded} separation${fit.excluded === 1 ? '' : 's'} with ⟨I⟩ ≤ 0 left out` : '';
+  return `${measured}${trend} (${fit.points} points${left})`;
+}
 
 export const studyCellSchema = z.object({
   id: z.string(),

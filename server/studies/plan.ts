@@ -59,6 +59,86 @@ function tipsProblem(d: Tips, dimension: 2 | 4, placements: PlacedIn[]): { messa
   return null;
 }
 
+const toEvent = (c: number[]): Event => (c.length === 4 ? { t: c[0]!, x: c[1]!, y: c[2]!, z: c[3]! } : { t: c[0]!, x: c[1]! });
+
+/** A pair subregion's two sub-diamonds as the engine takes them; null for any other subregion. */
+export function pairSubregions(subregion: ResolvedSubregion): { a: SubregionSpec; b: SubregionSpec } | null {
+  if (!subregion.pair) return null;
+  return { a: { kind: 'diamond', ...subregion.pair.a }, b: { kind: 'diamond', ...subregion.pair.b } };
+}
+
+/** The key of a pair: `pair l/L=0.2 d/L=0.1`. */
+export const pairKey = (size: number, separation: number) => `pair l/L=${formatFraction(size)} d/L=${formatFraction(separation)}`;
+
+/**
+ * Two equal sub-diamonds of proper time ℓ = size·L in the region's own diamond (tips `own`, proper time
+ * L), centred on its central slice and symmetric about its centre, with a gap d = separation·L between
+ * their facing corners: centres c ± (ℓ + d)/2 ê, ê the unit spacelike direction orthogonal to the
+ * diamond's axis in 2D (the x axis in its rest frame; x itself for the centred 4D diamond). Both lie in
+ * the diamond when 2ℓ + d ≤ L (the outer corners at (ℓ + d/2) from the centre, the diamond's half-width
+ * L/2); their bases are disjoint intervals (balls) of one slice, so A and B are spacelike to each other.
+ * On the cylinder the gap the other way round, C − 2ℓ − d, must be at least d too, or d would not be
+ * the distance between them. Throws StudyPlanError naming the separation (or size) that does not fit.
+ */
+function pairTips(region: RegionSpec, own: Tips, size: number, separation: number, k: { size: number; separation: number }): NonNullable<ResolvedSubregion['pair']> {
+  const p = coordinates(own.past);
+  const q = coordinates(own.future);
+  const axis = q.map((v, i) => v - p[i]!);
+  const L = Math.sqrt(axis[0]! ** 2 - axis.slice(1).reduce((s, v) => s + v * v, 0));
+  const unitAxis = axis.map((v) => v / L);
+  // in 2D (u_t, u_x) → (u_x, u_t) is orthogonal to the axis and spacelike of unit norm; 4D diamonds are centred on the t axis
+  const across = p.length === 2 ? [unitAxis[1]!, unitAxis[0]!] : [0, 1, 0, 0];
+  const centre = p.map((v, i) => (v + q[i]!) / 2);
+  const ell = size * L;
+  const d = separation * L;
+  const where = `the pair ℓ/L = ${formatFraction(size)}, d/L = ${formatFraction(separation)}`;
+  if (2 * ell + d > L * (1 + 1e-12)) {
+    throw new StudyPlanError(
+      `${where} does not fit in the region's diamond: two sub-diamonds and their gap span 2ℓ + d = ${formatFraction(2 * size + separation)} L across its central slice, at most L; take a smaller d/L or ℓ/L`,
+      `subregions.separations.${k.separation}`,
+    );
+  }
+  if (region.kind === 'cylinder2d') {
+    const other = region.circumference - 2 * ell - d;
+    if (other < d) {
+      throw new StudyPlanError(
+        `${where} on the cylinder of circumference ${formatFraction(region.circumference)}: the gap the other way round (C − 2ℓ − d = ${formatFraction(other)}) must be at least d = ${formatFraction(d)}, or the two sub-diamonds are closer that way than d says; take a smaller d/L or ℓ/L`,
+        `subregions.separations.${k.separation}`,
+      );
+    }
+  }
+  const offset = (ell + d) / 2;
+  const tipsAt = (sign: number) => {
+    const c = centre.map((v, i) => v + sign * offset * across[i]!);
+    return { past: toEvent(c.map((v, i) => v - (ell / 2) * unitAxis[i]!)), future: toEvent(c.map((v, i) => v + (ell / 2) * unitAxis[i]!)) };
+  };
+  return { size, separation, a: tipsAt(-1), b: tipsAt(1) };
+}
+
+/** Every (size, separation) pair of a `pairs` request in the region's own diamond, sizes outermost. */
+function pairsSubregions(region: RegionSpec, subregions: Extract<CreateStudyRequest['subregions'], { kind: 'pairs' }>): ResolvedSubregion[] {
+  const own = regionOwnDiamond(region);
+  if (!own) throw new StudyPlanError('pairs of sub-diamonds need a diamond region (they sit on its central slice); give a 2D, 4D or cylinder diamond', 'subregions.kind');
+  return subregions.sizes.flatMap((size, i) =>
+    subregions.separations.map((separation, j) => ({
+      key: pairKey(size, separation),
+      label: `ℓ/L = ${formatFraction(size)}, d/L = ${formatFraction(separation)}`,
+      fraction: null,
+      past: null,
+      future: null,
+      pair: pairTips(region, own, size, separation, { size: i, separation: j }),
+    })),
+  );
+}
+
+/** The request field of the k-th resolved subregion, for messages about it. */
+function subregionPath(subregions: CreateStudyRequest['subregions'], resolved: ResolvedSubregion, k: number): string {
+  if (subregions.kind === 'pairs') return `subregions.sizes.${subregions.sizes.indexOf(resolved.pair!.size)}`;
+  if (subregions.kind === 'concentric') return `subregions.fractions.${k}`;
+  if (subregions.kind === 'elements') return `subregions.lists.${k}.indices`;
+  return `subregions.diamonds.${k}`;
+}
+
 function tipsSubregions(subregions: Extract<CreateStudyRequest['subregions'], { kind: 'tips' }>, dimension: 2 | 4, placements: PlacedIn[]): ResolvedSubregion[] {
   return subregions.diamonds.map((d, k) => {
     const problem = tipsProblem(d, dimension, placements);
@@ -68,8 +148,8 @@ function tipsSubregions(subregions: Extract<CreateStudyRequest['subregions'], { 
 }
 
 /**
- * The study's subregions with stable keys: `l/L=0.5` for concentric ones (in the order given), `d1`,
- * `d2`, … for diamonds by tips. Throws StudyPlanError when they do not fit the region.
+ * The study's subregions with stable keys: `l/L=0.5` for concentric ones (in the order given),
+ * `pair l/L=0.2 d/L=0.1` for pairs (each size with each separation), `d1`, `d2`, … for diamonds by tips. Throws StudyPlanError when they do not fit the region.
  */
 export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' | 'subregions'>): ResolvedSubregion[] {
   const region = makeRegion(request.region);
@@ -79,6 +159,7 @@ export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' 
     if (!tips) throw new StudyPlanError('concentric sub-diamonds need a diamond region; give sub-diamonds by their tips for a slab', 'subregions.kind');
     return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/L = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
   }
+  if (subregions.kind === 'pairs') return pairsSubregions(request.region, subregions);
   if (subregions.kind === 'elements') throw new StudyPlanError('element lists are for imported causal sets', 'subregions.kind');
   return tipsSubregions(subregions, region.dimension, [{ region: request.region }]);
 }
@@ -125,15 +206,16 @@ export function resolveImportedSubregions(request: Pick<ImportedStudyRequest, 's
     );
   }
   const common = sets.every((s) => sameRegion(s.reference.region, sets[0]!.reference.region)) ? sets[0]!.reference.region : null;
-  if (subregions.kind === 'concentric') {
+  if (subregions.kind === 'concentric' || subregions.kind === 'pairs') {
+    const what = subregions.kind === 'concentric' ? 'concentric sub-diamonds' : 'pairs of sub-diamonds';
     const without = sets.find((s) => s.reference.region === null);
     if (without) {
       throw new StudyPlanError(
-        `concentric sub-diamonds need the region the points lie in; "${without.reference.name}" was imported with a density only: give tips or element lists`,
+        `${what} need the region the points lie in; "${without.reference.name}" was imported with a density only: give tips or element lists`,
         'subregions.kind',
       );
     }
-    if (!common) throw new StudyPlanError('concentric sub-diamonds need every causal set imported with the same region; give tips or element lists', 'subregions.kind');
+    if (!common) throw new StudyPlanError(`${what} need every causal set imported with the same region; give tips or element lists`, 'subregions.kind');
     return resolveSubregions({ region: common, subregions });
   }
   // every distinct region of the sets (or none, for sets imported with a density only) must hold the tips
@@ -148,10 +230,14 @@ export function engineSubregion(subregion: ResolvedSubregion): SubregionSpec {
   return { kind: 'diamond', past: subregion.past, future: subregion.future };
 }
 
-/** Expected elements of a subregion at N elements in the region: N × (volume ratio). */
+/**
+ * Expected elements of a subregion at N elements in the region: N × (volume ratio); for a pair, of each
+ * of its two (equal) sub-diamonds.
+ */
 export function expectedSubregionElements(request: Pick<SprinkledStudyRequest, 'region'>, subregion: ResolvedSubregion, count: number): number {
-  if (!subregion.past || !subregion.future) throw new Error(`subregion ${subregion.key} is not a diamond`);
-  return (count * diamondVolume({ past: subregion.past, future: subregion.future })) / makeRegion(request.region).volume;
+  const tips = subregion.pair ? subregion.pair.a : subregion.past && subregion.future ? { past: subregion.past, future: subregion.future } : null;
+  if (!tips) throw new Error(`subregion ${subregion.key} is not a diamond`);
+  return (count * diamondVolume(tips)) / makeRegion(request.region).volume;
 }
 
 /** One sprinkling of the study: requested count and seed, in the order the jobs are queued. */
@@ -172,10 +258,10 @@ export function planCells(request: SprinkledStudyRequest, subregions: ResolvedSu
   subregions.forEach((s, k) => {
     const expected = expectedSubregionElements(request, s, smallest);
     if (expected < STUDY_MIN_SUBREGION_ELEMENTS) {
-      const path = request.subregions.kind === 'concentric' ? `subregions.fractions.${k}` : `subregions.diamonds.${k}`;
+      const what = s.pair ? `each sub-diamond of the pair ${s.label}` : s.label;
       throw new StudyPlanError(
-        `${s.label} holds about ${expected.toFixed(1)} elements at N = ${smallest}; at least ${STUDY_MIN_SUBREGION_ELEMENTS} are needed for an entropy`,
-        path,
+        `${what} holds about ${expected.toFixed(1)} elements at N = ${smallest}; at least ${STUDY_MIN_SUBREGION_ELEMENTS} are needed for an entropy`,
+        subregionPath(request.subregions, s, k),
       );
     }
   });
@@ -189,18 +275,19 @@ export function planCells(request: SprinkledStudyRequest, subregions: ResolvedSu
  * first (sets of equal N in the order picked). Checks that every diamond subregion holds at least
  * STUDY_MIN_SUBREGION_ELEMENTS elements in every set, counting them on the set's own points.
  */
-export function planImportedCells(sets: PlannedCausalSet[], subregions: ResolvedSubregion[]): PlannedCell[] {
+export function planImportedCells(sets: PlannedCausalSet[], subregions: ResolvedSubregion[], request?: Pick<ImportedStudyRequest, 'subregions'>): PlannedCell[] {
   const ordered = sets.map((s, k) => ({ s, k })).sort((a, b) => a.s.reference.N - b.s.reference.N || a.k - b.k);
   for (const { s } of ordered) {
     if (!s.points) continue;
     const periodX = s.reference.region ? makeRegion(s.reference.region).periodX : undefined;
     subregions.forEach((sub, k) => {
       if (sub.elements) return;
-      const held = subregionElements(engineSubregion(sub), s.points!, s.reference.dimension, periodX).length;
+      const pair = pairSubregions(sub);
+      const held = Math.min(...(pair ? [pair.a, pair.b] : [engineSubregion(sub)]).map((spec) => subregionElements(spec, s.points!, s.reference.dimension, periodX).length));
       if (held < STUDY_MIN_SUBREGION_ELEMENTS) {
-        const path = sub.fraction !== null ? `subregions.fractions.${k}` : `subregions.diamonds.${k}`;
+        const path = request ? subregionPath(request.subregions, sub, k) : sub.fraction !== null ? `subregions.fractions.${k}` : `subregions.diamonds.${k}`;
         throw new StudyPlanError(
-          `${sub.label} holds ${held} element${held === 1 ? '' : 's'} of "${s.reference.name}" (N = ${s.reference.N}); at least ${STUDY_MIN_SUBREGION_ELEMENTS} are needed for an entropy`,
+          `${pair ? `a sub-diamond of the pair ${sub.label}` : sub.label} holds ${held} element${held === 1 ? '' : 's'} of "${s.reference.name}" (N = ${s.reference.N}); at least ${STUDY_MIN_SUBREGION_ELEMENTS} are needed for an entropy`,
           path,
         );
       }

@@ -21,6 +21,7 @@ import type { StudyWithAuthor, StudyProgressCounts } from '../../db/repositories
 import type { StudyCellRow } from '../../db/study-entities';
 import { EngineInputError, validateVacuumRequest } from '../../engine/index';
 import { aggregateEntropies, fitAggregates } from '../../studies/aggregate';
+import type { StudyCellEntropy } from '../../studies/cell';
 import type { StudyExportFormat } from '@shared/exports';
 import { exportFile, studyRenderers, type ExportFile } from '../../exports/index';
 import { studyCautions, type StudyExportInput } from '../../exports/studies';
@@ -99,7 +100,8 @@ export function entropiesOf(row: Pick<StudyWithAuthor, 'subregions'>, cells: Stu
   for (const cell of cells) {
     if (cell.status !== 'done' || !cell.result) continue;
     const states = new Map(cell.result.states.map((s) => [s.rule, s]));
-    for (const e of cell.result.entropies) {
+    // a cell's entropies are those of server/studies/cell.ts (Rényi and pair fields when asked)
+    for (const e of cell.result.entropies as StudyCellEntropy[]) {
       out.push({
         cellId: cell.id,
         N: cell.requestedN,
@@ -114,6 +116,8 @@ export function entropiesOf(row: Pick<StudyWithAuthor, 'subregions'>, cells: Stu
         cutoff: e.cutoff,
         stateModesKept: states.get(e.rule)?.modesKept ?? 0,
         stateCutoff: states.get(e.rule)?.cutoff ?? 0,
+        ...(e.renyi ? { renyi: e.renyi } : {}),
+        ...(e.pair ? { pair: e.pair } : {}),
       });
     }
   }
@@ -285,7 +289,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     let cells;
     try {
       subregions = resolveImportedSubregions(request, planned);
-      cells = planImportedCells(planned, subregions);
+      cells = planImportedCells(planned, subregions, request);
       checkRulesFit(request.rules, Math.min(...planned.map((p) => p.reference.N)), true);
     } catch (error) {
       if (error instanceof StudyPlanError) throw planIssue(error);

@@ -43,7 +43,7 @@ async function cellSpec(context: WorkerContext, { cell, study }: ClaimedCell): P
     request.source === 'sprinkled'
       ? { sprinkling: cellSprinkling(request, cell.requestedN, cell.seed) }
       : { imported: await importedSource(context, study.causalSets, cell.id, cell.seed) };
-  return { ...source, mass: request.mass, subregions: study.subregions, rules: request.rules };
+  return { ...source, mass: request.mass, subregions: study.subregions, rules: request.rules, ...(request.renyi ? { renyi: request.renyi } : {}) };
 }
 
 /** Closes the study once its last cell has ended; its author hears about a closed study. */
