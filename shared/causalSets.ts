@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { manifoldLikenessSchema } from './manifoldLikeness';
 import { regionSpecSchema, regionText, type RegionSpec } from './regions';
 
 /**
@@ -110,6 +111,8 @@ export const causalSetStatsSchema = z.object({
   /** elements with nothing to their past / future */
   minimal: z.number().int(),
   maximal: z.number().int(),
+  /** counts and dimension estimators (absent on sets imported before they existed) */
+  manifold: manifoldLikenessSchema.optional(),
 });
 export type CausalSetStats = z.infer<typeof causalSetStatsSchema>;
 
@@ -129,6 +132,8 @@ export const causalSetSummarySchema = z.object({
   /** SHA-256 of the uploaded bytes, hex */
   checksum: z.string(),
   stats: causalSetStatsSchema,
+  /** what to know before running on it, e.g. a declared dimension its order disagrees with (shared/manifoldLikeness.ts) */
+  warnings: z.array(z.string()),
   createdBy: z.object({ id: z.string(), name: z.string() }),
   createdAt: z.string(),
 });

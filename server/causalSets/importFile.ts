@@ -1,6 +1,8 @@
 import type { CausalSetMetadata } from '@shared/causalSets';
 import type { CausalSetRow } from '../db/causal-set-entities';
 import { compressBytes, encodeFloat64, encodeRelation } from '../db/codecs';
+import { manifoldLikeness } from '../engine/manifoldLikeness';
+import type { BitRelation } from '../engine/order';
 import { orderSummary } from '../engine/orderAlgorithms';
 import { makeRegion } from '../engine/regions';
 import { runInThread } from '../threads/engineThread';
@@ -31,7 +33,7 @@ export function importValues(metadata: CausalSetMetadata, bytes: Uint8Array, lim
       region: metadata.region ?? null,
       density: metadata.density ?? (volume ? parsed.n / volume : null),
       volume,
-      stats: orderSummary(coordinatesOrder(parsed.points, parsed.dimension, metadata.region)),
+      stats: coordinatesStats(parsed.points, parsed.dimension, metadata.region),
       elements: encodeFloat64(parsed.points),
       original,
     };
@@ -44,10 +46,22 @@ export function importValues(metadata: CausalSetMetadata, bytes: Uint8Array, lim
     region: null,
     density: metadata.density ?? null,
     volume: null,
-    stats: orderSummary(parsed.causal),
+    stats: { ...orderSummary(parsed.causal), manifold: manifoldLikeness({ kind: 'relation', causal: parsed.causal }) },
     elements: encodeRelation(parsed.causal),
     original,
   };
+}
+
+/**
+ * The order statistics of imported coordinates with the manifold-likeness report: 2D points without a
+ * periodic x by the light-cone route, anything else from the relation already built for the summary.
+ */
+function coordinatesStats(points: Float64Array, dimension: 2 | 4, region: CausalSetMetadata['region']): ImportedValues['stats'] {
+  const causal: BitRelation = coordinatesOrder(points, dimension, region);
+  const periodX = region ? makeRegion(region).periodX : undefined;
+  const manifold =
+    dimension === 2 && periodX === undefined ? manifoldLikeness({ kind: 'points', points, dimension }) : manifoldLikeness({ kind: 'relation', causal });
+  return { ...orderSummary(causal), manifold };
 }
 
 /** Files from this size on are parsed in a worker_thread: below it the thread's start-up costs more. */

@@ -89,6 +89,11 @@ export function CausalSetPicker({
                   <td className={`${td} figures`}>{set.N}</td>
                   <td className={`${td} text-ink-soft`}>
                     {set.kind === 'coordinates' ? `${set.dimension}D points` : `${set.dimension}D relation list`}
+                    {set.warnings.length > 0 && (
+                      <span className="ml-2 text-danger" title={set.warnings.join(' ')}>
+                        · dimension in doubt
+                      </span>
+                    )}
                   </td>
                   <td className={`${td} text-ink-soft`}>{causalSetPlacement(set)}</td>
                   <td className={`${td} font-mono text-xs text-ink-faint`}>{set.fileName}</td>

@@ -6,6 +6,8 @@ import { apiErrorSchema } from '@shared/api';
 import { CAUSAL_SET_FILE_LIMIT_BYTES, causalSetDetailSchema, causalSetListResponseSchema } from '@shared/causalSets';
 import { insertMembership } from '../../server/db/repositories/teams';
 import { DENSE_SIZE_LIMIT } from '../../server/engine/index';
+import { causalMatrix, linkMatrix } from '../../server/engine/order';
+import { sprinkle } from '../../server/engine/sprinkle';
 import { createTestContext, signUp, type SignedUpUser, type TestContext } from '../support/app';
 
 let ctx: TestContext;
@@ -111,8 +113,31 @@ describe('POST /api/causal-sets and reading back', () => {
     const detail = causalSetDetailSchema.parse((await request(ctx.app).get(`/api/causal-sets/${res.body.id}`).set(asUser(viewer))).body);
     // closure of 0≺1≺2≺3 and 0≺4: 6 + 1 relations among C(6,2) = 15 pairs; element 5 stands alone
     expect(detail).toMatchObject({ kind: 'relations', dimension: 2, N: 6, density: null, region: null });
-    expect(detail.stats).toEqual({ relations: 7, links: 4, orderingFraction: 7 / 15, height: 4, minimal: 2, maximal: 3 });
+    expect(detail.stats).toMatchObject({ relations: 7, links: 4, orderingFraction: 7 / 15, height: 4, minimal: 2, maximal: 3 });
+    // worked by hand: links 0≺1, 1≺2, 2≺3, 0≺4; one element between in 0≺2 and 1≺3; two in 0≺3
+    expect(detail.stats.manifold).toMatchObject({ N: 6, relations: 7, links: 4, longestChain: 4, intervalAbundances: [4, 2, 1, 0, 0, 0, 0, 0, 0, 0, 0] });
+    expect(detail.warnings).toEqual([]);
     expect(detail.preview).toEqual({ kind: 'relations', layerSizes: [2, 2, 1, 1] });
+  });
+
+  it('warns when a relation list is declared in a dimension its order disagrees with, and not when it agrees', async () => {
+    // a 2D sprinkling's links as a relation list: the import closes them again into the 2D order
+    const { points } = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 600, seed: 'declared-dimension', prng: 'arc4' });
+    const rows: string[] = ['i,j'];
+    linkMatrix(causalMatrix(points, 2)).forEach((i, j) => rows.push(`${i},${j}`));
+    const file = rows.join('\n');
+    const as4d = await upload(file, { fileName: 'links.csv', fields: { name: 'said 4D', kind: 'relations', count: '600', dimension: '4', density: '150' } });
+    const as2d = await upload(file, { fileName: 'links.csv', fields: { name: 'said 2D', kind: 'relations', count: '600', dimension: '2' } });
+    const read = async (id: string) => causalSetDetailSchema.parse((await request(ctx.app).get(`/api/causal-sets/${id}`).set(asUser(viewer))).body);
+    const wrong = await read(as4d.body.id);
+    const right = await read(as2d.body.id);
+    // Myrheim 1978 / Meyer 1988: a 2D diamond's ordering fraction is ½, dimension 2
+    expect(Math.abs(right.stats.manifold!.dimension.myrheimMeyer.estimate! - 2)).toBeLessThan(2 * right.stats.manifold!.dimension.myrheimMeyer.error!);
+    expect(right.warnings).toEqual([]);
+    expect(wrong.warnings).toHaveLength(1);
+    expect(wrong.warnings[0]).toMatch(/^Declared 4D, but the Myrheim–Meyer dimension of its order is 2\.\d+ ± 0\.\d+/);
+    const list = causalSetListResponseSchema.parse((await request(ctx.app).get('/api/causal-sets').set(asUser(viewer))).body);
+    expect(list.items.find((item) => item.id === as4d.body.id)?.warnings).toEqual(wrong.warnings);
   });
 
   it('stores a relation list of several megabytes, parsed off the event loop, and keeps its original bytes', async () => {

@@ -16,6 +16,7 @@ import { DENSE_SIZE_LIMIT } from '../../engine/index';
 import type { CausalSetReference } from '../../runs/request';
 import type { TeamContext } from '../context';
 import { badRequest, notFound } from '../errors';
+import { dimensionWarning } from '@shared/manifoldLikeness';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -89,6 +90,7 @@ function toSummary(row: causalSets.CausalSetListing): CausalSetSummary {
     fileBytes: row.fileBytes,
     checksum: row.checksum,
     stats,
+    warnings: stats.manifold ? [dimensionWarning(row.dimension, stats.manifold)].filter((w): w is string => w !== null) : [],
     createdBy: { id: row.createdBy, name: row.createdByName },
     createdAt: row.createdAt.toISOString(),
   };

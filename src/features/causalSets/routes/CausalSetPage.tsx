@@ -5,6 +5,8 @@ import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
 import { plotPalette } from '../../../lib/plotTheme';
 import { Button } from '../../../ui/Button';
+import { RuleCautions } from '../../../ui/Caution';
+import { ManifoldLikenessPanel } from '../../../ui/ManifoldLikenessPanel';
 import { FormError } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
@@ -144,6 +146,7 @@ export function CausalSetPage() {
         }
       />
       <FormError message={actionError} />
+      <RuleCautions cautions={data.warnings} />
       <div className="grid grid-cols-1 gap-x-12 lg:grid-cols-[minmax(0,1fr)_24rem]">
         <Section title={data.preview.kind === 'coordinates' ? 'Elements' : 'Layers'}>
           {data.preview.kind === 'coordinates' ? (
@@ -152,9 +155,20 @@ export function CausalSetPage() {
             <LayersFigure set={data as CausalSetDetail & { preview: { kind: 'relations' } }} />
           )}
         </Section>
-        <Section title="Summary">
-          <CausalSetStats set={data} />
-        </Section>
+        <div>
+          <Section title="Summary">
+            <CausalSetStats set={data} />
+          </Section>
+          {data.stats.manifold && (
+            <Section title="Manifold-likeness">
+              <ManifoldLikenessPanel
+                report={data.stats.manifold}
+                declaredDimension={data.dimension}
+                expectedElements={data.density !== null && data.volume !== null ? data.density * data.volume : null}
+              />
+            </Section>
+          )}
+        </div>
       </div>
       {canCompute && (
         <Section title="Run the vacuum on it">
