@@ -14,8 +14,8 @@ import { runPython } from '../support/python';
  * with occupation probabilities p_k = (1/μ)((μ − 1)/μ)^k (a fact of the trade for Gaussian states), and
  * numpy sums ln Σ_k p_k^α / (1 − α) over that Fock ladder, S_∞ = −ln max_k p_k.
  *
- * With `complementOf`, numpy also lists the causal complement of that set: the elements outside it with
- * no C entry to or from any of its elements (§15).
+ * With `complementOf`, numpy also lists the causal complement of that set — the elements outside it with
+ * no C entry to or from any of its elements (§15) — and its entropy by the same rule.
  */
 const fockRenyi = String.raw`
 def renyi(mu, alpha):
@@ -50,8 +50,7 @@ W = (V[:, keep] * lam[keep]) @ V[:, keep].conj().T
 both = np.abs(lam) > cut
 Hc = (V[:, both] * lam[both]) @ V[:, both].conj().T if cut > 0 else H
 
-sets = []
-for O in d['sets']:
+def entropy(O):
     O = np.array(O, dtype=int)
     n = len(O)
     WO = W[np.ix_(O, O)]
@@ -64,14 +63,17 @@ for O in d['sets']:
     imag = float(np.abs(mu.imag).max()) if len(mu) else 0.0
     mu = np.sort(mu.real)[::-1]
     nz = np.abs(mu) > 1e-300
-    sets.append({'n': n, 'kept': int(k.sum()), 'S': float(np.sum(mu[nz] * np.log(np.abs(mu[nz])))), 'mu': mu.tolist(), 'maxImagMu': imag,
-                 'renyi': {str(a): renyi(mu, a) for a in d['orders']}})
-out = {'sets': sets}
+    return {'n': n, 'kept': int(k.sum()), 'S': float(np.sum(mu[nz] * np.log(np.abs(mu[nz])))), 'mu': mu.tolist(), 'maxImagMu': imag,
+            'renyi': {str(a): renyi(mu, a) for a in d['orders']}}
+
+out = {'sets': [entropy(O) for O in d['sets']]}
 if d['complementOf'] is not None:
     O = np.array(d['complementOf'], dtype=int)
     related = C[O, :].any(axis=0) | C[:, O].any(axis=1)
     related[O] = True
-    out['complement'] = np.where(~related)[0].tolist()
+    complement = np.where(~related)[0]
+    out['complement'] = complement.tolist()
+    out['complementEntropy'] = entropy(complement)
 print(json.dumps(out))
 `;
 
@@ -95,7 +97,7 @@ export function numpySubregionEntropies(input: {
   sets: ArrayLike<number>[];
   orders?: (number | 'inf')[];
   complementOf?: ArrayLike<number>;
-}): { sets: NumpySetEntropy[]; complement?: number[] } {
+}): { sets: NumpySetEntropy[]; complement?: number[]; complementEntropy?: NumpySetEntropy } {
   return runPython(script, {
     points: Array.from(input.points),
     stateCut: input.stateCut,
