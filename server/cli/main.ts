@@ -315,7 +315,8 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
   if (values.complement) request.complement = true;
   const result = await computeVacuum(request, progressHooks(io));
   const e = result.entropy!;
-  // the orders as asked, sorted as every table lists them; the values are the engine's, key by key
+  // the engine's values key by key; the text lists them sorted, as every table does (JSON objects put
+  // integer-like keys such as "2" first whatever the order, so the JSON order is not ours to choose)
   const orders = renyi ? sortedRenyiOrders(renyi) : [];
   const renyiValues = renyi ? Object.fromEntries(orders.map((order) => [renyiKey(order), engineValue(e.renyi, renyiKey(order), '--renyi')])) : null;
   const complement = values.complement ? required(result.complement, '--complement') : null;
