@@ -8,11 +8,14 @@ import {
   truncationRuleSchema,
   type RegionSpec,
 } from '@shared/vacuum';
+import { relationNeighbourhood } from './causalSeparation';
 import { subregionElements } from './entropy';
 import { sizeLimitFor } from './engineForRequest';
 import { EngineInputError } from './errors';
 import { checkDenseSize } from './limits';
-import { makeRegion } from './regions';
+import { pairIssue } from './mutualInformation';
+import { BitRelation } from './order';
+import { makeRegion, precedes } from './regions';
 import type { VacuumRequest } from './request';
 import { diamondPlacementIssue, elementListIssue, subregionPairIssue, tipCoordinates } from './subregionCheck';
 
@@ -129,8 +132,19 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
       fail(`invalid mutual-information pair: ${zodMessage(parsed.error)}`, ['mutualInformation', ...issue.path.slice(0, 1)].join('.'));
       return;
     }
-    const pairIssue = subregionPairIssue(parsed.data, dimension, placedIn, { elementCount: size, hasCoordinates: request.source.kind !== 'order' });
-    if (pairIssue) fail(pairIssue.message, `mutualInformation.${pairIssue.field}`);
+    const placement = subregionPairIssue(parsed.data, dimension, placedIn, { elementCount: size, hasCoordinates: request.source.kind !== 'order' });
+    if (placement) fail(placement.message, `mutualInformation.${placement.field}`);
+    const { a, b } = parsed.data;
+    if (a.kind === 'elements' && b.kind === 'elements' && request.source.kind !== 'sprinkling') {
+      // the order is known here (a sprinkling's only in the worker, which checks right after the order stage)
+      const source = request.source;
+      const order =
+        source.kind === 'order'
+          ? relationNeighbourhood(BitRelation.fromWords(source.causal, source.count), a.indices)
+          : (i: number, j: number) => precedes(source.points, dimension, i, j, placedIn ? makeRegion(placedIn).periodX : undefined);
+      const related = pairIssue(a.indices, b.indices, order);
+      if (related) fail(related.message, 'mutualInformation.b');
+    }
     if (request.source.kind === 'points') {
       const points = request.source.points;
       for (const side of ['a', 'b'] as const) {
