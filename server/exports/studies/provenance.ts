@@ -1,4 +1,4 @@
-import { studyRuleKey, studyRuleLabel } from '@shared/studies';
+import { studyRenyiKeys, studyRuleKey, studyRuleLabel } from '@shared/studies';
 import { effectiveRestrictedCut, ruleCautions } from '@shared/vacuum';
 import { studyDimension, type StudyExportInput } from './common';
 import { referencesUsed } from './references';
@@ -30,6 +30,8 @@ export function provenanceJson(input: StudyExportInput, exportedAt: Date = new D
       cautions: ruleCautions(studyDimension(input), r),
     })),
     subregions: input.subregions,
+    /** the Rényi orders of every S_α (and I_α) in entropies and aggregates, by renyiKey; empty without */
+    renyiOrders: studyRenyiKeys(input.request),
     engine: {
       versions: [...new Set(input.cells.map((c) => c.engineVersion).filter((v) => v !== null))],
       backends: [...new Set(input.cells.map((c) => c.backend).filter((v) => v !== null))],

@@ -133,6 +133,20 @@ export const references: Record<string, Reference> = {
   archivePrefix = {arXiv}
 }`,
   },
+  casini2009: {
+    key: 'casini2009',
+    short: 'Casini and Huerta 2009',
+    bibtex: `@article{casini2009,
+  author  = {Casini, Horacio and Huerta, Marina},
+  title   = {Entanglement entropy in free quantum field theory},
+  journal = {Journal of Physics A: Mathematical and Theoretical},
+  volume  = {42},
+  pages   = {504007},
+  year    = {2009},
+  eprint  = {0905.2562},
+  archivePrefix = {arXiv}
+}`,
+  },
 };
 
 const usesSorkinYazdi = (request: CreateStudyRequest) => request.rules.some((r) => r.doubleTruncation || r.truncation.rule === 'sqrtN');
@@ -142,6 +156,8 @@ export function referencesUsed(request: CreateStudyRequest): string[] {
   const keys = ['bombelli1987', 'johnston2008', 'johnston2009', 'sorkin2011', 'afshordi2012', 'sorkin2012', 'saravani2014'];
   if (usesSorkinYazdi(request)) keys.push('sorkin2018');
   keys.push('calabrese2004');
+  // the two-interval trend the mutual information is compared with
+  if (request.subregions.kind === 'pairs') keys.push('casini2009');
   return keys;
 }
 
