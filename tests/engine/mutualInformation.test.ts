@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { SubregionPair, SubregionSpec } from '@shared/vacuum';
-import { computeVacuum, continuumMutualInformation, mutualInformation, type VacuumResult } from '../../server/engine/index';
+import { CancelledError, computeVacuum, continuumMutualInformation, mutualInformation, type VacuumResult } from '../../server/engine/index';
 import { entanglementEntropy, subregionElements } from '../../server/engine/entropy';
 import { diamond300Points, diamond300Reference } from '../support/diamond300';
 import { numpySubregionEntropies } from './numpySubregionReference';
@@ -71,6 +71,31 @@ describe('mutual information on diamond300 against numpy', () => {
       expect(other.a.S).toBe(mi.b.S);
       expect(Array.from(other.union.elements)).toEqual(Array.from(mi.union.elements));
     });
+  });
+});
+
+describe('progress and cancellation within the entropy stage', () => {
+  const points = diamond300Points();
+  const request = {
+    source: { kind: 'points' as const, points, dimension: 2 as const, region: { kind: 'diamond2d' as const, properTime: 2 * Math.SQRT2 } },
+    truncation: { rule: 'sqrtN' as const },
+    doubleTruncation: true,
+    subregion: diamond(0, 0, 0.5),
+    mutualInformation: { a: diamond(0, -0.55, 0.45), b: diamond(0, 0.5, 0.4) },
+    engine: 'dense' as const,
+  };
+
+  it('reports the fraction of the four entropies done', async () => {
+    const fractions: number[] = [];
+    await computeVacuum(request, { onProgress: (stage, f) => stage === 'entropy' && fractions.push(f) });
+    expect(fractions).toEqual([0, 0.25, 0.5, 0.75, 1]);
+  });
+
+  it('stops between two entropies when asked to', async () => {
+    let done = 0;
+    const run = computeVacuum(request, { onProgress: (stage, f) => stage === 'entropy' && f > 0 && done++, shouldCancel: () => done >= 2 });
+    await expect(run).rejects.toBeInstanceOf(CancelledError);
+    expect(done).toBe(2);
   });
 });
 
