@@ -13,7 +13,7 @@ import { denseLimitN, reanalyseEngineNote } from '../lib/engineNotes';
 import { initialReanalyseValues, reanalyseRequestFromForm, type ReanalyseFormValues } from '../lib/reanalyseForm';
 import { showRunRequestError } from '../lib/showRequestError';
 import { EngineFields } from './EngineFields';
-import { SubregionFields } from './SubregionFields';
+import { DoubleTruncationFields, PairFields, SubregionFields } from './SubregionFields';
 
 export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2 | 4 }) {
   const [values, setValues] = useState(() => initialReanalyseValues(run.request));
@@ -88,12 +88,28 @@ export function ReanalyseForm({ run, dimension }: { run: RunDetail; dimension: 2
         past={values.past}
         future={values.future}
         onTipChange={(which, tip) => set(which, tip)}
-        doubleTruncation={values.doubleTruncation}
-        onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
-        restrictedCut={values.restrictedCut}
-        onRestrictedCutChange={(v) => set('restrictedCut', v)}
+        errors={errors.fieldErrors}
+        renyi={{ value: values.renyi ?? '', onChange: (text) => set('renyi', text) }}
+        complement={{ checked: values.complement ?? false, onChange: (v) => set('complement', v) }}
+      />
+      <PairFields
+        dimension={dimension}
+        enabled={values.withPair ?? false}
+        onEnabledChange={(v) => set('withPair', v)}
+        a={values.pairA ?? initialReanalyseValues(null).pairA!}
+        b={values.pairB ?? initialReanalyseValues(null).pairB!}
+        onChange={(side, pair) => set(side === 'a' ? 'pairA' : 'pairB', pair)}
         errors={errors.fieldErrors}
       />
+      {(values.withSubregion || Boolean(values.withPair)) && (
+        <DoubleTruncationFields
+          doubleTruncation={values.doubleTruncation}
+          onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+          restrictedCut={values.restrictedCut}
+          onRestrictedCutChange={(v) => set('restrictedCut', v)}
+          errors={errors.fieldErrors}
+        />
+      )}
       <FormError message={errors.formError} />
       <div>
         <Button type="submit" busy={reanalyse.isPending}>

@@ -2,7 +2,7 @@ import type { RunDetail, RunResult } from '@shared/runs';
 import { plotPalette } from '../../../lib/plotTheme';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useRunPoints } from '../api/runs';
-import { logDecadeStep, pointsTraces, spectrumTraces, tickFont } from '../lib/plotData';
+import { logDecadeStep, pointsTraces, renyiTraces, spectrumTraces, tickFont } from '../lib/plotData';
 import { PlotFigure } from '../../../ui/PlotFigure';
 
 const axisTitle = (text: string) => ({ text, font: { size: 12 } });
@@ -51,7 +51,31 @@ export function PointsPlot({ run }: { run: RunDetail }) {
       caption={
         <>
           The sprinkled elements in ({projected ? 't, x — a projection of the 4D points' : 't, x'}), t upwards, light rays at
-          45°{points.data.subregionElements ? '; the subregion’s elements ringed in the accent colour.' : '.'}
+          45°{points.data.subregionElements ? '; the subregion’s elements ringed in the accent colour' : ''}
+          {points.data.pairElements ? '; A and B of the mutual information as open squares and triangles, their diamonds dotted' : ''}.
+        </>
+      }
+    />
+  );
+}
+
+/** S_α of the subregion against α, with S at α = 1 and S_∞ as a dashed line (plotData.ts renyiTraces). */
+export function RenyiPlot({ run, entropy }: { run: RunDetail; entropy: NonNullable<RunResult['entropy']> }) {
+  return (
+    <PlotFigure
+      title="Rényi entropies"
+      fileName={`tacet-run-${run.id.slice(0, 8)}-renyi`}
+      height={320}
+      data={renyiTraces(entropy, plotPalette)}
+      layout={{
+        xaxis: { title: axisTitle('order α'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, rangemode: 'tozero' },
+        yaxis: { title: axisTitle('S_α of the subregion'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false },
+        legend: { orientation: 'h', y: -0.25 },
+      }}
+      caption={
+        <>
+          S_α = Σ ln(μ^α − (μ−1)^α)/(α − 1) over the generalised eigenvalues μ &gt; 1 of the restricted state, non-increasing in α; the
+          diamond at α = 1 is the von Neumann S.{entropy.renyi && 'inf' in entropy.renyi ? ' The dashed line is the min-entropy S_∞ = Σ ln μ, the limit α → ∞.' : ''}
         </>
       }
     />

@@ -1,9 +1,10 @@
 import { regionSettingsText, regionSpecSchema } from '@shared/regions';
-import type { RunDetail, RunResult } from '@shared/runs';
+import type { EntropyPart, RunDetail, RunResult } from '@shared/runs';
 import { effectiveRestrictedCut, entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
 import { describeTruncation } from '../../../lib/truncationForm';
 import { diagnosticNote, engineRowText, probedCheckCount } from '../lib/engineText';
 import { regionLabels } from '../lib/runForm';
+import { renyiRows } from '../lib/plotData';
 import { Figure } from '../../../ui/Figure';
 import { stageLabels } from './RunProgress';
 
@@ -88,6 +89,144 @@ export function EntropyTable({
   );
 }
 
+/** S_α of the subregion by order, ascending, with the von Neumann S at α = 1 among them. */
+export function RenyiTable({ entropy }: { entropy: Pick<NonNullable<RunResult['entropy']>, 'S' | 'renyi'> }) {
+  return (
+    <table className="w-full max-w-md border-collapse text-sm" aria-label="Rényi entropies">
+      <thead>
+        <tr className="border-b border-rule text-xs text-ink-faint">
+          <th scope="col" className="py-1.5 pr-6 text-left font-normal">α</th>
+          <th scope="col" className="py-1.5 text-right font-normal">S_α</th>
+        </tr>
+      </thead>
+      <tbody>
+        {renyiRows(entropy).map((row) => (
+          <tr key={row.key} className="border-b border-rule align-baseline" data-testid={`renyi-${row.key}`} data-value={row.value}>
+            <th scope="row" className="figures py-1.5 pr-6 text-left font-normal text-ink-soft">
+              {row.order === 'inf' ? '∞' : row.order}
+              <span className="ml-2 font-sans text-xs text-ink-faint">{row.order === 1 ? 'von Neumann S' : row.order === 'inf' ? 'min-entropy' : ''}</span>
+            </th>
+            <td className="py-1.5 text-right">
+              <Figure value={row.value} digits={6} />
+            </td>
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+}
+
+/** The restricted cut of one part, short: "√n/(4π) = 0.38" or the kernel-only note's first word. */
+function partCutText(part: EntropyPart): string {
+  return part.restrictedCut ? restrictedCutRowText(part.restrictedCut, part.cutoff) : `kernel only (${Number(part.cutoff.toPrecision(3))})`;
+}
+
+/**
+ * I(A:B) with S, n, cut and modes of A, B and A∪B side by side, and why it must be read with care: on a
+ * finite causal set it is a difference of three large, truncation-dependent entropies.
+ */
+export function MutualInformationPanel({ mutualInformation: mi }: { mutualInformation: NonNullable<RunResult['mutualInformation']> }) {
+  const parts = [
+    ['A', mi.a],
+    ['B', mi.b],
+    ['A∪B', mi.union],
+  ] as const;
+  const rows: [string, (p: EntropyPart) => React.ReactNode][] = [
+    ['S', (p) => <Figure value={p.S} digits={6} />],
+    ['n', (p) => <Figure value={p.n} />],
+    ['restricted cut', (p) => <span className="figures text-xs">{partCutText(p)}</span>],
+    ['modes kept', (p) => <Figure value={p.modesKept} />],
+  ];
+  return (
+    <div className="flex flex-col gap-3">
+      <div className="overflow-x-auto">
+        <table className="w-full min-w-[22rem] max-w-xl border-collapse text-sm" aria-label="Mutual information">
+          <thead>
+            <tr className="border-b border-rule text-xs text-ink-faint">
+              <th scope="col" className="py-1.5 pr-4 text-left font-normal" />
+              {parts.map(([label]) => (
+                <th key={label} scope="col" className="py-1.5 pl-4 text-right font-normal">
+                  {label}
+                </th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map(([label, cell]) => (
+              <tr key={label} className="border-b border-rule align-baseline">
+                <th scope="row" className="py-1.5 pr-4 text-left font-normal text-ink-soft">
+                  {label}
+                </th>
+                {parts.map(([part, p]) => (
+                  <td key={part} className="py-1.5 pl-4 text-right">
+                    {cell(p)}
+                  </td>
+                ))}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      <p className="flex items-baseline justify-between gap-4 border-b border-ink pb-1.5 text-sm">
+        <span className="text-ink">I(A:B) = S_A + S_B − S_A∪B</span>
+        <span data-testid="mutual-information-I" data-value={mi.I}>
+          <Figure value={mi.I} digits={6} />
+        </span>
+      </p>
+      <aside className="max-w-xl border-l-2 border-reference py-1 pl-3 text-xs text-ink-soft" data-testid="mutual-information-caution">
+        <span className="font-medium text-ink">Read with care.</span> On a finite causal set I is a small difference of three
+        large entropies, each with its own cut: it moves with the truncation rule and with the sprinkling, can come out negative
+        where the continuum value is positive, and means something only beside other seeds, sizes and rules.
+      </aside>
+    </div>
+  );
+}
+
+/**
+ * S_O and the entropy of its causal complement O′ side by side with S_O′ − S_O, read as a purity
+ * diagnostic: for a pure state of the whole region the two agree, so the difference measures how far
+ * the truncated, finite state is from that — when the complement completes a Cauchy surface with O.
+ */
+export function ComplementTable({ entropy, complement }: { entropy: Pick<NonNullable<RunResult['entropy']>, 'S' | 'n'>; complement: NonNullable<RunResult['complement']> }) {
+  return (
+    <div className="flex flex-col gap-3">
+      <table className="w-full max-w-md border-collapse text-sm" aria-label="Complement check">
+        <thead>
+          <tr className="border-b border-rule text-xs text-ink-faint">
+            <th scope="col" className="py-1.5 pr-6 text-left font-normal" />
+            <th scope="col" className="py-1.5 pl-4 text-right font-normal">subregion O</th>
+            <th scope="col" className="py-1.5 pl-4 text-right font-normal">complement O′</th>
+          </tr>
+        </thead>
+        <tbody>
+          <tr className="border-b border-rule align-baseline">
+            <th scope="row" className="py-1.5 pr-6 text-left font-normal text-ink-soft">S</th>
+            <td className="py-1.5 pl-4 text-right"><Figure value={entropy.S} digits={6} /></td>
+            <td className="py-1.5 pl-4 text-right"><Figure value={complement.S} digits={6} /></td>
+          </tr>
+          <tr className="border-b border-rule align-baseline">
+            <th scope="row" className="py-1.5 pr-6 text-left font-normal text-ink-soft">n</th>
+            <td className="py-1.5 pl-4 text-right"><Figure value={entropy.n} /></td>
+            <td className="py-1.5 pl-4 text-right"><Figure value={complement.n} /></td>
+          </tr>
+        </tbody>
+      </table>
+      <p className="flex max-w-md items-baseline justify-between gap-4 border-b border-ink pb-1.5 text-sm">
+        <span className="text-ink">Purity diagnostic S_O′ − S_O</span>
+        <span data-testid="complement-difference" data-value={complement.difference}>
+          <Figure value={complement.difference} digits={6} />
+        </span>
+      </p>
+      <aside className="max-w-md border-l-2 border-reference py-1 pl-3 text-xs text-ink-soft">
+        <span className="font-medium text-ink">What it tests.</span> For a pure state of the whole region the entropies of O and of its
+        causal complement agree, so a small difference says the truncated state behaves as pure. Agreement is expected only then, and
+        only when O and O′ together complete a Cauchy surface of the region; finite-size effects and the cut leave a difference even
+        so. O′ is every element unrelated to all of O.
+      </aside>
+    </div>
+  );
+}
+
 const diagnosticLabels: Record<string, { label: string; note: string }> = {
   hermiticity: { label: 'Hermiticity error', note: '‖W − W†‖ / ‖W‖' },
   minEigenvalueW: { label: 'Smallest eigenvalue of W', note: '≥ 0 up to rounding for a state' },
@@ -161,6 +300,9 @@ interface StoredRequest {
   doubleTruncation?: boolean;
   restrictedCut?: RestrictedCut;
   subregion?: { kind: string; past?: Record<string, number>; future?: Record<string, number>; indices?: number[] } | null;
+  renyi?: (number | 'inf')[];
+  complement?: boolean;
+  mutualInformation?: { a: NonNullable<StoredRequest['subregion']>; b: NonNullable<StoredRequest['subregion']> };
   sprinkling?: {
     region: Record<string, unknown> & { kind: string };
     process: string;
@@ -207,6 +349,15 @@ export function SettingsTable({ run }: { run: RunDetail }) {
     const restricted = effectiveRestrictedCut(settings);
     rows.push(['Restricted cut', restricted ? restrictedCutText(restricted) : 'none']);
     if (request.truncation) rows.push(['Entropy rule', entropyRuleLabel(settings)]);
+    if (request.renyi?.length) rows.push(['Rényi orders', request.renyi.map((o) => (o === 'inf' ? '∞' : String(o))).join(', ')]);
+    if (request.complement) rows.push(['Complement check', 'yes']);
+  }
+  if (request.mutualInformation) {
+    const side = (spec: NonNullable<StoredRequest['subregion']>) =>
+      spec.kind === 'diamond' ? `diamond from ${tipText(spec.past)} to ${tipText(spec.future)}` : `${spec.indices?.length ?? 0} listed elements`;
+    rows.push(['Pair A', side(request.mutualInformation.a)]);
+    rows.push(['Pair B', side(request.mutualInformation.b)]);
+    if (!request.subregion) rows.push(['Double truncation', request.doubleTruncation ? 'yes' : 'no']);
   }
   if (run.result) {
     rows.push(['Engine', engineRowText(run.result)]);

@@ -1,5 +1,6 @@
 import { diamondOutline, regionOutlineOf, regionSpecSchema } from '@shared/regions';
 import type { RunPoints, RunResult } from '@shared/runs';
+import { renyiLabel, sortedRenyiOrders, type RenyiOrder } from '@shared/vacuum';
 
 /**
  * Plot data of a run, kept apart from the components so it can be tested: the spectrum (positive
@@ -281,6 +282,7 @@ export function pointsTraces(points: RunPoints, request: unknown, colors: PlotCo
     marker: { color: colors.data, size: 3.5 },
     hovertemplate: 't = %{y:.4f}<br>x = %{x:.4f}<extra></extra>',
   });
+  traces.push(...pairTraces(points, request, colors));
   if (points.subregionElements) {
     traces.push({
       name: `subregion (${inner.x.length})`,
@@ -301,6 +303,97 @@ export function pointsTraces(points: RunPoints, request: unknown, colors: PlotCo
         hoverinfo: 'skip',
       });
     }
+  }
+  return traces;
+}
+
+type StoredTips = { kind: string; past: { t: number; x: number }; future: { t: number; x: number } };
+
+/**
+ * A and B of a mutual-information pair on the points plot: their elements as open squares (A) and open
+ * triangles (B) in the deep accent, so they read apart from the subregion's accent rings without a
+ * second colour, and the boundary of each diamond given by tips (2D) as a dotted line.
+ */
+export function pairTraces(points: RunPoints, request: unknown, colors: PlotColors & { accentDeep?: string }): Trace[] {
+  if (!points.pairElements) return [];
+  const tColumn = points.columns.indexOf('t');
+  const xColumn = points.columns.indexOf('x');
+  const color = colors.accentDeep ?? colors.cut;
+  const pair = (request as { mutualInformation?: { a: StoredTips; b: StoredTips } } | null)?.mutualInformation;
+  const traces: Trace[] = [];
+  for (const [side, symbol] of [['a', 'square-open'], ['b', 'triangle-up-open']] as const) {
+    const members = points.pairElements[side];
+    const label = side.toUpperCase();
+    traces.push({
+      name: `${label} (${members.length})`,
+      type: 'scatter',
+      mode: 'markers',
+      x: members.map((i) => points.points[i]![xColumn]!),
+      y: members.map((i) => points.points[i]![tColumn]!),
+      marker: { color, size: 6, symbol, line: { width: 1.2, color } },
+      hovertemplate: `in ${label}<br>t = %{y:.4f}<br>x = %{x:.4f}<extra></extra>`,
+    });
+    const tips = pair?.[side];
+    if (tips?.kind === 'diamond' && points.dimension === 2) {
+      traces.push({ name: `${label} boundary`, type: 'scatter', mode: 'lines', ...diamondBetween(tips.past, tips.future), line: { color, width: 1, dash: 'dot' }, showlegend: false, hoverinfo: 'skip' });
+    }
+  }
+  return traces;
+}
+
+/** The orders of a result's S_α with the von Neumann S at α = 1, ascending, ∞ last. */
+export function renyiRows(entropy: Pick<NonNullable<RunResult['entropy']>, 'S' | 'renyi'>): { order: RenyiOrder | 1; key: string; label: string; value: number }[] {
+  const renyi = entropy.renyi ?? {};
+  const orders = sortedRenyiOrders([...Object.keys(renyi).map((k): RenyiOrder => (k === 'inf' ? 'inf' : Number(k))), 1]);
+  return orders.map((order) => {
+    const key = order === 'inf' ? 'inf' : String(order);
+    return order === 1 ? { order: 1, key, label: 'S (α = 1)', value: entropy.S } : { order, key, label: renyiLabel(order), value: renyi[key]! };
+  });
+}
+
+/**
+ * S_α against α: the finite orders joined in ink with the von Neumann S at α = 1 marked as a larger
+ * accent point, and the min-entropy S_∞ (α → ∞ has no place on the axis) as a dashed horizontal line
+ * across the plot, labelled S_∞, the value every S_α decreases to.
+ */
+export function renyiTraces(entropy: Pick<NonNullable<RunResult['entropy']>, 'S' | 'renyi'>, colors: PlotColors): Trace[] {
+  const rows = renyiRows(entropy);
+  const finite = rows.filter((r) => r.order !== 'inf') as { order: number; value: number; label: string }[];
+  const traces: Trace[] = [
+    {
+      name: 'S_α',
+      type: 'scatter',
+      mode: 'lines+markers',
+      x: finite.map((r) => r.order),
+      y: finite.map((r) => r.value),
+      line: { color: colors.data, width: 1 },
+      marker: { color: colors.data, size: 6 },
+      hovertemplate: 'α = %{x}<br>S_α = %{y:.6g}<extra></extra>',
+    },
+    {
+      name: 'S (von Neumann, α = 1)',
+      type: 'scatter',
+      mode: 'markers',
+      x: [1],
+      y: [entropy.S],
+      marker: { color: colors.cut, size: 9, symbol: 'diamond' },
+      hovertemplate: 'α = 1<br>S = %{y:.6g}<extra></extra>',
+    },
+  ];
+  const infinity = rows.find((r) => r.order === 'inf');
+  if (infinity) {
+    const xs = finite.map((r) => r.order);
+    const from = Math.min(...xs);
+    const to = Math.max(...xs);
+    traces.push({
+      name: `S_∞ = ${formatPlotNumber(infinity.value)} (min-entropy, α → ∞)`,
+      type: 'scatter',
+      mode: 'lines',
+      x: [from, to],
+      y: [infinity.value, infinity.value],
+      line: { color: colors.dataSoft, width: 1.5, dash: 'dash' },
+      hovertemplate: `S_∞ = ${formatPlotNumber(infinity.value)}<extra></extra>`,
+    });
   }
   return traces;
 }

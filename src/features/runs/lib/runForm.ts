@@ -15,6 +15,7 @@ import {
   type RegionKind,
 } from '@shared/regions';
 import { defaultTruncationFor, type PrngName } from '@shared/vacuum';
+import { renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 import type { z } from 'zod';
 import { parseNumber, type FieldErrors } from '../../../lib/forms';
 import {
@@ -71,6 +72,21 @@ export interface RunFormValues extends RegionFieldValues {
   restrictedCut: RestrictedCutFormValues;
   /** which engine computes the run: the documented rule (auto) or a forced one */
   engine: EngineRequest;
+  /** Rényi orders of the subregion's entropy, as typed ("0.5, 2, inf"); blank for none */
+  renyi: string;
+  /** the entropy of the subregion's causal complement beside S */
+  complement: boolean;
+  /** two spacelike subregions A and B for I(A:B) */
+  withPair: boolean;
+  pairA: SubregionShapeValues;
+  pairB: SubregionShapeValues;
+}
+
+/** One subregion of a pair as typed: tips, or element labels on an imported set (as `subregionBy` says). */
+export interface SubregionShapeValues {
+  past: TipValues;
+  future: TipValues;
+  elementList: string;
 }
 
 /** What the form needs to know of the picked imported causal set. */
@@ -92,6 +108,18 @@ export function newSeed(): string {
 const defaultRegionFields = { regionKind: defaultRegionKind, ...regionFieldDefaults() };
 const defaultSubDiamond = regionDefaultSubDiamond(regionSpecSchema.parse(regionFromFieldText(defaultRegionFields)));
 const tipText = (tip: { t: number; x: number; y?: number; z?: number }): TipValues => ({ t: String(tip.t), x: String(tip.x), y: String(tip.y ?? 0), z: String(tip.z ?? 0) });
+
+/**
+ * A and B the form starts with: two diamonds of half the default sub-diamond's height, side by side at
+ * ∓ its half-height in x, so they are disjoint and spacelike to each other and lie inside the region.
+ */
+function defaultPairSide(side: -1 | 1): SubregionShapeValues {
+  const { past, future } = defaultSubDiamond;
+  const halfHeight = (future.t - past.t) / 2;
+  const t = (past.t + future.t) / 2;
+  const x = (past.x + future.x) / 2 + side * halfHeight;
+  return { past: tipText({ t: t - halfHeight / 2, x }), future: tipText({ t: t + halfHeight / 2, x }), elementList: '' };
+}
 
 export function defaultRunForm(seed: string = newSeed()): RunFormValues {
   return {
@@ -116,6 +144,11 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     doubleTruncation: false,
     restrictedCut: { ...defaultRestrictedCutForm },
     engine: 'auto',
+    renyi: '',
+    complement: false,
+    withPair: false,
+    pairA: defaultPairSide(-1),
+    pairB: defaultPairSide(1),
   };
 }
 
@@ -173,6 +206,13 @@ export function fieldForIssuePath(path: string): string {
   if (path === 'sprinkling.region') return 'sprinkling.region';
   if (path === 'subregion' || path === 'subregion.past' || path === 'subregion.future') return 'subregion';
   if (path.startsWith('subregion.indices')) return 'subregion.indices';
+  const pairSide = /^mutualInformation\.([ab])(\.(past|future|indices))?(\..*)?$/.exec(path);
+  if (pairSide) {
+    if (pairSide[3] === 'indices') return `mutualInformation.${pairSide[1]}.indices`;
+    if (pairSide[4] && /^\.[txyz]$/.test(pairSide[4])) return path;
+    return `mutualInformation.${pairSide[1]}`;
+  }
+  if (path.startsWith('renyi')) return 'renyi';
   return path;
 }
 
@@ -182,7 +222,7 @@ export function humanise(errors: FieldErrors): FieldErrors {
     const path = fieldForIssuePath(rawPath);
     if (path in out) continue;
     if (path in fieldMessages) out[path] = fieldMessages[path];
-    else if (/^subregion\.(past|future)\.[txyz]$/.test(path)) out[path] = tipFieldMessage;
+    else if (/^(subregion|mutualInformation\.[ab])\.(past|future)\.[txyz]$/.test(path)) out[path] = tipFieldMessage;
     else out[path] = message;
   }
   return out;
@@ -216,8 +256,13 @@ export function insideFutureLightCone(past: TipNumbers, future: TipNumbers): boo
 const lightConeMessage =
   'The future tip must lie strictly inside the future light cone of the past tip (Δt greater than the spatial distance), or the subregion is empty.';
 
-export function subregionFromForm(reader: NumberReader, v: RunFormValues, dimension: 2 | 4) {
-  return { kind: 'diamond', past: tip(reader, v.past, 'subregion.past', dimension), future: tip(reader, v.future, 'subregion.future', dimension) };
+/** A diamond from its typed tips; `path` is where its numbers' messages go ("subregion", "mutualInformation.a"). */
+export function diamondFromTips(reader: NumberReader, tips: { past: TipValues; future: TipValues }, dimension: 2 | 4, path = 'subregion') {
+  return { kind: 'diamond', past: tip(reader, tips.past, `${path}.past`, dimension), future: tip(reader, tips.future, `${path}.future`, dimension) };
+}
+
+export function subregionFromForm(reader: NumberReader, v: Pick<RunFormValues, 'past' | 'future'>, dimension: 2 | 4) {
+  return diamondFromTips(reader, v, dimension);
 }
 
 function finiteTip(tip: unknown): tip is TipNumbers {
@@ -228,11 +273,48 @@ function finiteTip(tip: unknown): tip is TipNumbers {
  * Checks what the shared schema cannot: the subregion's tips are causally ordered. Done on the typed
  * numbers, so the message shows together with any other field's.
  */
-export function subregionLightConeError(subregion: unknown): FieldErrors {
-  const diamond = subregion as { past?: unknown; future?: unknown } | undefined;
-  if (!diamond || !finiteTip(diamond.past) || !finiteTip(diamond.future)) return {};
+export function subregionLightConeError(subregion: unknown, path = 'subregion'): FieldErrors {
+  const diamond = subregion as { kind?: string; past?: unknown; future?: unknown } | undefined;
+  if (!diamond || diamond.kind === 'elements' || !finiteTip(diamond.past) || !finiteTip(diamond.future)) return {};
   if (insideFutureLightCone(diamond.past, diamond.future)) return {};
-  return { 'subregion.future.t': lightConeMessage };
+  return { [`${path}.future.t`]: lightConeMessage };
+}
+
+/**
+ * The entropy extras of a run body from the form: the Rényi orders and the complement check (both of
+ * the subregion, so only with one) and the pair A, B — tips, or element labels when `byElements`; the
+ * messages of the form's own reading go into `errors` under the request's paths.
+ */
+export function entropyExtrasFromForm(
+  v: Pick<RunFormValues, 'withSubregion' | 'renyi' | 'complement' | 'withPair' | 'pairA' | 'pairB'>,
+  reader: NumberReader,
+  dimension: 2 | 4,
+  errors: FieldErrors,
+  elements: { byElements: boolean; N: number | null } = { byElements: false, N: null },
+): Record<string, unknown> {
+  const extras: Record<string, unknown> = {};
+  if (v.withSubregion) {
+    const renyi = renyiOrdersFromText(v.renyi);
+    if (renyi.error) errors.renyi = renyi.error;
+    else if (renyi.orders) extras.renyi = renyi.orders;
+    if (v.complement) extras.complement = true;
+  }
+  if (v.withPair) {
+    const pair: Record<string, unknown> = {};
+    for (const [side, values] of [['a', v.pairA], ['b', v.pairB]] as const) {
+      const path = `mutualInformation.${side}`;
+      if (elements.byElements) {
+        const labels = parseElementList(values.elementList, elements.N);
+        if (typeof labels === 'string') errors[`${path}.indices`] = labels;
+        else pair[side] = { kind: 'elements', indices: labels };
+      } else {
+        pair[side] = diamondFromTips(reader, values, dimension, path);
+        Object.assign(errors, subregionLightConeError(pair[side], path));
+      }
+    }
+    extras.mutualInformation = pair;
+  }
+  return extras;
 }
 
 /**
@@ -265,16 +347,17 @@ function importedRunRequest(v: RunFormValues, picked: PickedCausalSet | null): C
     causalSetId: v.causalSetId,
     mass: reader.read(v.mass, 'mass') ?? 0,
     truncation: truncationFromForm(v.truncation),
-    doubleTruncation: v.withSubregion && v.doubleTruncation,
-    restrictedCut: restrictedCutFromForm(v.withSubregion && v.doubleTruncation, v.restrictedCut),
+    doubleTruncation: (v.withSubregion || v.withPair) && v.doubleTruncation,
+    restrictedCut: restrictedCutFromForm((v.withSubregion || v.withPair) && v.doubleTruncation, v.restrictedCut),
   };
   if (v.engine !== 'auto') candidate.engine = v.engine;
+  const byElements = v.subregionBy === 'elements' || picked?.kind === 'relations';
+  Object.assign(candidate, entropyExtrasFromForm(v, reader, picked?.dimension ?? 2, errors, { byElements, N: picked?.N ?? null }));
   if (v.engine === 'structured' && picked?.kind === 'relations') {
     errors.engine = 'The structured engine sweeps light-cone coordinates; a relation list has none, so it runs on the dense engine.';
   }
   if (v.title.trim()) candidate.title = v.title.trim();
   if (v.withSubregion) {
-    const byElements = v.subregionBy === 'elements' || picked?.kind === 'relations';
     if (byElements) {
       const labels = parseElementList(v.elementList, picked?.N ?? null);
       if (typeof labels === 'string') errors['subregion.indices'] = labels;
@@ -315,15 +398,17 @@ export function runRequestFromForm(v: RunFormValues, maxN: number = denseLimitN,
     sprinkling,
     mass: reader.read(v.mass, 'mass') ?? 0,
     truncation: truncationFromForm(v.truncation),
-    doubleTruncation: v.withSubregion && v.doubleTruncation,
-    restrictedCut: restrictedCutFromForm(v.withSubregion && v.doubleTruncation, v.restrictedCut),
+    doubleTruncation: (v.withSubregion || v.withPair) && v.doubleTruncation,
+    restrictedCut: restrictedCutFromForm((v.withSubregion || v.withPair) && v.doubleTruncation, v.restrictedCut),
   };
   if (v.title.trim()) candidate.title = v.title.trim();
   if (v.engine !== 'auto') candidate.engine = v.engine;
   if (v.withSubregion) candidate.subregion = subregionFromForm(reader, v, dimension);
+  const formErrors: FieldErrors = {};
+  Object.assign(candidate, entropyExtrasFromForm(v, reader, dimension, formErrors));
 
   const parsed = createRunRequestSchema.safeParse(candidate);
-  const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors };
+  const errors: FieldErrors = { ...(parsed.success ? {} : humanise(schemaErrors(parsed.error.issues))), ...reader.errors, ...formErrors };
   const limit = engineLimitOf(v, maxN);
   if (limit.unsupported && v.engine === 'structured') errors.engine = `${capitalise(limit.unsupported)}.`;
   const count = sprinkling.count;

@@ -15,7 +15,7 @@ import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { useEngineLimits } from '../api/limits';
 import { useCreateRun } from '../api/runs';
 import { EngineFields } from '../components/EngineFields';
-import { SubregionFields } from '../components/SubregionFields';
+import { DoubleTruncationFields, PairFields, SubregionFields } from '../components/SubregionFields';
 import { denseLimitN, denseLimits, engineNote, sizeHint } from '../lib/engineNotes';
 import {
   defaultRunForm,
@@ -304,17 +304,42 @@ function NewRunForm() {
             past={values.past}
             future={values.future}
             onTipChange={(which, tip) => set(which, tip)}
-            doubleTruncation={values.doubleTruncation}
-            onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
-            restrictedCut={values.restrictedCut}
-            onRestrictedCutChange={(v) => set('restrictedCut', v)}
             errors={fe}
             elements={
               subregionBy === 'elements'
                 ? { value: values.elementList, onChange: (text) => set('elementList', text), count: picked?.N ?? null, error: fe['subregion.indices'] }
                 : undefined
             }
+            renyi={{ value: values.renyi, onChange: (text) => set('renyi', text) }}
+            complement={{ checked: values.complement, onChange: (v) => set('complement', v) }}
           />
+        </FormSection>
+
+        <FormSection title="Mutual information" note="Optional. Two subregions on the same state.">
+          <PairFields
+            dimension={dimension}
+            enabled={values.withPair}
+            onEnabledChange={(v) => set('withPair', v)}
+            a={values.pairA}
+            b={values.pairB}
+            onChange={(side, pair) => set(side === 'a' ? 'pairA' : 'pairB', pair)}
+            errors={fe}
+            byElements={subregionBy === 'elements' || (imported && picked?.kind === 'relations') ? { count: picked?.N ?? null } : undefined}
+          />
+        </FormSection>
+
+        <FormSection title="Entropy cut" note="For the subregion and the pair.">
+          {values.withSubregion || values.withPair ? (
+            <DoubleTruncationFields
+              doubleTruncation={values.doubleTruncation}
+              onDoubleTruncationChange={(v) => set('doubleTruncation', v)}
+              restrictedCut={values.restrictedCut}
+              onRestrictedCutChange={(v) => set('restrictedCut', v)}
+              errors={fe}
+            />
+          ) : (
+            <p className="text-sm text-ink-soft">Ask for a subregion or a pair to choose double truncation.</p>
+          )}
         </FormSection>
 
         <FormSection title="Title" note="Optional; shown in the runs table and the e-mail.">

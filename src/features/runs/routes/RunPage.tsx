@@ -11,8 +11,8 @@ import { useCan } from '../../../lib/permissions';
 import { isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
 import { Caution, RuleCautions } from '../../../ui/Caution';
 import { ReanalyseForm } from '../components/ReanalyseForm';
-import { DiagnosticsTable, EntropyTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
-import { PointsPlot, SpectrumPlot } from '../components/RunPlots';
+import { ComplementTable, DiagnosticsTable, EntropyTable, MutualInformationPanel, RenyiTable, SettingsTable, singleCutNote } from '../components/RunResultTables';
+import { PointsPlot, RenyiPlot, SpectrumPlot } from '../components/RunPlots';
 import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
 import { StatusLabel } from '../../../ui/StatusLabel';
@@ -128,6 +128,28 @@ function RunView({ run }: { run: RunDetail }) {
               <DiagnosticsTable result={result} />
             </Section>
           </div>
+          {result.entropy?.renyi && (
+            <Section title="Rényi entropies">
+              <div className="grid grid-cols-1 items-start gap-x-12 gap-y-6 lg:grid-cols-[minmax(16rem,22rem)_1fr]">
+                <RenyiTable entropy={result.entropy} />
+                <RenyiPlot run={run} entropy={result.entropy} />
+              </div>
+            </Section>
+          )}
+          {(result.mutualInformation || (result.complement && result.entropy)) && (
+            <div className="grid grid-cols-1 gap-x-12 lg:grid-cols-2">
+              {result.mutualInformation && (
+                <Section title="Mutual information">
+                  <MutualInformationPanel mutualInformation={result.mutualInformation} />
+                </Section>
+              )}
+              {result.complement && result.entropy && (
+                <Section title="Complement check">
+                  <ComplementTable entropy={result.entropy} complement={result.complement} />
+                </Section>
+              )}
+            </div>
+          )}
           <Section title="Downloads">
             <ExportDownloads kind="run" id={run.id}>
               Each plot has its own PNG and SVG download beneath it.
