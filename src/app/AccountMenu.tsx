@@ -37,7 +37,7 @@ export function AccountMenu() {
         onClick={() => setOpen((value) => !value)}
         className="flex items-center gap-2 text-sm text-ink-soft hover:text-ink"
       >
-        <span className="max-w-[12rem] truncate">{user.name}</span>
+        <span className="max-w-[8rem] truncate sm:max-w-[12rem]">{user.name}</span>
         <span aria-hidden className="text-[0.625rem]">{open ? '▲' : '▼'}</span>
       </button>
       {open && (

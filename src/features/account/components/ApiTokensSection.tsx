@@ -45,42 +45,44 @@ export function ApiTokensSection({ memberships }: { memberships: Membership[] })
       ) : tokens.data.length === 0 ? (
         <Empty>No API tokens yet.</Empty>
       ) : (
-        <table className="w-full text-sm" aria-label="API tokens">
-          <thead className="text-left text-xs text-ink-soft">
-            <tr>
-              <th className="py-1 font-normal">Name</th>
-              <th className="py-1 font-normal">Team</th>
-              <th className="py-1 font-normal">Starts with</th>
-              <th className="py-1 font-normal">Created</th>
-              <th className="py-1 font-normal">Expires</th>
-              <th className="py-1 font-normal">Last used</th>
-              <th />
-            </tr>
-          </thead>
-          <tbody>
-            {tokens.data.map((token) => (
-              <tr key={token.id} className="border-t border-rule">
-                <td className="py-2">{token.name}</td>
-                <td className="py-2">{token.team.name}</td>
-                <td className="figures py-2">{token.hint}…</td>
-                <td className="figures py-2">{formatDate(token.createdAt)}</td>
-                <td className="figures py-2">{token.expiresAt ? formatDate(token.expiresAt) : 'never'}</td>
-                <td className="figures py-2">{token.lastUsedAt ? formatDateTime(token.lastUsedAt) : '—'}</td>
-                <td className="py-2 text-right">
-                  <Button
-                    variant="danger"
-                    busy={revoke.isPending && revoke.variables === token.id}
-                    onClick={() => {
-                      if (window.confirm(`Revoke the token "${token.name}"? Scripts using it stop working at once.`)) revoke.mutate(token.id);
-                    }}
-                  >
-                    Revoke
-                  </Button>
-                </td>
+        <div className="overflow-x-auto">
+          <table className="w-full text-sm" aria-label="API tokens">
+            <thead className="text-left text-xs text-ink-soft">
+              <tr>
+                <th className="py-1 font-normal">Name</th>
+                <th className="py-1 font-normal">Team</th>
+                <th className="py-1 font-normal">Starts with</th>
+                <th className="py-1 font-normal">Created</th>
+                <th className="py-1 font-normal">Expires</th>
+                <th className="py-1 font-normal">Last used</th>
+                <th />
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {tokens.data.map((token) => (
+                <tr key={token.id} className="border-t border-rule">
+                  <td className="py-2">{token.name}</td>
+                  <td className="py-2">{token.team.name}</td>
+                  <td className="figures py-2">{token.hint}…</td>
+                  <td className="figures py-2">{formatDate(token.createdAt)}</td>
+                  <td className="figures py-2">{token.expiresAt ? formatDate(token.expiresAt) : 'never'}</td>
+                  <td className="figures py-2">{token.lastUsedAt ? formatDateTime(token.lastUsedAt) : '—'}</td>
+                  <td className="py-2 text-right">
+                    <Button
+                      variant="danger"
+                      busy={revoke.isPending && revoke.variables === token.id}
+                      onClick={() => {
+                        if (window.confirm(`Revoke the token "${token.name}"? Scripts using it stop working at once.`)) revoke.mutate(token.id);
+                      }}
+                    >
+                      Revoke
+                    </Button>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
       )}
       <FormError message={revoke.error?.message} />
     </div>

@@ -40,27 +40,29 @@ export function CutRulesPage() {
         ) : cutRules.data.length === 0 ? (
           <Empty>No cut rules saved yet.{canCompute ? ' Save one above.' : ''}</Empty>
         ) : (
-          <table className="w-full border-collapse text-sm" aria-label="Cut rules">
-            <thead>
-              <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
-                <th className="py-2 pr-4 font-normal">Name</th>
-                <th className="py-2 pr-4 font-normal">Rule</th>
-                <th className="py-2 pr-4 font-normal">Note</th>
-                <th className="py-2 pr-4 font-normal">Saved by</th>
-                <th className="py-2 pr-4 text-right font-normal">Date</th>
-                {canCompute && (
-                  <th className="py-2 font-normal">
-                    <span className="sr-only">Actions</span>
-                  </th>
-                )}
-              </tr>
-            </thead>
-            <tbody>
-              {cutRules.data.map((rule) => (
-                <CutRuleRow key={rule.id} rule={rule} canDelete={canCompute} />
-              ))}
-            </tbody>
-          </table>
+          <div className="overflow-x-auto">
+            <table className="w-full border-collapse text-sm" aria-label="Cut rules">
+              <thead>
+                <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
+                  <th className="py-2 pr-4 font-normal">Name</th>
+                  <th className="py-2 pr-4 font-normal">Rule</th>
+                  <th className="py-2 pr-4 font-normal">Note</th>
+                  <th className="py-2 pr-4 font-normal">Saved by</th>
+                  <th className="py-2 pr-4 text-right font-normal">Date</th>
+                  {canCompute && (
+                    <th className="py-2 font-normal">
+                      <span className="sr-only">Actions</span>
+                    </th>
+                  )}
+                </tr>
+              </thead>
+              <tbody>
+                {cutRules.data.map((rule) => (
+                  <CutRuleRow key={rule.id} rule={rule} canDelete={canCompute} />
+                ))}
+              </tbody>
+            </table>
+          </div>
         )}
       </Section>
     </>

@@ -13,23 +13,25 @@ const stateLabels = { accepted: 'Accepted', expired: 'Expired', open: 'Waiting' 
 export function InvitationList({ invitations }: { invitations: Invitation[] }) {
   const now = Date.now();
   return (
-    <table className="w-full border-collapse text-sm" aria-label="Invitations">
-      <thead>
-        <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
-          <th className="py-2 pr-4 font-normal">E-mail</th>
-          <th className="py-2 pr-4 font-normal">Role</th>
-          <th className="py-2 pr-4 font-normal">State</th>
-          <th className="py-2 pr-4 text-right font-normal">Sent</th>
-          <th className="py-2 pr-4 text-right font-normal">Valid until</th>
-          <th className="py-2 font-normal"><span className="sr-only">Actions</span></th>
-        </tr>
-      </thead>
-      <tbody>
-        {invitations.map((invitation) => (
-          <InvitationRow key={invitation.id} invitation={invitation} state={invitationState(invitation, now)} />
-        ))}
-      </tbody>
-    </table>
+    <div className="overflow-x-auto">
+      <table className="w-full border-collapse text-sm" aria-label="Invitations">
+        <thead>
+          <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
+            <th className="py-2 pr-4 font-normal">E-mail</th>
+            <th className="py-2 pr-4 font-normal">Role</th>
+            <th className="py-2 pr-4 font-normal">State</th>
+            <th className="py-2 pr-4 text-right font-normal">Sent</th>
+            <th className="py-2 pr-4 text-right font-normal">Valid until</th>
+            <th className="py-2 font-normal"><span className="sr-only">Actions</span></th>
+          </tr>
+        </thead>
+        <tbody>
+          {invitations.map((invitation) => (
+            <InvitationRow key={invitation.id} invitation={invitation} state={invitationState(invitation, now)} />
+          ))}
+        </tbody>
+      </table>
+    </div>
   );
 }
 

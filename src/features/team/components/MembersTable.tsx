@@ -13,22 +13,24 @@ interface MembersTableProps {
 
 export function MembersTable({ members, currentUserId, canManage }: MembersTableProps) {
   return (
-    <table className="w-full border-collapse text-sm" aria-label="Members">
-      <thead>
-        <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
-          <th className="py-2 pr-4 font-normal">Name</th>
-          <th className="py-2 pr-4 font-normal">E-mail</th>
-          <th className="py-2 pr-4 font-normal">Role</th>
-          <th className="py-2 pr-4 text-right font-normal">Joined</th>
-          {canManage && <th className="py-2 font-normal"><span className="sr-only">Actions</span></th>}
-        </tr>
-      </thead>
-      <tbody>
-        {members.map((member) => (
-          <MemberRow key={member.userId} member={member} isSelf={member.userId === currentUserId} canManage={canManage} />
-        ))}
-      </tbody>
-    </table>
+    <div className="overflow-x-auto">
+      <table className="w-full border-collapse text-sm" aria-label="Members">
+        <thead>
+          <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
+            <th className="py-2 pr-4 font-normal">Name</th>
+            <th className="py-2 pr-4 font-normal">E-mail</th>
+            <th className="py-2 pr-4 font-normal">Role</th>
+            <th className="py-2 pr-4 text-right font-normal">Joined</th>
+            {canManage && <th className="py-2 font-normal"><span className="sr-only">Actions</span></th>}
+          </tr>
+        </thead>
+        <tbody>
+          {members.map((member) => (
+            <MemberRow key={member.userId} member={member} isSelf={member.userId === currentUserId} canManage={canManage} />
+          ))}
+        </tbody>
+      </table>
+    </div>
   );
 }
 
