@@ -1,4 +1,6 @@
 import type { StudyAggregate, StudyFit } from '@shared/studies';
+import { fitQuantity, renyiQuantity } from '@shared/studies';
+import { renyiLabel } from '@shared/vacuum';
 import { Figure } from '../../../ui/Figure';
 
 const th = 'border-b border-ink-faint px-2 py-1.5 text-left text-xs font-medium text-ink-soft';
@@ -75,7 +77,185 @@ export function AggregateTable({
   );
 }
 
-/** Fitted coefficients: b of S = b ln √n + c and a of S = a n + c′, per rule, over all points and per subregion. */
+/** ± SE beside a mean, or "one seed" when there is none. */
+function ErrorCell({ se }: { se: number | null | undefined }) {
+  return (
+    <td className={`${td} pl-1 text-ink-soft`}>
+      {se != null ? <span className="figures text-xs">± {se.toPrecision(2)}</span> : <span className="text-xs text-ink-faint">one seed</span>}
+    </td>
+  );
+}
+
+/** ⟨S_α⟩ ± SE of every Rényi order, one row per (N, subregion, rule), from the same μ as ⟨S⟩. */
+export function RenyiTable({
+  aggregates,
+  ruleLabels,
+  subregionLabels,
+}: {
+  aggregates: StudyAggregate[];
+  ruleLabels: Record<string, string>;
+  subregionLabels: Record<string, string>;
+}) {
+  const rows = aggregates.filter((a) => a.renyi && !a.pair);
+  const keys = Object.keys(rows[0]?.renyi ?? {});
+  if (rows.length === 0) return null;
+  return (
+    <div className="overflow-x-auto">
+      <table className="w-full border-collapse text-sm" data-testid="renyi-table">
+        <thead>
+          <tr>
+            <th className={th}>N</th>
+            <th className={th}>subregion</th>
+            <th className={th}>rule</th>
+            <th className={th} colSpan={2}>⟨S⟩ ± SE</th>
+            {keys.map((k) => (
+              <th key={k} className={th} colSpan={2}>
+                ⟨{renyiLabel(k)}⟩ ± SE
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map((a) => (
+            <tr key={`${a.N}-${a.subregion}-${a.rule}`}>
+              <td className={td}>
+                <Figure value={a.N} whole={5} fraction={0} />
+              </td>
+              <td className={`${td} font-mono text-xs`}>{subregionLabels[a.subregion] ?? a.subregion}</td>
+              <td className={`${td} text-xs`}>{ruleLabels[a.rule] ?? a.rule}</td>
+              <td className={`${td} pr-0`}>
+                <Figure value={a.meanS} digits={4} whole={4} fraction={5} />
+              </td>
+              <ErrorCell se={a.seS} />
+              {keys.map((k) => [
+                <td key={`m${k}`} className={`${td} pr-0`}>
+                  <Figure value={a.renyi![k]?.mean} digits={4} whole={4} fraction={5} />
+                </td>,
+                <ErrorCell key={`e${k}`} se={a.renyi![k]?.se} />,
+              ])}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+/** ⟨I⟩ ± SE per (N, ℓ/L, d/L), one column per rule, for a study of pairs. */
+export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: StudyAggregate[]; rules: string[]; ruleLabels: Record<string, string> }) {
+  const pairs = aggregates.filter((a) => a.pair);
+  const byKey = new Map(pairs.map((a) => [`${a.N}|${a.subregion}|${a.rule}`, a]));
+  const places = [...new Map(pairs.map((a) => [`${a.N}|${a.subregion}`, a])).values()].sort(
+    (p, q) => p.N - q.N || p.pair!.size - q.pair!.size || p.pair!.separation - q.pair!.separation,
+  );
+  return (
+    <div className="overflow-x-auto">
+      <table className="w-full border-collapse text-sm" data-testid="pair-table">
+        <thead>
+          <tr>
+            <th className={th}>N</th>
+            <th className={th}>ℓ/L</th>
+            <th className={th}>d/L</th>
+            <th className={th}>seeds</th>
+            <th className={th}>⟨n_A⟩ ≈ ⟨n_B⟩</th>
+            {rules.map((r) => (
+              <th key={r} className={th} colSpan={2}>
+                ⟨I⟩ ± SE, {ruleLabels[r] ?? r}
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody>
+          {places.map((p) => {
+            const cells = rules.map((r) => byKey.get(`${p.N}|${p.subregion}|${r}`));
+            return (
+              <tr key={`${p.N}-${p.subregion}`}>
+                <td className={td}>
+                  <Figure value={p.N} whole={5} fraction={0} />
+                </td>
+                <td className={td}>
+                  <Figure value={p.pair!.size} digits={3} whole={1} fraction={3} />
+                </td>
+                <td className={td}>
+                  <Figure value={p.pair!.separation} digits={3} whole={1} fraction={3} />
+                </td>
+                <td className={td}>
+                  <Figure value={p.seeds} whole={3} fraction={0} />
+                </td>
+                <td className={td}>
+                  <Figure value={p.meanN / 2} digits={4} whole={5} fraction={3} />
+                </td>
+                {cells.map((c, k) => [
+                  <td key={`m${k}`} className={`${td} pr-0`}>
+                    <Figure value={c?.pair!.meanI} digits={4} whole={3} fraction={5} />
+                  </td>,
+                  <ErrorCell key={`e${k}`} se={c?.pair!.seI} />,
+                ])}
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+      <p className="mt-2 text-xs text-ink-faint">
+        I = S_A + S_B − S_A∪B on one state; ⟨n_A⟩ ≈ ⟨n_B⟩ is half the mean size of A∪B. With double truncation each of A, B and A∪B is cut at its own √n/4π.
+      </p>
+    </div>
+  );
+}
+
+/** The log-log fits of ⟨I⟩ against d/L per rule, ℓ/L and N, beside the continuum trend's slope over the same d/L. */
+export function PairFitsTable({ fits, ruleLabels }: { fits: StudyFit[]; ruleLabels: Record<string, string> }) {
+  const rows = fits.filter((f) => f.model === 'loglog');
+  return (
+    <div className="overflow-x-auto">
+      <table className="w-full border-collapse text-sm" data-testid="pair-fits-table">
+        <thead>
+          <tr>
+            <th className={th}>rule</th>
+            <th className={th}>ℓ/L</th>
+            <th className={th}>N</th>
+            <th className={th}>points</th>
+            <th className={th} colSpan={2}>slope of ln ⟨I⟩ vs ln d</th>
+            <th className={th}>continuum trend</th>
+            <th className={th}>d/L range</th>
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map((f) => (
+            <tr key={`${f.rule}-${f.size}-${f.N}`}>
+              <td className={`${td} text-xs`}>{ruleLabels[f.rule] ?? f.rule}</td>
+              <td className={td}>
+                <Figure value={f.size} digits={3} whole={1} fraction={3} />
+              </td>
+              <td className={td}>
+                <Figure value={f.N} whole={5} fraction={0} />
+              </td>
+              <td className={`${td} text-xs`}>
+                <span className="figures">{f.points}</span>
+                {f.excluded ? <span className="ml-1 text-ink-faint">({f.excluded} with ⟨I⟩ ≤ 0 left out)</span> : null}
+              </td>
+              <td className={`${td} pr-0`}>
+                <Figure value={f.slope} digits={3} whole={2} fraction={4} />
+              </td>
+              <td className={`${td} pl-1 text-ink-soft`}>
+                <span className="figures text-xs">{f.slopeError !== null ? `± ${f.slopeError.toPrecision(2)}` : ''}</span>
+              </td>
+              <td className={td}>
+                <Figure value={f.continuum?.slope} digits={3} whole={2} fraction={4} />
+              </td>
+              <td className={`${td} figures text-xs`}>{f.continuum ? `${f.continuum.from} – ${f.continuum.to}` : ''}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+/**
+ * Fitted coefficients: b of S = b ln √n + c and a of S = a n + c′, per rule, over all points and per
+ * subregion; with Rényi orders also b_α of each S_α = b_α ln √n + c_α.
+ */
 export function FitsTable({
   fits,
   ruleLabels,
@@ -85,7 +265,8 @@ export function FitsTable({
   ruleLabels: Record<string, string>;
   subregionLabels: Record<string, string>;
 }) {
-  const logFits = fits.filter((f) => f.model === 'log');
+  const renyiKeys = [...new Set(fits.map(fitQuantity).filter((q) => q.startsWith('renyi:')).map((q) => q.slice('renyi:'.length)))];
+  const logFits = fits.filter((f) => f.model === 'log' && fitQuantity(f) === 'S');
   return (
     <div className="overflow-x-auto">
       <table className="w-full border-collapse text-sm" data-testid="fits-table">
@@ -97,6 +278,11 @@ export function FitsTable({
             <th className={th}>c</th>
             <th className={th}>R²</th>
             <th className={th} colSpan={2}>a (S vs n)</th>
+            {renyiKeys.map((k) => (
+              <th key={k} className={th} colSpan={2}>
+                b for {renyiLabel(k)}
+              </th>
+            ))}
             <th className={th}>weights</th>
           </tr>
         </thead>
@@ -130,6 +316,17 @@ export function FitsTable({
                 <td className={`${td} pl-1 text-ink-soft`}>
                   <span className="figures text-xs">{linear?.slopeError != null ? `± ${linear.slopeError.toPrecision(2)}` : ''}</span>
                 </td>
+                {renyiKeys.map((k) => {
+                  const r = fits.find((g) => g.model === 'log' && g.rule === f.rule && g.subregion === f.subregion && fitQuantity(g) === renyiQuantity(k));
+                  return [
+                    <td key={`b${k}`} className={`${td} pr-0`}>
+                      <Figure value={r?.slope} digits={3} whole={3} fraction={5} />
+                    </td>,
+                    <td key={`e${k}`} className={`${td} pl-1 text-ink-soft`}>
+                      <span className="figures text-xs">{r?.slopeError != null ? `± ${r.slopeError.toPrecision(2)}` : ''}</span>
+                    </td>,
+                  ];
+                })}
                 <td className={`${td} text-xs text-ink-faint`}>{f.weighting === 'inverse-variance' ? '1/SE²' : 'equal'}</td>
               </tr>
             );

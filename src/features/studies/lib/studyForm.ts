@@ -18,8 +18,9 @@ import {
 } from '@shared/regions';
 import { defaultTruncationFor } from '@shared/vacuum';
 import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../../lib/truncationForm';
+import { renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 
-/** Whether concentric sub-diamonds (ℓ/L) can be asked for on a kind: it needs a diamond of its own. */
+/** Whether concentric sub-diamonds (ℓ/L) or pairs on the central slice can be asked for on a kind: it needs a diamond of its own. */
 export const offersConcentric = (kind: RegionKind): boolean => regionDescriptors[kind].ownDiamond !== undefined;
 
 const tipText = (e: Event) => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]).join(',');
@@ -46,8 +47,13 @@ export interface StudyFormValues extends RegionFieldValues {
   counts: string;
   seedCount: string;
   seedPrefix: string;
-  subregionKind: 'concentric' | 'tips' | 'elements';
+  subregionKind: 'concentric' | 'pairs' | 'tips' | 'elements';
   fractions: string;
+  /** pairs for the mutual information: ℓ/L of each of the two sub-diamonds, and the gaps d/L */
+  pairSizes: string;
+  separations: string;
+  /** Rényi orders α as typed ("0.5, 2, inf"); blank for none */
+  renyi: string;
   /** one element list per line: "0, 1, 2, …" (imported sets only) */
   elementLists: string;
   /** one sub-diamond per line: "t0,x0 t1,x1" */
@@ -77,6 +83,9 @@ export const defaultStudyForm: StudyFormValues = {
   seedPrefix: 'seed',
   subregionKind: 'concentric',
   fractions: '0.4, 0.5, 0.6',
+  pairSizes: '0.2',
+  separations: '0.02, 0.05, 0.1, 0.2',
+  renyi: '',
   elementLists: '',
   tips: defaultTips[2],
   untruncated: true,
@@ -137,13 +146,15 @@ export function parseElementLists(text: string): number[][] {
 
 function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subregions'] {
   if (values.subregionKind === 'concentric') return { kind: 'concentric', fractions: parseNumberList(values.fractions) };
+  if (values.subregionKind === 'pairs') return { kind: 'pairs', sizes: parseNumberList(values.pairSizes), separations: parseNumberList(values.separations) };
   if (values.subregionKind === 'elements') return { kind: 'elements', lists: parseElementLists(values.elementLists).map((indices) => ({ indices })) };
   return { kind: 'tips', diamonds: parseTips(values.tips) };
 }
 
 /**
  * The POST body for the form's values (validated afterwards with the shared schema). `dimension` is that
- * of the picked imported sets (a sprinkled study takes its region's).
+ * of the picked imported sets (a sprinkled study takes its region's). Rényi orders the field cannot read
+ * are left out here: the page shows renyiOrdersFromText's message first.
  */
 export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 | 4 = 2): CreateStudyRequestInput {
   const dimension = values.source === 'imported' ? importedDimension : regionDimension(values.regionKind);
@@ -154,8 +165,10 @@ export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 |
     rules.push({ truncation: defaultTruncationFor(dimension), doubleTruncation: true, ...(restrictedCut ? { restrictedCut } : {}) });
   }
   const title = values.title.trim() ? { title: values.title.trim() } : {};
+  const { orders } = renyiOrdersFromText(values.renyi);
+  const renyi = orders ? { renyi: orders } : {};
   if (values.source === 'imported') {
-    return { source: 'imported', ...title, causalSetIds: values.causalSetIds, subregions: subregionsFrom(values), rules, mass: Number(values.mass) };
+    return { source: 'imported', ...title, causalSetIds: values.causalSetIds, subregions: subregionsFrom(values), rules, mass: Number(values.mass), ...renyi };
   }
   return {
     source: 'sprinkled',
@@ -168,6 +181,7 @@ export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 |
     subregions: subregionsFrom(values),
     rules,
     mass: Number(values.mass),
+    ...renyi,
   };
 }
 
@@ -178,6 +192,9 @@ export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('subregions.lists')) return 'elementLists';
   if (path.startsWith('seeds')) return 'seedCount';
   if (path.startsWith('subregions.fractions')) return 'fractions';
+  if (path.startsWith('subregions.sizes')) return 'pairSizes';
+  if (path.startsWith('subregions.separations')) return 'separations';
+  if (path.startsWith('renyi')) return 'renyi';
   if (path.startsWith('subregions.diamonds')) return 'tips';
   if (path.startsWith('subregions')) return 'subregionKind';
   if (/^rules\.\d+\.restrictedCut/.test(path)) return 'restrictedCut';

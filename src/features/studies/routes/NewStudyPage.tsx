@@ -13,6 +13,7 @@ import { Checkbox } from '../../../ui/Checkbox';
 import { RestrictedCutFields } from '../../../ui/RestrictedCutFields';
 import { regionDescriptors, regionDimension, regionLabels, type RegionFieldWording, type RegionKind } from '@shared/regions';
 import { RegionFields } from '../../../ui/RegionFields';
+import { RenyiOrdersField, renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 import { useCreateStudy } from '../api/studies';
 import {
   defaultStudyForm,
@@ -53,7 +54,7 @@ export function NewStudyPage() {
     setValues((v) => ({
       ...v,
       regionKind,
-      subregionKind: !offersConcentric(regionKind) && v.subregionKind === 'concentric' ? 'tips' : v.subregionKind,
+      subregionKind: !offersConcentric(regionKind) && (v.subregionKind === 'concentric' || v.subregionKind === 'pairs') ? 'tips' : v.subregionKind,
       tips: v.tips === defaultTips[regionDimension(v.regionKind)] ? defaultTips[regionDimension(regionKind)] : v.tips,
     }));
 
@@ -73,6 +74,11 @@ export function NewStudyPage() {
   async function submit(event: FormEvent) {
     event.preventDefault();
     setFormError(null);
+    const renyi = renyiOrdersFromText(values.renyi);
+    if (renyi.error) {
+      setErrors({ renyi: renyi.error });
+      return;
+    }
     const body = studyRequestFrom(values, importedDimension);
     const checked = validate(createStudyRequestSchema, body);
     if (!checked.ok) {
@@ -171,6 +177,7 @@ export function NewStudyPage() {
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
               {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="concentric">concentric, by ℓ/L</option>}
+              {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="pairs">pairs for mutual information</option>}
               <option value="tips">by tips</option>
               {values.source === 'imported' && <option value="elements">element lists</option>}
             </SelectField>
@@ -185,6 +192,11 @@ export function NewStudyPage() {
                 ) : (
                   <p className="text-xs text-ink-faint">the only choice for relation lists; concentric sub-diamonds need sets imported with the same diamond region</p>
                 )}
+              </div>
+            ) : values.subregionKind === 'pairs' ? (
+              <div className="grid grid-cols-1 gap-6 sm:grid-cols-2">
+                <TextField label="Pair sizes ℓ/L" name="pairSizes" className="font-mono" value={values.pairSizes} onChange={(e) => set('pairSizes', e.target.value)} error={errors.pairSizes} hint={`proper time of each of the two equal sub-diamonds; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
+                <TextField label="Separations d/L" name="separations" className="font-mono" value={values.separations} onChange={(e) => set('separations', e.target.value)} error={errors.separations} hint="gap between the facing corners on the central slice; 2ℓ + d ≤ L; three or more for a log-log fit of I against d" />
               </div>
             ) : values.subregionKind === 'concentric' ? (
               <TextField label="ℓ/L values" name="fractions" className="font-mono" value={values.fractions} onChange={(e) => set('fractions', e.target.value)} error={errors.fractions} hint={`sub-diamonds sharing the centre, proper time ℓ = (ℓ/L)·L; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
@@ -220,6 +232,9 @@ export function NewStudyPage() {
               {errors.untruncated && <p className="text-xs text-danger" role="alert">{errors.untruncated}</p>}
             </div>
             <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} hint="0 for the massless field" />
+          </div>
+          <div className="mt-6 max-w-md">
+            <RenyiOrdersField value={values.renyi} onChange={(text) => set('renyi', text)} error={errors.renyi} />
           </div>
         </Section>
 

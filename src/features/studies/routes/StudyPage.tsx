@@ -11,7 +11,8 @@ import { isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
 import { RuleCautions } from '../../../ui/Caution';
 import { StudyPlots } from '../components/StudyPlots';
-import { AggregateTable, FitsTable } from '../components/StudyTables';
+import { AggregateTable, FitsTable, PairFitsTable, PairTable, RenyiTable } from '../components/StudyTables';
+import { fitQuantity } from '@shared/studies';
 
 export function StudyPage() {
   const { studyId = '' } = useParams();
@@ -25,6 +26,10 @@ export function StudyPage() {
   if (study.isError) return <ErrorState error={study.error} onRetry={() => study.refetch()} />;
   const s = study.data;
   const subregionLabels = Object.fromEntries(s.subregions.map((x) => [x.key, x.label]));
+  const pairs = s.aggregates.some((a) => a.pair);
+  const hasRenyi = s.aggregates.some((a) => a.renyi && !a.pair);
+  const entropyFits = s.fits.some((f) => f.model === 'log' && fitQuantity(f) === 'S');
+  const pairFits = s.fits.some((f) => f.model === 'loglog');
 
   return (
     <>
@@ -119,11 +124,28 @@ export function StudyPage() {
       </div>
       {s.aggregates.length > 0 && (
         <>
-          <Section title="Ensemble means" aside="per N, subregion and rule">
-            <AggregateTable aggregates={s.aggregates} rules={s.rules} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
-          </Section>
+          {pairs ? (
+            <Section title="Mutual information" aside="per N, pair and rule">
+              <PairTable aggregates={s.aggregates} rules={s.rules} ruleLabels={s.ruleLabels} />
+            </Section>
+          ) : (
+            <Section title="Ensemble means" aside="per N, subregion and rule">
+              <AggregateTable aggregates={s.aggregates} rules={s.rules} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
+            </Section>
+          )}
+          {hasRenyi && (
+            <Section title="Rényi entropies" aside="S_α from the same μ as S">
+              <RenyiTable aggregates={s.aggregates} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
+            </Section>
+          )}
           <Section title="Fits">
-            {s.fits.length > 0 ? (
+            {pairs ? (
+              pairFits ? (
+                <PairFitsTable fits={s.fits} ruleLabels={s.ruleLabels} />
+              ) : (
+                <p className="text-sm text-ink-soft">A log-log fit of I against d needs three separations with ⟨I⟩ &gt; 0 per rule, ℓ/L and N.</p>
+              )
+            ) : entropyFits ? (
               <FitsTable fits={s.fits} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
             ) : (
               <p className="text-sm text-ink-soft">Fits need at least two different subregion sizes per rule.</p>
