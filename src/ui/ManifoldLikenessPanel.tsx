@@ -35,13 +35,13 @@ export function ManifoldLikenessPanel({
           <tr className="border-b border-rule align-baseline">
             <th scope="row" className="py-2 pr-4 text-left font-normal text-ink-soft">
               Midpoint-scaling dimension
-              <span className="block text-xs text-ink-faint">log₂(N / N½), N½ = {midpoint.halfSize} at the midpoint element</span>
+              <span className="block text-xs text-ink-faint">log₂(N / N<sub>½</sub>), N<sub>½</sub> = {midpoint.halfSize} at the midpoint element</span>
             </th>
             <td className="figures whitespace-nowrap py-2 text-right">{midpoint.estimate === null ? '—' : midpoint.estimate.toFixed(2)}</td>
           </tr>
           <tr className="border-b border-rule align-baseline">
             <th scope="row" className="py-2 pr-4 text-left font-normal text-ink-soft">
-              Longest chain / (ρV)^(1/{declaredDimension})
+              Longest chain / (ρV)<sup>1/{declaredDimension}</sup>
               <span className="block text-xs text-ink-faint">
                 {report.longestChain} elements; a {declaredDimension}D diamond tends to {expected} (Brightwell–Gregory), approached slowly from below
               </span>
@@ -53,7 +53,7 @@ export function ManifoldLikenessPanel({
         </tbody>
       </table>
       <div>
-        <p className="text-xs text-ink-soft">Interval abundances N_k: related pairs with k elements between (N₀ = links)</p>
+        <p className="text-xs text-ink-soft">Interval abundances N<sub>k</sub>: related pairs with k elements between (N<sub>0</sub> = links)</p>
         <div className="mt-1 overflow-x-auto">
         <table className="figures w-full border-collapse text-xs" aria-label="Interval abundances">
           <thead>

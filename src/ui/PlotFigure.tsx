@@ -1,5 +1,6 @@
 import type Plotly from 'plotly.js-dist-min';
-import { lazy, Suspense, useRef, useState } from 'react';
+import { lazy, Suspense, useMemo, useRef, useState } from 'react';
+import { typesetPlotObject } from '../lib/plotText';
 import { baseLayout } from '../lib/plotTheme';
 import { Button } from './Button';
 import { Loading } from './States';
@@ -26,6 +27,8 @@ interface PlotFigureProps {
 export function PlotFigure({ title, fileName, data, layout, height = 420, caption }: PlotFigureProps) {
   const graph = useRef<HTMLElement | null>(null);
   const [error, setError] = useState<string | null>(null);
+  const typesetData = useMemo(() => typesetPlotObject(data), [data]);
+  const typesetLayout = useMemo(() => typesetPlotObject(baseLayout({ height, autosize: true, ...layout })), [layout, height]);
 
   async function download(format: 'png' | 'svg') {
     if (!graph.current) return;
@@ -54,9 +57,10 @@ export function PlotFigure({ title, fileName, data, layout, height = 420, captio
         }
       >
         <Plot
-          data={data as Plotly.Data[]}
-          layout={baseLayout({ height, autosize: true, ...layout }) as Partial<Plotly.Layout>}
-          config={{ displaylogo: false, responsive: true, modeBarButtonsToRemove: ['toImage', 'lasso2d', 'select2d'] }}
+          data={typesetData as Plotly.Data[]}
+          layout={typesetLayout as Partial<Plotly.Layout>}
+          // no stock toolbar: it covered the first legend entry, and our PNG/SVG buttons sit below; zoom by drag, reset by double-click
+          config={{ displaylogo: false, responsive: true, displayModeBar: false }}
           useResizeHandler
           style={{ width: '100%', height }}
           onInitialized={(_figure, div) => {

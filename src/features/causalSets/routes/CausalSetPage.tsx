@@ -30,7 +30,8 @@ function PointsFigure({ set }: { set: CausalSetDetail & { preview: { kind: 'coor
       height={460}
       data={[
         {
-          type: 'scattergl',
+          // SVG markers, not WebGL: a browser without WebGL (headless, remote desktops) would show an error box instead
+          type: 'scatter',
           mode: 'markers',
           name: 'elements',
           x,
