@@ -85,9 +85,9 @@ describe('causal complement: the fast sets against the definition', () => {
     }
   });
 
-  it('the structured engine reports the dense O′ and entropies (N = 1200)', async () => {
+  it('the structured engine reports the dense O′ and entropies (N = 1000)', async () => {
     const request = {
-      source: { kind: 'sprinkling' as const, sprinkling: { region: { kind: 'diamond2d' as const, properTime: 2 }, process: 'fixed' as const, count: 1200, seed: 'complement-structured', prng: 'arc4' as const } },
+      source: { kind: 'sprinkling' as const, sprinkling: { region: { kind: 'diamond2d' as const, properTime: 2 }, process: 'fixed' as const, count: 1000, seed: 'complement-structured', prng: 'arc4' as const } },
       truncation: { rule: 'sqrtN' as const },
       doubleTruncation: true,
       subregion: { kind: 'diamond' as const, past: { t: -0.4, x: -0.1 }, future: { t: 0.45, x: -0.1 } },

@@ -104,11 +104,11 @@ describe('mutual information across sprinklings', () => {
   const sprinkling = (count: number, seed: string) => ({ kind: 'sprinkling' as const, sprinkling: { region, process: 'fixed' as const, count, seed, prng: 'arc4' as const } });
 
   it('is ≥ 0 within a 1e-8 relative floor, over seeds, rules and separations (common practice: subadditivity)', async () => {
-    for (const seed of ['floor-1', 'floor-2', 'floor-3', 'floor-4']) {
+    for (const seed of ['floor-1', 'floor-2', 'floor-3']) {
       for (const [truncation, doubleTruncation] of [[{ rule: 'none' as const }, false], [{ rule: 'sqrtN' as const }, true]] as const) {
         for (const gap of [0.02, 0.4]) {
           const r = await computeVacuum({
-            source: sprinkling(500, seed),
+            source: sprinkling(400, seed),
             truncation,
             doubleTruncation,
             engine: 'dense',
@@ -119,7 +119,7 @@ describe('mutual information across sprinklings', () => {
         }
       }
     }
-  }, 120_000);
+  }, 180_000);
 
   it('the structured engine agrees with the dense one at N = 1200 within 1e-6 relative', async () => {
     const request = {
