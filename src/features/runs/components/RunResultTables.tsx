@@ -116,9 +116,15 @@ export function RenyiTable({ entropy }: { entropy: Pick<NonNullable<RunResult['e
   );
 }
 
-/** The restricted cut of one part, short: "√n/(4π) = 0.38" or the kernel-only note's first word. */
-function partCutText(part: EntropyPart): string {
-  return part.restrictedCut ? restrictedCutRowText(part.restrictedCut, part.cutoff) : `kernel only (${Number(part.cutoff.toPrecision(3))})`;
+/** The restricted cut of one part on two lines, the rule and the |λ| it came to, so three fit a phone's width. */
+function PartCut({ part }: { part: EntropyPart }) {
+  const rule = part.restrictedCut ? (part.restrictedCut.rule === 'sqrtN' ? '√n/(4π)' : restrictedCutText(part.restrictedCut)) : 'kernel only';
+  return (
+    <span className="figures inline-flex flex-col items-end text-xs leading-tight">
+      <span className="text-ink-soft">{rule}</span>
+      <span>{part.restrictedCut?.rule === 'lambda' ? '' : `= ${Number(part.cutoff.toPrecision(4))}`}</span>
+    </span>
+  );
 }
 
 /**
@@ -132,20 +138,21 @@ export function MutualInformationPanel({ mutualInformation: mi }: { mutualInform
     ['A∪B', mi.union],
   ] as const;
   const rows: [string, (p: EntropyPart) => React.ReactNode][] = [
-    ['S', (p) => <Figure value={p.S} digits={6} />],
-    ['n', (p) => <Figure value={p.n} />],
-    ['restricted cut', (p) => <span className="figures text-xs">{partCutText(p)}</span>],
-    ['modes kept', (p) => <Figure value={p.modesKept} />],
+    // narrow figures (five significant digits) so the three columns fit a phone's width
+    ['S', (p) => <Figure value={p.S} digits={5} whole={5} fraction={5} />],
+    ['n', (p) => <Figure value={p.n} whole={5} fraction={5} />],
+    ['restricted cut', (p) => <PartCut part={p} />],
+    ['modes kept', (p) => <Figure value={p.modesKept} whole={5} fraction={5} />],
   ];
   return (
     <div className="flex flex-col gap-3">
       <div className="overflow-x-auto">
-        <table className="w-full min-w-[22rem] max-w-xl border-collapse text-sm" aria-label="Mutual information">
+        <table className="w-full max-w-xl border-collapse text-sm" aria-label="Mutual information">
           <thead>
             <tr className="border-b border-rule text-xs text-ink-faint">
               <th scope="col" className="py-1.5 pr-4 text-left font-normal" />
               {parts.map(([label]) => (
-                <th key={label} scope="col" className="py-1.5 pl-4 text-right font-normal">
+                <th key={label} scope="col" className="py-1.5 pl-2 text-right font-normal sm:pl-4">
                   {label}
                 </th>
               ))}
@@ -158,7 +165,7 @@ export function MutualInformationPanel({ mutualInformation: mi }: { mutualInform
                   {label}
                 </th>
                 {parts.map(([part, p]) => (
-                  <td key={part} className="py-1.5 pl-4 text-right">
+                  <td key={part} className="py-1.5 pl-2 text-right sm:pl-4">
                     {cell(p)}
                   </td>
                 ))}

@@ -1,0 +1,92 @@
+import type { Worker } from 'bullmq';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startTestWorker } from '../support/app';
+import { screenshot, signIn, startApp, type RunningApp } from './browser';
+
+const researcher = 'tomas.okafor@tacet.example';
+const phoneWidth = 390;
+
+/**
+ * Issue 15 in the browser: a run with Rényi orders, a mutual-information pair and the complement
+ * check, from the form to the run page's Rényi table and plot, mutual-information panel and complement
+ * check; at desktop and at phone width (every wide table scrolls in its own box).
+ */
+describe('a run with Rényi orders, a pair and the complement check', () => {
+  let running: RunningApp;
+  let worker: Worker;
+
+  beforeAll(async () => {
+    running = await startApp();
+    worker = await startTestWorker(running.context);
+  });
+  afterAll(async () => {
+    await worker?.close();
+    await running?.close();
+  });
+
+  it('is filled in, refused where wrong, computed and shown', async () => {
+    const page = await signIn(running, researcher);
+    await page.setViewportSize({ width: 1440, height: 900 });
+    const pageErrors: string[] = [];
+    page.on('pageerror', (error) => pageErrors.push(error.message));
+
+    await page.goto(`${running.baseUrl}/runs/new`);
+    await page.getByLabel('N (elements)').fill('300');
+    await page.getByLabel('Seed').fill('browser-issue-15');
+    await page.getByLabel('Title').fill('Rényi, pair and complement');
+    await page.getByLabel('Compute the entanglement entropy of a subregion').check();
+    await page.getByLabel('Compute the mutual information of two subregions').check();
+    await page.getByText(/each of A, B and A∪B gets its own restricted cut/).waitFor();
+
+    // a bad α is refused beside the Rényi field, with the schema's words
+    await page.getByLabel('Rényi orders α').fill('0.5, -2');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.getByText(/α must be > 0/).waitFor();
+    expect(page.url()).toMatch(/\/runs\/new$/);
+
+    await page.getByLabel('Rényi orders α').fill('0.5, 2, 3, inf');
+    await page.getByLabel('Complement check').check();
+    await page.getByRole('checkbox', { name: /^Double truncation/ }).check();
+    await screenshot(page, 'entanglement-01-form');
+    await page.getByRole('button', { name: 'Start run' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+
+    const renyiTable = page.getByRole('table', { name: 'Rényi entropies' });
+    await renyiTable.waitFor({ timeout: 90_000 });
+    const values = await Promise.all(['0.5', '1', '2', '3', 'inf'].map(async (key) => Number(await page.getByTestId(`renyi-${key}`).getAttribute('data-value'))));
+    // Rényi entropies are non-increasing in α (common practice)
+    for (let k = 1; k < values.length; k++) expect(values[k]!).toBeLessThanOrEqual(values[k - 1]! + 1e-12);
+    const plot = page.getByRole('figure', { name: 'Rényi entropies' });
+    await plot.locator('.js-plotly-plot .scatterlayer .trace').first().waitFor();
+    // S_∞ is the dashed line of the legend, not a point on the α axis
+    await expect(plot.locator('.legend').textContent()).resolves.toMatch(/min-entropy, α → ∞/);
+
+    const panel = page.getByRole('table', { name: 'Mutual information' });
+    await panel.waitFor();
+    await expect(panel.textContent()).resolves.toMatch(/A∪B/);
+    await page.getByTestId('mutual-information-caution').waitFor();
+    await page.getByRole('table', { name: 'Complement check' }).waitFor();
+    await expect(page.getByText('Purity diagnostic S_O′ − S_O').isVisible()).resolves.toBe(true);
+    const points = page.getByRole('figure', { name: 'Points' });
+    await points.locator('.js-plotly-plot .scatterlayer .trace').first().waitFor();
+    await expect(points.textContent()).resolves.toMatch(/A \(\d+\)/);
+    await page.waitForTimeout(500);
+    await screenshot(page, 'entanglement-02-run');
+
+    await page.setViewportSize({ width: phoneWidth, height: 844 });
+    await page.reload();
+    await page.getByRole('table', { name: 'Mutual information' }).waitFor({ timeout: 30_000 });
+    await page.getByRole('figure', { name: 'Rényi entropies' }).locator('.js-plotly-plot').waitFor();
+    await page.waitForTimeout(800);
+    await screenshot(page, 'entanglement-03-run-phone');
+    const overflow = await page.evaluate((screen) => Math.max(document.documentElement.scrollWidth, window.innerWidth) - screen, phoneWidth);
+    expect(overflow).toBe(0);
+
+    await page.goto(`${running.baseUrl}/runs/new`);
+    await page.getByLabel('Compute the entanglement entropy of a subregion').check();
+    await page.getByLabel('Compute the mutual information of two subregions').check();
+    await page.waitForTimeout(300);
+    await screenshot(page, 'entanglement-04-form-phone');
+    expect(pageErrors).toEqual([]);
+  }, 180_000);
+});
