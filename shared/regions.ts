@@ -75,11 +75,46 @@ export const diamond4dRegionSchema = z.strictObject({
   properTime: positive,
 });
 
+/**
+ * 2D de Sitter space in units of its radius ℓ = 1/H, in conformal coordinates where the metric is
+ * Ω²(−dt² + dx²) (server/engine/README.md §17). Global: ds² = sec²T (−dT² + dθ²), T ∈ (−π/2, π/2),
+ * θ ~ θ + 2π; Poincaré patch: ds² = η⁻² (−dη² + dx²), η < 0. A point's t, x hold (T, θ) or (η, x).
+ */
+const HALF_PI = Math.PI / 2;
+const conformalTime = finite.refine((v) => Math.abs(v) < HALF_PI, { message: 'must lie strictly between −π/2 and π/2' });
+const conformalTimeOrdered = (r: { conformalTimeMin: number; conformalTimeMax: number }) => r.conformalTimeMax > r.conformalTimeMin;
+const conformalTimeOrderMessage = { message: 'conformal time T₁ must be later than T₀', path: ['conformalTimeMax'] };
+
+/** Global 2D de Sitter between the conformal times T₀ < T₁ (a slab of the cylinder, θ periodic with period 2π). */
+export const deSitterSlab2dRegionSchema = z
+  .strictObject({ kind: z.literal('deSitterSlab2d'), conformalTimeMin: conformalTime, conformalTimeMax: conformalTime })
+  .refine(conformalTimeOrdered, conformalTimeOrderMessage);
+
+/** Causal diamond of the Poincaré patch between the tips (η₀, 0) and (η₁, 0), η₀ < η₁ < 0. */
+export const deSitterDiamond2dRegionSchema = z
+  .strictObject({
+    kind: z.literal('deSitterDiamond2d'),
+    etaPast: finite.refine((v) => v < 0, { message: 'must be negative (the Poincaré patch has η < 0)' }),
+    etaFuture: finite.refine((v) => v < 0, { message: 'must be negative (the Poincaré patch has η < 0)' }),
+  })
+  .refine((r) => r.etaFuture > r.etaPast, { message: 'the future tip η₁ must be later than the past tip η₀', path: ['etaFuture'] });
+
+/**
+ * The part of the static patch of the observer at θ = 0 (the diamond |θ| < π/2 − |T| between its
+ * horizon tips (∓π/2, 0)) between the conformal times T₀ < T₁.
+ */
+export const deSitterStaticPatch2dRegionSchema = z
+  .strictObject({ kind: z.literal('deSitterStaticPatch2d'), conformalTimeMin: conformalTime, conformalTimeMax: conformalTime })
+  .refine(conformalTimeOrdered, conformalTimeOrderMessage);
+
 export const regionSpecSchema = z.discriminatedUnion('kind', [
   diamond2dRegionSchema,
   cylinderDiamondRegionSchema,
   slab2dRegionSchema,
   diamond4dRegionSchema,
+  deSitterSlab2dRegionSchema,
+  deSitterDiamond2dRegionSchema,
+  deSitterStaticPatch2dRegionSchema,
 ]);
 export type RegionSpec = z.infer<typeof regionSpecSchema>;
 export type RegionKind = RegionSpec['kind'];
@@ -101,7 +136,7 @@ export interface Outline {
  * The fields a region form asks for, shared by every kind that has them (the forms hold each as text,
  * so a value typed for one kind stays when switching to another kind with the same field).
  */
-export const regionFieldKeys = ['properTime', 'circumference', 'tMin', 'tMax', 'xMin', 'xMax'] as const;
+export const regionFieldKeys = ['properTime', 'circumference', 'tMin', 'tMax', 'xMin', 'xMax', 'conformalTimeMin', 'conformalTimeMax', 'etaPast', 'etaFuture'] as const;
 export type RegionFieldKey = (typeof regionFieldKeys)[number];
 
 export interface RegionFieldText {
@@ -119,6 +154,18 @@ export const regionFieldTexts: Record<RegionFieldKey, RegionFieldText> = {
   tMax: { label: 't max' },
   xMin: { label: 'x min' },
   xMax: { label: 'x max' },
+  conformalTimeMin: {
+    label: 'Conformal time T₀',
+    hint: 'Global conformal time, −π/2 < T₀ < T₁ < π/2 (units of ℓ = 1/H).',
+    invalid: 'T₀ is a number strictly between −π/2 and π/2 (about ±1.5708), below T₁.',
+  },
+  conformalTimeMax: {
+    label: 'Conformal time T₁',
+    hint: 'Later than T₀ and below π/2 ≈ 1.5708.',
+    invalid: 'T₁ is a number strictly between −π/2 and π/2 (about ±1.5708), above T₀.',
+  },
+  etaPast: { label: 'Past tip η₀', hint: 'Conformal time η of the past tip, at x = 0 (η < 0).', invalid: 'η₀ is a negative number, below η₁.' },
+  etaFuture: { label: 'Future tip η₁', hint: 'Conformal time η of the future tip, η₀ < η₁ < 0.', invalid: 'η₁ is a negative number, above η₀.' },
 };
 
 /**
@@ -160,6 +207,13 @@ export interface RegionDescriptor<K extends RegionKind = RegionKind> {
   ownDiamond?(spec: RegionSpecOf<K>): DiamondTips;
   /** a sub-diamond that lies wholly in the region, for forms to start from */
   defaultSubDiamond(spec: RegionSpecOf<K>): DiamondTips;
+  /**
+   * For a curved region drawn in conformal coordinates: what the points' t and x columns hold and the
+   * volume element the sprinkling follows, for axis labels, exports and settings. Absent for flat regions.
+   */
+  readonly conformal?: { readonly t: string; readonly x: string; readonly volumeElement: string };
+  /** Absent when a massive field is computed as on every flat region; else why it is refused. */
+  readonly massiveField?: { readonly supported: false; readonly reason: string };
   readonly cli: {
     /** the size options and their defaults, one line of `tacet --help` */
     readonly usage: string;
@@ -336,8 +390,140 @@ const diamond4d: RegionDescriptor<'diamond4d'> = {
   },
 };
 
+// ---- 2D de Sitter (server/engine/README.md §17) ----
+
+/**
+ * Why a massive field is refused on de Sitter regions: the massive K of server/engine/README.md §4
+ * resums chains of the flat massless K with the flat volume per step, which is not the massive Green
+ * function of de Sitter, and no causal-set Green function for a massive field in de Sitter is
+ * implemented with a published source to check it against. The massless field is conformally
+ * invariant in 2D, so its K = ½Cᵀ (with images on the global slab) holds as on flat regions.
+ */
+const deSitterMassless = {
+  supported: false,
+  reason:
+    'only the massless field is offered on 2D de Sitter regions: it is conformally invariant, so K = ½Cᵀ holds there, while the massive K of the engine resums chains with the flat volume element and is no Green function of de Sitter (server/engine/README.md §17)',
+} as const;
+
+const globalConformal = { t: 'conformal time T', x: 'angle θ', volumeElement: '√−g = ℓ² sec²T' } as const;
+
+/** Conformal times from `--conformal-time T0,T1`, default −1, 1. */
+const conformalTimeOptions = (read: RegionOptionReader) => {
+  const text = read.option('conformal-time');
+  const [conformalTimeMin, conformalTimeMax] = text !== undefined ? read.pair(text, '--conformal-time') : [-1, 1];
+  return { conformalTimeMin, conformalTimeMax };
+};
+
+/** Tips (T ∓ h, 0) about the middle of the conformal-time range, h a quarter of it: well inside either slab. */
+const middleSubDiamond = (r: { conformalTimeMin: number; conformalTimeMax: number }): DiamondTips => {
+  const t = (r.conformalTimeMin + r.conformalTimeMax) / 2;
+  const h = (r.conformalTimeMax - r.conformalTimeMin) / 4;
+  return { past: { t: t - h, x: 0 }, future: { t: t + h, x: 0 } };
+};
+
+const deSitterSlab2d: RegionDescriptor<'deSitterSlab2d'> = {
+  kind: 'deSitterSlab2d',
+  schema: deSitterSlab2dRegionSchema,
+  label: '2D de Sitter, global slab',
+  description: 'Global 2D de Sitter between conformal times T₀, T₁ (θ periodic, points as T, θ)',
+  dimension: 2,
+  periodic: true,
+  fields: ['conformalTimeMin', 'conformalTimeMax'],
+  defaults: { conformalTimeMin: '-1', conformalTimeMax: '1' },
+  refinementField: 'conformalTimeMax',
+  text: (r) => `de Sitter slab T ∈ [${short(r.conformalTimeMin)}, ${short(r.conformalTimeMax)}]`,
+  settingsText: (r) => `${deSitterSlab2d.label}, conformal time T ∈ [${r.conformalTimeMin}, ${r.conformalTimeMax}], θ ∈ [−π, π), ℓ = 1`,
+  latex: (r) =>
+    `the slab of global 2D de Sitter space (radius $\\ell = 1$, $ds^2 = \\sec^2 T\\,(-dT^2 + d\\theta^2)$, $\\theta \\sim \\theta + 2\\pi$) between the conformal times $T_0 = ${r.conformalTimeMin}$ and $T_1 = ${r.conformalTimeMax}$`,
+  outline: (r) => ({ x: [-Math.PI, Math.PI, Math.PI, -Math.PI, -Math.PI], y: [r.conformalTimeMin, r.conformalTimeMin, r.conformalTimeMax, r.conformalTimeMax, r.conformalTimeMin] }),
+  defaultSubDiamond: middleSubDiamond,
+  conformal: globalConformal,
+  massiveField: deSitterMassless,
+  cli: {
+    usage: '--conformal-time T0,T1 [-1,1]   (global conformal time, |T| < π/2; θ periodic; a negative start: --conformal-time=-1,1)',
+    options: ['conformal-time'],
+    fromOptions: (read) => ({ kind: 'deSitterSlab2d', ...conformalTimeOptions(read) }),
+  },
+};
+
+const deSitterDiamond2d: RegionDescriptor<'deSitterDiamond2d'> = {
+  kind: 'deSitterDiamond2d',
+  schema: deSitterDiamond2dRegionSchema,
+  label: '2D de Sitter, Poincaré diamond',
+  description: 'Causal diamond in the Poincaré patch of 2D de Sitter, tips at (η₀, 0), (η₁, 0) (points as η, x)',
+  dimension: 2,
+  periodic: false,
+  fields: ['etaPast', 'etaFuture'],
+  defaults: { etaPast: '-2', etaFuture: '-1' },
+  refinementField: 'etaFuture',
+  text: (r) => `Poincaré diamond η ∈ [${short(r.etaPast)}, ${short(r.etaFuture)}]`,
+  settingsText: (r) => `${deSitterDiamond2d.label}, tips at conformal time η = ${r.etaPast} and ${r.etaFuture} (x = 0), ℓ = 1`,
+  latex: (r) =>
+    `the causal diamond of the Poincar\\'e patch of 2D de Sitter space (radius $\\ell = 1$, $ds^2 = \\eta^{-2}(-d\\eta^2 + dx^2)$) between $(\\eta, x) = (${r.etaPast}, 0)$ and $(${r.etaFuture}, 0)$`,
+  outline: (r) => diamondOutline({ t: r.etaPast, x: 0 }, { t: r.etaFuture, x: 0 }),
+  ownDiamond: (r) => ({ past: { t: r.etaPast, x: 0 }, future: { t: r.etaFuture, x: 0 } }),
+  defaultSubDiamond: (r) => concentricTips(deSitterDiamond2d.ownDiamond!(r), 0.5),
+  conformal: { t: 'conformal time η', x: 'x', volumeElement: '√−g = ℓ²/η²' },
+  massiveField: deSitterMassless,
+  cli: {
+    usage: '--eta-tips E0,E1 [-2,-1]   (conformal times of the tips at x = 0, E0 < E1 < 0: --eta-tips=-2,-1)',
+    options: ['eta-tips'],
+    fromOptions(read) {
+      const text = read.option('eta-tips');
+      const [etaPast, etaFuture] = text !== undefined ? read.pair(text, '--eta-tips') : [-2, -1];
+      return { kind: 'deSitterDiamond2d', etaPast, etaFuture };
+    },
+  },
+};
+
+/** The static patch |θ| < π/2 − |T| cut to T ∈ [T₀, T₁], as a closed outline in (θ, T). */
+function staticPatchOutline(r: { conformalTimeMin: number; conformalTimeMax: number }): Outline {
+  const half = (t: number) => Math.PI / 2 - Math.abs(t);
+  const t0 = r.conformalTimeMin;
+  const t1 = r.conformalTimeMax;
+  // the horizon's corner at T = 0, where the past and future horizons meet, when the slab holds it
+  const corner = t0 < 0 && t1 > 0 ? [0] : [];
+  const right = [t0, ...corner, t1].map((t) => ({ x: half(t), y: t }));
+  const left = [...right].reverse().map((p) => ({ x: -p.x, y: p.y }));
+  const ring = [...right, ...left, right[0]!];
+  return { x: ring.map((p) => p.x), y: ring.map((p) => p.y) };
+}
+
+const deSitterStaticPatch2d: RegionDescriptor<'deSitterStaticPatch2d'> = {
+  kind: 'deSitterStaticPatch2d',
+  schema: deSitterStaticPatch2dRegionSchema,
+  label: '2D de Sitter, static patch',
+  description: 'Static patch of the observer at θ = 0 in global 2D de Sitter, bounded by its horizons, between conformal times T₀, T₁ (points as T, θ)',
+  dimension: 2,
+  periodic: false,
+  fields: ['conformalTimeMin', 'conformalTimeMax'],
+  defaults: { conformalTimeMin: '-1', conformalTimeMax: '1' },
+  refinementField: 'conformalTimeMax',
+  text: (r) => `de Sitter static patch T ∈ [${short(r.conformalTimeMin)}, ${short(r.conformalTimeMax)}]`,
+  settingsText: (r) => `${deSitterStaticPatch2d.label}, |θ| < π/2 − |T|, conformal time T ∈ [${r.conformalTimeMin}, ${r.conformalTimeMax}], ℓ = 1`,
+  latex: (r) =>
+    `the part between the conformal times $T_0 = ${r.conformalTimeMin}$ and $T_1 = ${r.conformalTimeMax}$ of the static patch $|\\theta| < \\pi/2 - |T|$ of an observer at $\\theta = 0$ in global 2D de Sitter space (radius $\\ell = 1$, $ds^2 = \\sec^2 T\\,(-dT^2 + d\\theta^2)$), bounded by the cosmological horizon`,
+  outline: staticPatchOutline,
+  defaultSubDiamond: middleSubDiamond,
+  conformal: globalConformal,
+  massiveField: deSitterMassless,
+  cli: {
+    usage: '--conformal-time T0,T1 [-1,1]   (the static patch |θ| < π/2 − |T| of the observer at θ = 0, cut to T0 < T < T1)',
+    options: ['conformal-time'],
+    fromOptions: (read) => ({ kind: 'deSitterStaticPatch2d', ...conformalTimeOptions(read) }),
+  },
+};
+
 /** Every region kind's descriptor, in the order menus list them. */
-export const regionDescriptors: { readonly [K in RegionKind]: RegionDescriptor<K> } = { diamond2d, cylinder2d, slab2d, diamond4d };
+export const regionDescriptors: { readonly [K in RegionKind]: RegionDescriptor<K> } = {
+  diamond2d,
+  cylinder2d,
+  slab2d,
+  diamond4d,
+  deSitterSlab2d,
+  deSitterDiamond2d,
+  deSitterStaticPatch2d,
+};
 
 export const regionKinds = Object.keys(regionDescriptors) as RegionKind[];
 

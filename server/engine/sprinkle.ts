@@ -1,6 +1,6 @@
 import seedrandom from 'seedrandom';
 import type { PrngName, SprinklingSpec } from '@shared/vacuum';
-import { makeRegion, type Region } from './regions';
+import { makeRegion, type Region, type RegionMeasure, type UniformSource } from './regions';
 
 export interface Sprinkling {
   /** flat coordinates, element i at [i*dimension, (i+1)*dimension) */
@@ -15,7 +15,7 @@ export interface Sprinkling {
   provenance: { seed: string; prng: `seedrandom.${PrngName}`; process: 'fixed' | 'poisson' };
 }
 
-export type UniformSource = () => number;
+export type { UniformSource } from './regions';
 
 /** A uniform source in [0, 1) with 53 random bits from the named `seedrandom` generator. */
 export function seededUniform(seed: string, prng: PrngName = 'arc4'): UniformSource {
@@ -40,6 +40,16 @@ export function poissonVariate(mean: number, uniform: UniformSource): number {
   return count;
 }
 
+/**
+ * `count` points of a region with its own measure (a curved region, server/engine/README.md §17),
+ * drawn one after another by its exact sampler.
+ */
+function measurePoints(measure: RegionMeasure, dimension: number, count: number, uniform: UniformSource): Float64Array {
+  const points = new Float64Array(count * dimension);
+  for (let i = 0; i < count; i++) measure.draw(uniform, points, i * dimension);
+  return points;
+}
+
 /** `count` points uniform in the region by rejection from its bounding box (exact for any shape). */
 export function uniformPoints(region: Region, count: number, uniform: UniformSource): Float64Array {
   const d = region.dimension;
@@ -58,8 +68,9 @@ export function uniformPoints(region: Region, count: number, uniform: UniformSou
 
 /**
  * A sprinkling (Bombelli–Lee–Meyer–Sorkin 1987, PRL 59 521): Poisson — N ~ Poisson(ρV) then N uniform
- * points — or the fixed-N variant with ρ = N/V. The seed string, the generator and the draw order fully
- * determine the points.
+ * points — or the fixed-N variant with ρ = N/V. "Uniform" is in the volume element: dt dx on flat
+ * regions, √−g on a region with its own measure (de Sitter, server/engine/README.md §17). The seed
+ * string, the generator and the draw order fully determine the points.
  */
 export function sprinkle(spec: SprinklingSpec): Sprinkling {
   const region = makeRegion(spec.region);
@@ -75,7 +86,7 @@ export function sprinkle(spec: SprinklingSpec): Sprinkling {
     count = poissonVariate(density * region.volume, uniform);
   }
   return {
-    points: uniformPoints(region, count, uniform),
+    points: region.measure ? measurePoints(region.measure, region.dimension, count, uniform) : uniformPoints(region, count, uniform),
     dimension: region.dimension,
     count,
     density,

@@ -29,7 +29,8 @@ import { diamondVolume } from '../../server/studies/plan';
  * The region registry: every kind has its descriptor (shared/regions.ts) and its geometry
  * (server/engine/regions/), and they agree. The volumes are checked against Monte Carlo membership, a
  * fact of the trade (common practice): the volume of a region is the fraction of uniform samples of a
- * box that fall inside it, times the box's volume. A kind added to the registry is checked here without
+ * box that fall inside it, times the box's volume — weighted by the region's √−g where it has its own
+ * measure (de Sitter, server/engine/README.md §17). A kind added to the registry is checked here without
  * editing this file.
  */
 
@@ -41,6 +42,9 @@ const moreSpecs: RegionSpec[] = [
   { kind: 'diamond2d', past: { t: -0.3, x: 0.2 }, future: { t: 1.1, x: 0.9 } },
   { kind: 'cylinder2d', properTime: 3, circumference: 2 },
   { kind: 'slab2d', tMin: -2, tMax: -0.5, xMin: -1, xMax: 3 },
+  { kind: 'deSitterSlab2d', conformalTimeMin: 0.2, conformalTimeMax: 1.4 },
+  { kind: 'deSitterDiamond2d', etaPast: -1, etaFuture: -0.05 },
+  { kind: 'deSitterStaticPatch2d', conformalTimeMin: 0.3, conformalTimeMax: 1.3 },
 ];
 
 const specs: RegionSpec[] = [...regionKinds.map(defaultSpec), ...moreSpecs];
@@ -83,7 +87,9 @@ describe('the region registry', () => {
       const lo = min.map((m, k) => m - 0.25 * (max[k]! - m));
       const hi = max.map((m, k) => m + 0.25 * (m - min[k]!));
       const boxVolume = lo.reduce((v, l, k) => v * (hi[k]! - l), 1);
+      // Σ w and Σ w² over the samples inside, w = √−g (1 on flat regions)
       let inside = 0;
+      let insideSquares = 0;
       let outsideBox = 0;
       let marginDisagrees = 0;
       for (let s = 0; s < samples; s++) {
@@ -91,7 +97,9 @@ describe('the region registry', () => {
         const inBox = e.every((c, k) => c >= min[k]! && c <= max[k]!);
         const margin = region.insideMargin(e);
         if (region.contains(e)) {
-          inside += 1;
+          const w = region.measure ? region.measure.density(e) : 1;
+          inside += w;
+          insideSquares += w * w;
           if (!inBox) outsideBox += 1;
           if (margin < 0) marginDisagrees += 1;
           // the margin used for tips agrees with membership: ≥ 0 inside, ≤ 0 outside (the boundary has measure zero)
@@ -100,7 +108,7 @@ describe('the region registry', () => {
       expect(outsideBox, `${spec.kind}: points of the region outside its bounding box`).toBe(0);
       expect(marginDisagrees, `${spec.kind}: insideMargin against contains`).toBe(0);
       const p = inside / samples;
-      const sigma = boxVolume * Math.sqrt((p * (1 - p)) / samples);
+      const sigma = boxVolume * Math.sqrt((insideSquares / samples - p * p) / samples);
       expect(Math.abs(p * boxVolume - region.volume), `${JSON.stringify(spec)}: MC ${p * boxVolume} vs ${region.volume}`).toBeLessThan(4 * sigma);
     }
   });
@@ -129,7 +137,9 @@ describe('the region registry', () => {
         // the region's own tips give the whole region, and a diamond region has the volume of its diamond
         expect(diamondPlacementIssue(coordinates(own.past), coordinates(own.future), spec)).toBeNull();
         if (!region.periodX || (spec.kind === 'cylinder2d' && spec.properTime <= spec.circumference)) {
-          expect(diamondVolume(own)).toBeCloseTo(region.volume, 12);
+          // a region with its own measure states the volume of a diamond in it (∫√−g), a flat one τ²/2
+          const ownVolume = region.subDiamondVolume ? region.subDiamondVolume(coordinates(own.past), coordinates(own.future)) : diamondVolume(own);
+          expect(ownVolume).toBeCloseTo(region.volume, 12);
         }
       }
     }

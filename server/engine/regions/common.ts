@@ -29,6 +29,36 @@ export interface Region {
    * (p ≼ e ≼ q with p, q in the region puts e in it). `slack` is the rounding allowance on the boundary.
    */
   subDiamondIssue?(past: ArrayLike<number>, future: ArrayLike<number>, slack: number): string | null;
+  /**
+   * A volume element other than dt dx: a curved region stored in conformal coordinates
+   * (server/engine/README.md §17). `volume` is then ∫√−g, and sprinkling draws from this measure
+   * instead of uniformly from the bounding box. Absent for the flat regions.
+   */
+  readonly measure?: RegionMeasure;
+  /**
+   * The volume (∫√−g) of the part of the causal diamond between two tips that lies in the region, for
+   * regions whose measure is not flat (absent: the flat τ²/2 or πτ⁴/24 of a diamond inside the region).
+   */
+  subDiamondVolume?(past: ArrayLike<number>, future: ArrayLike<number>): number;
+  /**
+   * For a region with cosmological horizons: true when the tips are those of an observer's static
+   * patch on the conformal boundary, (T, θ) = (∓π/2, θ₀) to within `slack`. Such a sub-diamond lies
+   * partly outside the region; its elements are those inside the observer's horizons.
+   */
+  isHorizonDiamond?(past: ArrayLike<number>, future: ArrayLike<number>, slack: number): boolean;
+}
+
+/** A uniform source in [0, 1). */
+export type UniformSource = () => number;
+
+/** The volume element √−g of a region in its stored coordinates, and an exact sampler of it. */
+export interface RegionMeasure {
+  /** the formula, for notes and messages: "sec²T" */
+  readonly volumeElement: string;
+  /** √−g at an event */
+  density(event: ArrayLike<number>): number;
+  /** one point drawn from √−g normalised on the region, written at into[offset …] */
+  draw(uniform: UniformSource, into: Float64Array, offset: number): void;
 }
 
 /** The geometry of one region kind: its region from a spec, and what is known about its continuum. */

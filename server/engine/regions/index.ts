@@ -1,6 +1,9 @@
 import type { RegionKind, RegionSpec } from '@shared/regions';
 import type { Region, RegionGeometry } from './common';
 import { cylinder2dGeometry } from './cylinder2d';
+import { deSitterDiamond2dGeometry } from './deSitterDiamond2d';
+import { deSitterSlab2dGeometry } from './deSitterSlab2d';
+import { deSitterStaticPatch2dGeometry } from './deSitterStaticPatch2d';
 import { diamond2dGeometry } from './diamond2d';
 import { diamond4dGeometry } from './diamond4d';
 import { slab2dGeometry } from './slab2d';
@@ -14,9 +17,12 @@ export const regionGeometries: { readonly [K in RegionKind]: RegionGeometry<K> }
   cylinder2d: cylinder2dGeometry,
   slab2d: slab2dGeometry,
   diamond4d: diamond4dGeometry,
+  deSitterSlab2d: deSitterSlab2dGeometry,
+  deSitterDiamond2d: deSitterDiamond2dGeometry,
+  deSitterStaticPatch2d: deSitterStaticPatch2dGeometry,
 };
 
-export type { Region, RegionGeometry } from './common';
+export type { Region, RegionGeometry, RegionMeasure, UniformSource } from './common';
 export { eventText, numberText, precedes, separationX } from './common';
 export { imageCount } from './cylinder2d';
 
