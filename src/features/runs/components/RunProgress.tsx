@@ -10,8 +10,11 @@ export const stageLabels: Record<VacuumStage, string> = {
   entropy: 'Entropy',
 };
 
+/** Whether the run has an entropy stage: a subregion or a mutual-information pair. */
 function hasSubregion(request: unknown): boolean {
-  return typeof request === 'object' && request !== null && (request as { subregion?: unknown }).subregion != null;
+  if (typeof request !== 'object' || request === null) return false;
+  const asked = request as { subregion?: unknown; mutualInformation?: unknown };
+  return asked.subregion != null || asked.mutualInformation != null;
 }
 
 /** A thin accent bar over all stages and the list of stages, the current one marked. */
