@@ -39,7 +39,14 @@ function PairDecayPlot({ study, rule, onRule }: { study: StudyDetail; rule: stri
           title="Mutual information against separation"
           fileName={`tacet-study-${id8}-I-vs-d`}
           data={pairDecayTraces(study.aggregates, study.fits, rule)}
-          layout={{ xaxis: { type: 'log', title: { text: 'd/L (gap between the sub-diamonds)' } }, yaxis: { type: 'log', exponentformat: 'power', title: { text: '⟨I⟩' } } }}
+          height={480}
+          layout={{
+            xaxis: { type: 'log', title: { text: 'd/L (gap between the sub-diamonds)' } },
+            yaxis: { type: 'log', exponentformat: 'power', title: { text: '⟨I⟩' } },
+            // below the plot, so the axes keep the width on a phone
+            legend: { orientation: 'h', x: 0, y: -0.18, yanchor: 'top', bgcolor: 'rgba(0,0,0,0)' },
+            margin: { l: 56, r: 16, t: 16, b: 44 },
+          }}
           caption={`${study.ruleLabels[rule] ?? rule}: ensemble means of I = S_A + S_B − S_A∪B with standard errors, one series per ℓ/L and N${left ? ` (${left} mean${left === 1 ? '' : 's'} ≤ 0 cannot be drawn on log axes and ${left === 1 ? 'is' : 'are'} left out of the fits)` : ''}; dashed: weighted log-log fits; green: the continuum two-interval trend of a c = 1 vacuum, drawn with its own log-log slope through the middle of each fit — a comparison of slopes, not of values.`}
         />
         <aside className="flex flex-col gap-3 text-sm text-ink-soft" data-testid="pair-agreement">

@@ -86,7 +86,10 @@ function ErrorCell({ se }: { se: number | null | undefined }) {
   );
 }
 
-/** ⟨S_α⟩ ± SE of every Rényi order, one row per (N, subregion, rule), from the same μ as ⟨S⟩. */
+/**
+ * ⟨S_α⟩ ± SE of every Rényi order, one row per (N, subregion, rule), from the same μ as ⟨S⟩; for a
+ * study of pairs the Rényi mutual information ⟨I_α⟩ = ⟨S_α(A) + S_α(B) − S_α(A∪B)⟩ beside ⟨I⟩.
+ */
 export function RenyiTable({
   aggregates,
   ruleLabels,
@@ -96,21 +99,26 @@ export function RenyiTable({
   ruleLabels: Record<string, string>;
   subregionLabels: Record<string, string>;
 }) {
-  const rows = aggregates.filter((a) => a.renyi && !a.pair);
-  const keys = Object.keys(rows[0]?.renyi ?? {});
+  const pairs = aggregates.some((a) => a.pair);
+  const valuesOf = (a: StudyAggregate) => (pairs ? a.pair?.renyiI : a.renyi);
+  const rows = aggregates.filter((a) => valuesOf(a) && Boolean(a.pair) === pairs);
   if (rows.length === 0) return null;
+  const keys = Object.keys(valuesOf(rows[0]!)!);
+  const symbol = (k: string) => (pairs ? `I_${k === 'inf' ? '∞' : k}` : renyiLabel(k));
   return (
     <div className="overflow-x-auto">
       <table className="w-full border-collapse text-sm" data-testid="renyi-table">
         <thead>
           <tr>
             <th className={th}>N</th>
-            <th className={th}>subregion</th>
+            <th className={th}>{pairs ? 'pair' : 'subregion'}</th>
             <th className={th}>rule</th>
-            <th className={th} colSpan={2}>⟨S⟩ ± SE</th>
+            <th className={th} colSpan={2}>
+              {pairs ? '⟨I⟩' : '⟨S⟩'} ± SE
+            </th>
             {keys.map((k) => (
               <th key={k} className={th} colSpan={2}>
-                ⟨{renyiLabel(k)}⟩ ± SE
+                ⟨{symbol(k)}⟩ ± SE
               </th>
             ))}
           </tr>
@@ -121,17 +129,17 @@ export function RenyiTable({
               <td className={td}>
                 <Figure value={a.N} whole={5} fraction={0} />
               </td>
-              <td className={`${td} font-mono text-xs`}>{subregionLabels[a.subregion] ?? a.subregion}</td>
-              <td className={`${td} text-xs`}>{ruleLabels[a.rule] ?? a.rule}</td>
+              <td className={`${td} whitespace-nowrap font-mono text-xs`}>{subregionLabels[a.subregion] ?? a.subregion}</td>
+              <td className={`${td} whitespace-nowrap text-xs`}>{ruleLabels[a.rule] ?? a.rule}</td>
               <td className={`${td} pr-0`}>
-                <Figure value={a.meanS} digits={4} whole={4} fraction={5} />
+                <Figure value={pairs ? a.pair!.meanI : a.meanS} digits={4} whole={4} fraction={5} />
               </td>
-              <ErrorCell se={a.seS} />
+              <ErrorCell se={pairs ? a.pair!.seI : a.seS} />
               {keys.map((k) => [
                 <td key={`m${k}`} className={`${td} pr-0`}>
-                  <Figure value={a.renyi![k]?.mean} digits={4} whole={4} fraction={5} />
+                  <Figure value={valuesOf(a)![k]?.mean} digits={4} whole={4} fraction={5} />
                 </td>,
-                <ErrorCell key={`e${k}`} se={a.renyi![k]?.se} />,
+                <ErrorCell key={`e${k}`} se={valuesOf(a)![k]?.se} />,
               ])}
             </tr>
           ))}
@@ -173,12 +181,8 @@ export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: Study
                 <td className={td}>
                   <Figure value={p.N} whole={5} fraction={0} />
                 </td>
-                <td className={td}>
-                  <Figure value={p.pair!.size} digits={3} whole={1} fraction={3} />
-                </td>
-                <td className={td}>
-                  <Figure value={p.pair!.separation} digits={3} whole={1} fraction={3} />
-                </td>
+                <td className={`${td} figures`}>{p.pair!.size}</td>
+                <td className={`${td} figures`}>{p.pair!.separation}</td>
                 <td className={td}>
                   <Figure value={p.seeds} whole={3} fraction={0} />
                 </td>
@@ -223,10 +227,8 @@ export function PairFitsTable({ fits, ruleLabels }: { fits: StudyFit[]; ruleLabe
         <tbody>
           {rows.map((f) => (
             <tr key={`${f.rule}-${f.size}-${f.N}`}>
-              <td className={`${td} text-xs`}>{ruleLabels[f.rule] ?? f.rule}</td>
-              <td className={td}>
-                <Figure value={f.size} digits={3} whole={1} fraction={3} />
-              </td>
+              <td className={`${td} whitespace-nowrap text-xs`}>{ruleLabels[f.rule] ?? f.rule}</td>
+              <td className={`${td} figures`}>{f.size}</td>
               <td className={td}>
                 <Figure value={f.N} whole={5} fraction={0} />
               </td>

@@ -27,7 +27,7 @@ export function StudyPage() {
   const s = study.data;
   const subregionLabels = Object.fromEntries(s.subregions.map((x) => [x.key, x.label]));
   const pairs = s.aggregates.some((a) => a.pair);
-  const hasRenyi = s.aggregates.some((a) => a.renyi && !a.pair);
+  const hasRenyi = s.aggregates.some((a) => (a.pair ? a.pair.renyiI : a.renyi));
   const entropyFits = s.fits.some((f) => f.model === 'log' && fitQuantity(f) === 'S');
   const pairFits = s.fits.some((f) => f.model === 'loglog');
 
@@ -134,7 +134,7 @@ export function StudyPage() {
             </Section>
           )}
           {hasRenyi && (
-            <Section title="Rényi entropies" aside="S_α from the same μ as S">
+            <Section title={pairs ? 'Rényi mutual information' : 'Rényi entropies'} aside={pairs ? 'I_α = S_α(A) + S_α(B) − S_α(A∪B)' : 'S_α from the same μ as S'}>
               <RenyiTable aggregates={s.aggregates} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
             </Section>
           )}
