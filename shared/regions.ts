@@ -212,6 +212,12 @@ export interface RegionDescriptor<K extends RegionKind = RegionKind> {
    * volume element the sprinkling follows, for axis labels, exports and settings. Absent for flat regions.
    */
   readonly conformal?: { readonly t: string; readonly x: string; readonly volumeElement: string };
+  /**
+   * The tips of the static patch of the observer at θ = 0, (T, θ) = (∓π/2, 0) on the conformal
+   * boundary, for a region with cosmological horizons: the sub-diamond between them, clipped to the
+   * region, is the part inside that observer's horizons (server/engine/README.md §17).
+   */
+  horizonDiamond?(spec: RegionSpecOf<K>): DiamondTips;
   /** Absent when a massive field is computed as on every flat region; else why it is refused. */
   readonly massiveField?: { readonly supported: false; readonly reason: string };
   readonly cli: {
@@ -414,6 +420,8 @@ const conformalTimeOptions = (read: RegionOptionReader) => {
   return { conformalTimeMin, conformalTimeMax };
 };
 
+const staticPatchTips = (): DiamondTips => ({ past: { t: -Math.PI / 2, x: 0 }, future: { t: Math.PI / 2, x: 0 } });
+
 /** Tips (T ∓ h, 0) about the middle of the conformal-time range, h a quarter of it: well inside either slab. */
 const middleSubDiamond = (r: { conformalTimeMin: number; conformalTimeMax: number }): DiamondTips => {
   const t = (r.conformalTimeMin + r.conformalTimeMax) / 2;
@@ -437,6 +445,7 @@ const deSitterSlab2d: RegionDescriptor<'deSitterSlab2d'> = {
     `the slab of global 2D de Sitter space (radius $\\ell = 1$, $ds^2 = \\sec^2 T\\,(-dT^2 + d\\theta^2)$, $\\theta \\sim \\theta + 2\\pi$) between the conformal times $T_0 = ${r.conformalTimeMin}$ and $T_1 = ${r.conformalTimeMax}$`,
   outline: (r) => ({ x: [-Math.PI, Math.PI, Math.PI, -Math.PI, -Math.PI], y: [r.conformalTimeMin, r.conformalTimeMin, r.conformalTimeMax, r.conformalTimeMax, r.conformalTimeMin] }),
   defaultSubDiamond: middleSubDiamond,
+  horizonDiamond: staticPatchTips,
   conformal: globalConformal,
   massiveField: deSitterMassless,
   cli: {
@@ -505,6 +514,7 @@ const deSitterStaticPatch2d: RegionDescriptor<'deSitterStaticPatch2d'> = {
     `the part between the conformal times $T_0 = ${r.conformalTimeMin}$ and $T_1 = ${r.conformalTimeMax}$ of the static patch $|\\theta| < \\pi/2 - |T|$ of an observer at $\\theta = 0$ in global 2D de Sitter space (radius $\\ell = 1$, $ds^2 = \\sec^2 T\\,(-dT^2 + d\\theta^2)$), bounded by the cosmological horizon`,
   outline: staticPatchOutline,
   defaultSubDiamond: middleSubDiamond,
+  horizonDiamond: staticPatchTips,
   conformal: globalConformal,
   massiveField: deSitterMassless,
   cli: {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { regionDescriptors, regionSettingsText, regionSpecSchema, type RegionSpec } from '@shared/regions';
+import { regionDescriptors, regionSettingsText, regionSpecSchema, type RegionSpec, type RegionSpecOf } from '@shared/regions';
 import { subregionElements } from '../../server/engine/entropy';
 import { masslessGreenRelation } from '../../server/engine/green';
 import { causalMatrix } from '../../server/engine/order';
@@ -191,8 +191,8 @@ describe('2D de Sitter regions', () => {
     const region = slab(-1, 1.2);
     const s = sprinkle({ region, process: 'fixed', count: 3000, seed: 'de-sitter-horizon', prng: 'arc4' });
     const geometry = makeRegion(region);
-    const past = { t: -Math.PI / 2, x: 0 };
-    const future = { t: Math.PI / 2, x: 0 };
+    const { past, future } = regionDescriptors.deSitterSlab2d.horizonDiamond!(region as RegionSpecOf<'deSitterSlab2d'>);
+    expect([past.t, future.t, past.x, future.x]).toEqual([-Math.PI / 2, Math.PI / 2, 0, 0]);
     expect(geometry.isHorizonDiamond!([past.t, past.x], [future.t, future.x], 1e-9)).toBe(true);
     expect(geometry.isHorizonDiamond!([past.t, past.x], [future.t, 0.1], 1e-9)).toBe(false);
     const elements = subregionElements({ kind: 'diamond', past, future }, s.points, 2, geometry.periodX);
@@ -202,6 +202,10 @@ describe('2D de Sitter regions', () => {
     // its share of the elements is its share of the volume (binomial, 4σ)
     const share = geometry.subDiamondVolume!([past.t, past.x], [future.t, future.x]) / geometry.volume;
     expect(Math.abs(elements.length / s.count - share)).toBeLessThan(4 * Math.sqrt((share * (1 - share)) / s.count));
+    // in the static-patch region itself the same tips give every element
+    const own = sprinkle({ region: staticPatch(-1, 1.2), process: 'fixed', count: 500, seed: 'de-sitter-horizon', prng: 'arc4' });
+    expect(makeRegion(own.region.spec).isHorizonDiamond!([past.t, past.x], [future.t, future.x], 1e-9)).toBe(true);
+    expect(subregionElements({ kind: 'diamond', past, future }, own.points, 2).length).toBe(own.count);
     // the observer at θ = π sees the complementary patch through the seam of θ
     const opposite = subregionElements({ kind: 'diamond', past: { t: past.t, x: -Math.PI }, future: { t: future.t, x: Math.PI } }, s.points, 2, geometry.periodX);
     expect(opposite.length).toBeGreaterThan(0);
