@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import type { RegionSpec } from '@shared/regions';
-import { computeVacuum } from '../../server/engine';
+import { regionDefaultSubDiamond, type RegionSpec } from '@shared/regions';
+import { computeVacuum, makeRegion } from '../../server/engine';
 import { runPython } from '../support/python';
 
 /**
@@ -146,13 +146,22 @@ describe('the de Sitter spectrum against the continuum operator', () => {
     });
   }
 
-  it('runs the Poincaré diamond on the structured engine with the dense engine’s modes', async () => {
-    const sprinkling = { region: cases[0]!.region, process: 'fixed' as const, count: 1200, seed: 'de-sitter-structured' };
+  it('runs the Poincaré diamond on the structured engine with the dense engine’s modes and entropy', async () => {
+    const region = cases[0]!.region;
+    const sprinkling = { region, process: 'fixed' as const, count: 1200, seed: 'de-sitter-structured' };
+    const subregion = { kind: 'diamond' as const, ...regionDefaultSubDiamond(region) };
     const [dense, structured] = await Promise.all(
-      (['dense', 'structured'] as const).map((engine) => computeVacuum({ source: { kind: 'sprinkling', sprinkling }, truncation: { rule: 'sqrtN' }, engine })),
+      (['dense', 'structured'] as const).map((engine) =>
+        computeVacuum({ source: { kind: 'sprinkling', sprinkling }, truncation: { rule: 'sqrtN' }, subregion, doubleTruncation: true, engine }),
+      ),
     );
     expect(structured!.engine).toBe('structured');
     expect(structured!.modesKept).toBe(dense!.modesKept);
     structured!.eigenvalues.forEach((v, k) => expect(Math.abs(v / dense!.eigenvalues[k]! - 1)).toBeLessThan(1e-8));
+    // the sub-diamond holds its share of ∫√−g (binomial, 4σ), and both engines give its entropy
+    const share = makeRegion(region).subDiamondVolume!([subregion.past.t, subregion.past.x], [subregion.future.t, subregion.future.x]) / dense!.volume!;
+    expect(Math.abs(dense!.entropy!.n / 1200 - share)).toBeLessThan(4 * Math.sqrt((share * (1 - share)) / 1200));
+    expect(structured!.entropy!.n).toBe(dense!.entropy!.n);
+    expect(Math.abs(structured!.entropy!.S - dense!.entropy!.S)).toBeLessThan(1e-6 * Math.max(1, Math.abs(dense!.entropy!.S)));
   });
 });
