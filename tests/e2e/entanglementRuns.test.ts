@@ -1,3 +1,6 @@
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import type { Worker } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestWorker } from '../support/app';
@@ -89,4 +92,44 @@ describe('a run with Rényi orders, a pair and the complement check', () => {
     await screenshot(page, 'entanglement-04-form-phone');
     expect(pageErrors).toEqual([]);
   }, 180_000);
+
+  it('on an imported relation list: diamonds for A are refused beside A, element lists run', async () => {
+    const page = await signIn(running, researcher);
+    const pageErrors: string[] = [];
+    page.on('pageerror', (error) => pageErrors.push(error.message));
+    // two chains 0 ≺ 1 ≺ 2 and 3 ≺ 4 ≺ 5, unrelated to each other, and six lone elements
+    const file = join(mkdtempSync(join(tmpdir(), 'tacet-')), 'two-chains.csv');
+    writeFileSync(file, 'i,j\n0,1\n1,2\n3,4\n4,5\n');
+    await page.goto(`${running.baseUrl}/causal-sets/import`);
+    await page.locator('input[type="file"]').setInputFiles(file);
+    await page.getByLabel('Relations').check();
+    await page.getByLabel('Element count N').fill('12');
+    await page.getByLabel('Name').fill('two chains');
+    await page.getByRole('button', { name: 'Import' }).click();
+    await page.waitForURL(/\/causal-sets\/[0-9a-f-]{36}$/);
+
+    const form = page.getByRole('form', { name: 'Run on this causal set' });
+    await form.getByLabel('Compute the mutual information of two subregions').check();
+    await form.getByLabel('Subregion A').fill('diamond:-0.5,0:0.5,0');
+    await form.getByLabel('Subregion B').fill('diamond:-0.5,0.6:0.5,0.6');
+    await form.getByRole('button', { name: 'Start the run' }).click();
+    // the server names mutualInformation.a; the form shows its message beside A
+    const fieldA = form.getByLabel('Subregion A');
+    await form.locator('input[name="pair-a"][aria-invalid="true"]').waitFor();
+    const describedBy = (await fieldA.getAttribute('aria-describedby'))!;
+    await expect(page.locator(`[id="${describedBy}"]`).textContent()).resolves.toMatch(/relation|element|coordinates/i);
+    expect(page.url()).toMatch(/\/causal-sets\/[0-9a-f-]{36}$/);
+    await screenshot(page, 'entanglement-05-relation-list-refused');
+
+    await form.getByLabel('Subregion for the entropy (optional)').fill('elements:0,1,2');
+    await form.getByLabel('Rényi orders α').fill('2');
+    await form.getByLabel('Subregion A').fill('elements:0,1');
+    await form.getByLabel('Subregion B').fill('elements:3,4');
+    await form.getByRole('button', { name: 'Start the run' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+    await page.getByRole('table', { name: 'Mutual information' }).waitFor({ timeout: 60_000 });
+    await page.getByRole('table', { name: 'Rényi entropies' }).waitFor();
+    await expect(page.getByRole('table', { name: 'Settings' }).textContent()).resolves.toMatch(/Pair A\s*2 listed elements/);
+    expect(pageErrors).toEqual([]);
+  }, 120_000);
 });
