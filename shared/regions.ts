@@ -408,7 +408,7 @@ const diamond4d: RegionDescriptor<'diamond4d'> = {
 const deSitterMassless = {
   supported: false,
   reason:
-    'only the massless field is offered on 2D de Sitter regions: it is conformally invariant, so K = ½Cᵀ holds there, while the massive K of the engine resums chains with the flat volume element and is no Green function of de Sitter (server/engine/README.md §17)',
+    'only the massless field is offered on 2D de Sitter regions: it is conformally invariant, so K = ½Cᵀ holds there, while the massive K of the engine resums chains with the flat volume element and is no Green function of de Sitter',
 } as const;
 
 const globalConformal = { t: 'conformal time T', x: 'angle θ', volumeElement: '√−g = ℓ² sec²T' } as const;
