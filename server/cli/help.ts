@@ -2,7 +2,7 @@ import { MAX_RENYI_ORDERS } from '@shared/vacuum';
 import { regionDescriptors, regionKinds } from '@shared/regions';
 
 /** The commands of `tacet`, in the order the overview lists them. */
-export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information'] as const;
+export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information', 'inspect'] as const;
 export type CommandName = (typeof commandNames)[number];
 
 const TITLE = 'tacet — quantum-field vacua and entanglement entropy on causal sets';
@@ -19,6 +19,8 @@ const USAGE: Record<CommandName, string> = {
   'mutual-information': `tacet mutual-information --points points.csv --a SPEC --b SPEC
                  [--truncation RULE] [--double] [--restricted-cut sqrtN|lambda:X|none]
                  [--mass M] [--density RHO | --region R ...] [--engine E] [--backend B] [--json]`,
+  inspect: `tacet inspect  --points points.csv [--region R [size options]] | --relations pairs.csv --count N
+                 [--max-gap K] [--json]`,
 };
 
 /** One paragraph of option notes; each command's help shows the ones it accepts. */
@@ -52,6 +54,12 @@ needs the density: --density, or --region with its size so the volume is known (
 --engine auto|dense|structured: dense diagonalises N×N matrices (N ≤ 6000 native, 3000 ml-matrix);
   structured (2D, non-periodic, truncation sqrtN, lambda:X or modes:K) computes only the modes above
   the cut and accepts N up to 100000; auto [default] takes structured from N = 1000 when it can.`,
+  inspect: `inspect: the order's counts and manifold-likeness — relations, links, longest chain, ordering
+  fraction, interval abundances N_k (pairs with k elements between, k ≤ --max-gap [10]), the Myrheim–Meyer
+  dimension with its error (from sampled sub-intervals) and the midpoint-scaling dimension. Points in any
+  dimension: a header t,x / t,x,y / t,x,y,z (more space columns allowed); --region only for a periodic x
+  (cylinder2d) and the expected count ρV. --relations: rows i,j meaning i ≺ j (labels 0 … N−1), closed
+  transitively. Both estimators assume the set is a causal diamond of flat spacetime.`,
   json: `--json prints one JSON document on stdout instead of text.`,
   exit: `exit codes: 0 success, 2 bad input, 1 failure.`,
 } as const;
@@ -63,6 +71,7 @@ const COMMAND_NOTES: Record<CommandName, Note[]> = {
   vacuum: computeNotes,
   entropy: ['subregion', ...computeNotes.slice(0, 3), 'entropyRule', 'renyi', 'complement', ...computeNotes.slice(3)],
   'mutual-information': ['pair', ...computeNotes.slice(0, 3), 'entropyRule', ...computeNotes.slice(3)],
+  inspect: ['inspect', 'regionSizes', 'json'],
 };
 
 /** `tacet --help`: every command's usage and every note. */

@@ -413,7 +413,15 @@ function gapAbundances(u: Float64Array, v: Float64Array, grid: CellGrid, maxGap:
   const abundances = new Array<number>(maxGap + 1).fill(0);
   const keep = maxGap + 1;
   const smallest = new Float64Array(keep);
-  const candidates: number[] = [];
+  // u and v copied into the grid's order: the scans below then read memory in sequence
+  const cu = new Float64Array(n);
+  const cv = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    cu[k] = u[grid.elements[k]];
+    cv[k] = v[grid.elements[k]];
+  }
+  /** positions (in grid order) of the candidates of one column, in u order */
+  const candidates = new Int32Array(n);
   const columnOf = (x: number) => Math.min(grid.columns - 1, Math.max(0, Math.floor((x - grid.uMin) / grid.uStep)));
   const rowOf = (y: number) => Math.min(grid.rows - 1, Math.max(0, Math.floor((y - grid.vMin) / grid.vStep)));
   for (let i = 0; i < n; i++) {
@@ -423,29 +431,37 @@ function gapAbundances(u: Float64Array, v: Float64Array, grid: CellGrid, maxGap:
     const firstRow = rowOf(vi);
     for (let column = columnOf(ui); column < grid.columns; column++) {
       const lastRow = held === keep ? rowOf(smallest[keep - 1]) : grid.rows - 1;
-      candidates.length = 0;
+      let count = 0;
       for (let row = firstRow; row <= lastRow; row++) {
         const cell = column * grid.rows + row;
+        const first = count === 0;
         for (let k = grid.start[cell]; k < grid.start[cell + 1]; k++) {
-          const j = grid.elements[k];
-          if (u[j] > ui && v[j] > vi) candidates.push(j);
+          const uk = cu[k];
+          if (!(uk > ui && cv[k] > vi)) continue;
+          // each cell is in u order: merge it into the candidates by insertion (a few elements each)
+          let at = count++;
+          if (!first) {
+            while (at > 0 && cu[candidates[at - 1]] > uk) {
+              candidates[at] = candidates[at - 1];
+              at--;
+            }
+          }
+          candidates[at] = k;
         }
       }
-      if (candidates.length === 0) continue;
-      candidates.sort((a, b) => u[a] - u[b]);
-      for (let s = 0; s < candidates.length; ) {
+      for (let s = 0; s < count; ) {
         let e = s + 1;
-        while (e < candidates.length && u[candidates[e]] === u[candidates[s]]) e++;
+        while (e < count && cu[candidates[e]] === cu[candidates[s]]) e++;
         // a group of equal u: none lies between i and another of the group, so count before inserting
         for (let k = s; k < e; k++) {
-          const vj = v[candidates[k]];
+          const vj = cv[candidates[k]];
           if (held === keep && vj >= smallest[keep - 1]) continue;
           let below = 0;
           while (below < held && smallest[below] < vj) below++;
           if (below <= maxGap) abundances[below] += 1;
         }
         for (let k = s; k < e; k++) {
-          const vj = v[candidates[k]];
+          const vj = cv[candidates[k]];
           if (held === keep && vj >= smallest[keep - 1]) continue;
           let at = held === keep ? keep - 1 : held++;
           while (at > 0 && smallest[at - 1] > vj) {
