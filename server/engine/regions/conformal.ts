@@ -210,7 +210,7 @@ export function clippedDiamondVolume(
 }
 
 /** Whether two tips are those of a static patch of global de Sitter, (∓π/2, θ₀), within `slack` (x compared by `separation`). */
-export function staticPatchTips(past: ArrayLike<number>, future: ArrayLike<number>, slack: number, separation: (dx: number) => number): boolean {
+export function areStaticPatchTips(past: ArrayLike<number>, future: ArrayLike<number>, slack: number, separation: (dx: number) => number): boolean {
   const half = Math.PI / 2;
   return Math.abs(past[0] + half) <= slack && Math.abs(future[0] - half) <= slack && separation(future[1] - past[1]) <= slack;
 }

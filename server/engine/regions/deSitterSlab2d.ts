@@ -1,6 +1,6 @@
 import { regionDescriptors } from '@shared/regions';
 import { separationX, type RegionGeometry } from './common';
-import { clippedDiamondVolume, conformalMeasure, globalDeSitterFactor, slabProfile, staticPatchTips } from './conformal';
+import { clippedDiamondVolume, conformalMeasure, globalDeSitterFactor, slabProfile, areStaticPatchTips } from './conformal';
 
 const PERIOD = 2 * Math.PI;
 
@@ -34,7 +34,7 @@ export const deSitterSlab2dGeometry: RegionGeometry<'deSitterSlab2d'> = {
         const shift = dx - Math.round(dx / PERIOD) * PERIOD;
         return clippedDiamondVolume(globalDeSitterFactor, past, [future[0], past[1] + shift], { from: t0, to: t1 });
       },
-      isHorizonDiamond: (past, future, slack) => staticPatchTips(past, future, slack, wrap),
+      isHorizonDiamond: (past, future, slack) => areStaticPatchTips(past, future, slack, wrap),
     };
   },
 };

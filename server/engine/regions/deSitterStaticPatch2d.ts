@@ -1,6 +1,6 @@
 import { regionDescriptors } from '@shared/regions';
 import type { RegionGeometry } from './common';
-import { clippedDiamondVolume, conformalMeasure, diamondProfile, globalDeSitterFactor, staticPatchTips, type LightConeBox } from './conformal';
+import { clippedDiamondVolume, conformalMeasure, diamondProfile, globalDeSitterFactor, areStaticPatchTips, type LightConeBox } from './conformal';
 
 const HALF_PI = Math.PI / 2;
 
@@ -36,7 +36,7 @@ export const deSitterStaticPatch2dGeometry: RegionGeometry<'deSitterStaticPatch2
       boundingBox: { min: [t0, -widest], max: [t1, widest] },
       measure: conformalMeasure(diamondProfile(globalDeSitterFactor, box, t0, t1), 'sec²T'),
       subDiamondVolume: (past, future) => clippedDiamondVolume(globalDeSitterFactor, past, future, { box, from: t0, to: t1 }),
-      isHorizonDiamond: (past, future, slack) => staticPatchTips(past, future, slack, Math.abs),
+      isHorizonDiamond: (past, future, slack) => areStaticPatchTips(past, future, slack, Math.abs),
     };
   },
 };
