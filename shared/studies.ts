@@ -379,6 +379,15 @@ export function studyRenyiKeys(request: { renyi?: RenyiOrder[] }): string[] {
   return request.renyi ? sortedRenyiOrders(request.renyi).map(renyiKey) : [];
 }
 
+/**
+ * renyiKeys ascending with "inf" last. Objects keyed by them cannot keep an order ("2" is an integer key,
+ * which JavaScript lists first, and jsonb reorders keys), so every list of them goes through this.
+ */
+export function sortRenyiKeys(keys: Iterable<string>): string[] {
+  const value = (k: string) => (k === 'inf' ? Number.POSITIVE_INFINITY : Number(k));
+  return [...new Set(keys)].sort((p, q) => value(p) - value(q));
+}
+
 const short = (v: number, digits = 3) => String(Number(v.toPrecision(digits)));
 
 /**

@@ -1,5 +1,5 @@
 import type { StudyAggregate, StudyEntropy, StudyFit } from '@shared/studies';
-import { renyiQuantity } from '@shared/studies';
+import { renyiQuantity, sortRenyiKeys } from '@shared/studies';
 import { continuumMutualInformation } from '../engine/continuum';
 
 /** Mean and sample standard deviation (n − 1 in the denominator; null for fewer than two values). */
@@ -176,7 +176,7 @@ const renyiFitQuantity = (key: string): FittedQuantity => ({ key: renyiQuantity(
  */
 export function fitAggregates(aggregates: StudyAggregate[]): StudyFit[] {
   const single = aggregates.filter((a) => !a.pair);
-  const renyiKeys = [...new Set(single.flatMap((a) => Object.keys(a.renyi ?? {})))];
+  const renyiKeys = sortRenyiKeys(single.flatMap((a) => Object.keys(a.renyi ?? {})));
   const fits: StudyFit[] = [];
   for (const [quantity, models] of [
     [entropyQuantity, ['log', 'linear']],

@@ -1,6 +1,6 @@
 import type { ResolvedSubregion, StudyRule } from '@shared/studies';
 import { studyRuleKey } from '@shared/studies';
-import type { RegionSpec, RenyiOrder, SprinklingSpecInput, SubregionSpec, VacuumStage } from '@shared/vacuum';
+import { sortedRenyiOrders, type RegionSpec, type RenyiOrder, type SprinklingSpecInput, type SubregionSpec, type VacuumStage } from '@shared/vacuum';
 import { denseSpectrumStages } from '../engine/densePipeline';
 import { entanglementEntropy, subregionElements, type EntropyResult } from '../engine/entropy';
 import { CancelledError, EngineInputError } from '../engine/errors';
@@ -117,7 +117,9 @@ export async function computeStudyCell(spec: StudyCellSpec, hooks: VacuumHooks =
     }
     return elements;
   };
-  const renyiOf = (e: EntropyResult) => (spec.renyi ? renyiEntropies(e.generalizedEigenvalues, spec.renyi) : undefined);
+  // keys ascending with ∞ last, the order of every table, plot and export
+  const renyiOrders = spec.renyi ? sortedRenyiOrders(spec.renyi) : null;
+  const renyiOf = (e: EntropyResult) => (renyiOrders ? renyiEntropies(e.generalizedEigenvalues, renyiOrders) : undefined);
   for (const subregion of spec.subregions) {
     const pair = pairSubregions(subregion);
     if (pair) {

@@ -105,4 +105,28 @@ describe('a small pair study with Rényi orders', () => {
     const methods = await request(ctx.app).get(`/api/studies/${id}/export?format=methods`).set(bearer(researcher.token));
     expect(methods.text).toMatch(/measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/L ∈ \[0\.03, 0\.2\]/);
   }, 150_000);
+
+  it('gives concentric sub-diamonds S_α beside S, with fits of each S_α against ln √n', async () => {
+    const res = await post({
+      title: 'Rényi scaling',
+      counts: [120, 240],
+      seeds: ['r-1', 'r-2'],
+      subregions: { kind: 'concentric', fractions: [0.5, 0.7] },
+      rules: [{ truncation: { rule: 'none' } }],
+      renyi: ['inf', 0.5, 2],
+    });
+    expect(res.status).toBe(202);
+    const done = await waitUntil(() => getStudy(res.body.id as string), (s) => ['done', 'failed', 'cancelled'].includes(s.status), 120_000);
+    expect(done.status).toBe('done');
+    for (const a of done.aggregates) {
+      expect(Object.keys(a.renyi!).sort()).toEqual(['0.5', '2', 'inf']);
+      // S_0.5 ≥ S ≥ S_2 ≥ S_∞ (Rényi entropies fall with α, common practice)
+      expect(a.renyi!['0.5']!.mean).toBeGreaterThanOrEqual(a.meanS);
+      expect(a.meanS).toBeGreaterThanOrEqual(a.renyi!['2']!.mean);
+      expect(a.renyi!['2']!.mean).toBeGreaterThanOrEqual(a.renyi!.inf!.mean);
+    }
+    expect(done.fits.filter((f) => f.model === 'log' && f.subregion === null).map((f) => f.quantity)).toEqual(['S', 'renyi:0.5', 'renyi:2', 'renyi:inf']);
+    const csv = parseCsv((await request(ctx.app).get(`/api/studies/${done.id}/export?format=aggregates-csv`).set(bearer(researcher.token))).text);
+    expect(csv.header.filter((h) => h.startsWith('mean_S_alpha'))).toEqual(['mean_S_alpha_0.5', 'mean_S_alpha_2', 'mean_S_alpha_inf']);
+  }, 150_000);
 });

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import type { StudyDetail } from '@shared/studies';
-import { pairDecaySentence } from '@shared/studies';
+import { pairDecaySentence, sortRenyiKeys } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
 import { PlotFigure } from '../../../ui/PlotFigure';
 import { pairDecayTraces, pairFitOf, pairSeries, referenceSlopeTrace, scalingTraces, spectraTraces } from '../lib/plotData';
@@ -109,7 +109,7 @@ export function StudyPlots({ study }: { study: StudyDetail }) {
   const [pairRule, setPairRule] = useState(rules.find((r) => r === 'none') ?? rules[0]!);
   const pairs = study.aggregates.some((a) => a.pair);
   const singles = study.aggregates.some((a) => !a.pair);
-  const renyiKeys = [...new Set(study.aggregates.filter((a) => !a.pair).flatMap((a) => Object.keys(a.renyi ?? {})))];
+  const renyiKeys = sortRenyiKeys(study.aggregates.filter((a) => !a.pair).flatMap((a) => Object.keys(a.renyi ?? {})));
   const logData = scalingTraces({ aggregates: study.aggregates, fits: study.fits, rule: logRule, subregionLabels, model: 'log' });
   const reference = referenceSlopeTrace(study.aggregates, logRule);
   if (reference && logRule.endsWith('+double')) logData.push(reference);

@@ -1,5 +1,5 @@
 import type { StudyAggregate, StudyFit } from '@shared/studies';
-import { fitQuantity, renyiQuantity } from '@shared/studies';
+import { fitQuantity, renyiQuantity, sortRenyiKeys } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
 import { Figure } from '../../../ui/Figure';
 
@@ -103,7 +103,7 @@ export function RenyiTable({
   const valuesOf = (a: StudyAggregate) => (pairs ? a.pair?.renyiI : a.renyi);
   const rows = aggregates.filter((a) => valuesOf(a) && Boolean(a.pair) === pairs);
   if (rows.length === 0) return null;
-  const keys = Object.keys(valuesOf(rows[0]!)!);
+  const keys = sortRenyiKeys(Object.keys(valuesOf(rows[0]!)!));
   const symbol = (k: string) => (pairs ? `I_${k === 'inf' ? '∞' : k}` : renyiLabel(k));
   return (
     <div className="overflow-x-auto">
@@ -267,7 +267,7 @@ export function FitsTable({
   ruleLabels: Record<string, string>;
   subregionLabels: Record<string, string>;
 }) {
-  const renyiKeys = [...new Set(fits.map(fitQuantity).filter((q) => q.startsWith('renyi:')).map((q) => q.slice('renyi:'.length)))];
+  const renyiKeys = sortRenyiKeys(fits.map(fitQuantity).filter((q) => q.startsWith('renyi:')).map((q) => q.slice('renyi:'.length)));
   const logFits = fits.filter((f) => f.model === 'log' && fitQuantity(f) === 'S');
   return (
     <div className="overflow-x-auto">
