@@ -174,7 +174,7 @@ export function NewStudyPage() {
         </Section>
 
         <Section title="Subregions">
-          <div className="grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
+          <div className="grid grid-cols-1 gap-6 sm:grid-cols-[17rem_1fr]">
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
               {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="concentric">concentric, by ℓ/L</option>}
               {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="pairs">pairs for mutual information</option>}
