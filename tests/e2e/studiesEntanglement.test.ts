@@ -62,4 +62,28 @@ describe('a pair study for the mutual information in the browser', () => {
     await page.getByTestId(`figure-tacet-study-${id8}-I-vs-d`).screenshot({ path: join(screenshotDir, 'study-entanglement-04-plot-390.png') });
     expect(pageErrors).toEqual([]);
   }, 180_000);
+
+  it('shows ⟨S_α⟩ beside ⟨S⟩ and S_α against ln √n for concentric sub-diamonds', async () => {
+    const page = await signIn(running, researcher);
+    const pageErrors: string[] = [];
+    page.on('pageerror', (error) => pageErrors.push(error.message));
+    await page.setViewportSize({ width: 1440, height: 900 });
+    await page.goto(`${running.baseUrl}/studies/new`);
+    await page.getByLabel('Title').fill('Rényi scaling (demo)');
+    await page.getByLabel('N values').fill('120, 240');
+    await page.getByLabel('Seeds per N').fill('2');
+    await page.getByLabel('ℓ/L values').fill('0.5, 0.7');
+    await page.getByLabel('Rényi orders α').fill('inf, 2');
+    await page.getByRole('button', { name: 'Start study' }).click();
+    await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+    const id8 = page.url().split('/').pop()!.slice(0, 8);
+    await page.getByText('4 of 4 sprinklings done').waitFor({ timeout: 90_000 });
+    // the orders come out ascending, ∞ last, whatever order they were typed in
+    expect(await page.getByTestId('renyi-table').locator('thead').textContent()).toMatch(/⟨S_2⟩ ± SE.*⟨S_∞⟩ ± SE/);
+    expect(await page.getByTestId('fits-table').textContent()).toMatch(/b for S_2.*b for S_∞/);
+    await page.getByTestId(`figure-tacet-study-${id8}-renyi-2-vs-ln-sqrt-n`).waitFor();
+    await page.waitForTimeout(500);
+    await screenshot(page, 'study-entanglement-05-renyi-1440');
+    expect(pageErrors).toEqual([]);
+  }, 180_000);
 });
