@@ -26,7 +26,7 @@ const USAGE: Record<CommandName, string> = {
 /** One paragraph of option notes; each command's help shows the ones it accepts. */
 const NOTES = {
   regionSizes: `region size options (defaults in brackets):
-${regionKinds.map((kind) => `  ${kind.padEnd(12)}${regionDescriptors[kind].cli.usage}`).join('\n')}`,
+${regionKinds.map((kind) => `  ${kind.padEnd(Math.max(...regionKinds.map((k) => k.length)) + 2)}${regionDescriptors[kind].cli.usage}`).join('\n')}`,
   sprinkling: `--n N: that many points (fixed N); --poisson: N ~ Poisson(ρV) with mean --n (or with --density RHO
   instead of --n). --seed S makes the sprinkling reproducible; --prng picks the seeded generator [arc4].
 --out FILE writes the CSV there and the summary as JSON on stdout; without it the CSV goes to stdout

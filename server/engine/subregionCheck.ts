@@ -52,6 +52,8 @@ export function diamondPlacementIssue(
   }
   if (!geometry) return null;
   const slack = boundarySlack(geometry);
+  // the part of a de Sitter region inside an observer's horizons: tips on the conformal boundary (server/engine/README.md §17)
+  if (geometry.isHorizonDiamond?.(past, future, slack)) return null;
   for (const [field, tip] of [['past', past], ['future', future]] as const) {
     if (geometry.insideMargin(tip) < -slack) {
       return { field, message: `the ${field} tip ${eventText(tip)} lies outside ${regionName}: both tips must lie in the region or on its boundary` };

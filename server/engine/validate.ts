@@ -8,6 +8,7 @@ import {
   truncationRuleSchema,
   type RegionSpec,
 } from '@shared/vacuum';
+import { regionDescriptor } from '@shared/regions';
 import { relationNeighbourhood } from './causalSeparation';
 import { subregionElements } from './entropy';
 import { sizeLimitFor } from './engineForRequest';
@@ -88,6 +89,9 @@ export function validateVacuumRequest(request: VacuumRequest, maxN: number = siz
   }
   const mass = request.mass ?? 0;
   if (!(mass >= 0) || !Number.isFinite(mass)) fail('mass must be a finite number ≥ 0', 'mass');
+  // a region that offers only the massless field says why (the de Sitter kinds, server/engine/README.md §17)
+  const massiveField = placedIn ? regionDescriptor(placedIn.kind).massiveField : undefined;
+  if (mass > 0 && massiveField) fail(`mass ${mass} on the ${regionDescriptor(placedIn!.kind).label} region: ${massiveField.reason}`, 'mass');
   if (!hasDensity && (mass > 0 || dimension === 4)) {
     fail(`${mass > 0 ? 'a massive field' : 'the 4D Green function'} needs a density: give the density or the region`);
   }

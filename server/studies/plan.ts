@@ -237,7 +237,10 @@ export function engineSubregion(subregion: ResolvedSubregion): SubregionSpec {
 export function expectedSubregionElements(request: Pick<SprinkledStudyRequest, 'region'>, subregion: ResolvedSubregion, count: number): number {
   const tips = subregion.pair ? subregion.pair.a : subregion.past && subregion.future ? { past: subregion.past, future: subregion.future } : null;
   if (!tips) throw new Error(`subregion ${subregion.key} is not a diamond`);
-  return (count * diamondVolume(tips)) / makeRegion(request.region).volume;
+  // a curved region's sub-diamond holds ∫√−g of it, not the flat τ²/2 (server/engine/README.md §17)
+  const region = makeRegion(request.region);
+  const volume = region.subDiamondVolume ? region.subDiamondVolume(coordinates(tips.past), coordinates(tips.future)) : diamondVolume(tips);
+  return (count * volume) / region.volume;
 }
 
 /** One sprinkling of the study: requested count and seed, in the order the jobs are queued. */

@@ -211,7 +211,8 @@ describe('failures and limits', () => {
     const { run } = await waitForRun(ctx.app, researcher.token, id);
     expect(run.status).toBe('failed');
     expect(run.error).toMatch(/subregion holds 0 element\(s\)/);
-    expect(run.stage).toBe('entropy');
+    // the subregion's elements are found right after the order (server/engine/subregionEntropies.ts), before any heavy stage
+    expect(run.stage).toBe('order');
     expect(run.result).toBeNull();
     const spectrum = await request(ctx.app).get(`/api/runs/${id}/spectrum.csv`).set(bearer(researcher.token));
     expect(spectrum.status).toBe(409);
@@ -299,7 +300,7 @@ describe('failures and limits', () => {
     expect(badRule.status).toBe(400);
     const doubleWithout = await request(ctx.app).post('/api/runs').set(bearer(researcher.token)).send(diamondRun({ doubleTruncation: true }));
     expect(doubleWithout.status).toBe(422);
-    expect(doubleWithout.body.error).toMatchObject({ code: 'invalid_request', message: 'double truncation needs a subregion' });
+    expect(doubleWithout.body.error).toMatchObject({ code: 'invalid_request', message: 'double truncation needs a subregion or a mutual-information pair' });
     const tips4d = await request(ctx.app)
       .post('/api/runs')
       .set(bearer(researcher.token))

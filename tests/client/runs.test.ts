@@ -35,6 +35,7 @@ describe('new-run form → POST /api/runs body', () => {
         mass: 0,
         truncation: { rule: 'sqrtN' },
         doubleTruncation: false,
+        complement: false,
       },
     });
     // What the form sends is exactly what the server's schema accepts.

@@ -71,7 +71,11 @@ export const vacuumRunHandler: JobHandler<JobPayload<'vacuum-run'>> = (job, cont
     key: { runId },
     claim: () => runs.claimRun(m, runId),
     compute: async (run, thread) => runInEngineThread(engineRequestOf(run), thread),
-    percent: (run, stage, fraction) => overallPercent(stage, fraction, storedRequest(run).subregion !== undefined),
+    percent: (run, stage, fraction) => {
+      const request = storedRequest(run);
+      // a run with only a mutual-information pair has an entropy stage too
+      return overallPercent(stage, fraction, request.subregion !== undefined || request.mutualInformation !== undefined);
+    },
     saveProgress: (stage, percent) => runs.updateRunProgress(m, runId, stage, percent),
     control: () => runs.runControlState(m, runId),
     markCancelled: () => runs.markRunCancelled(m, runId),
