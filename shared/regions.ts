@@ -268,6 +268,9 @@ function centredTips(properTime: number, dimension: 2 | 4): DiamondTips {
 }
 
 /** The proper-time option of the command line, with its default. */
+/** A kind's form default as a number: the command line's defaults are the forms', so a file made with one imports with the other. */
+const formDefault = (descriptor: { defaults: Readonly<Partial<Record<RegionFieldKey, string>>> }, key: RegionFieldKey): number => Number(descriptor.defaults[key]);
+
 const properTimeOption = (read: RegionOptionReader, fallback: number) => {
   const text = read.option('proper-time');
   return text !== undefined ? read.number(text, '--proper-time') : fallback;
@@ -295,11 +298,11 @@ const diamond2d: RegionDescriptor<'diamond2d'> = {
   ownDiamond: (r) => (r.properTime !== undefined ? centredTips(r.properTime, 2) : { past: r.past!, future: r.future! }),
   defaultSubDiamond: (r) => concentricTips(diamond2d.ownDiamond!(r), 0.5),
   cli: {
-    usage: '--proper-time T [2√2]  or  --tips T0,X0:T1,X1',
+    usage: '--proper-time T [2]  or  --tips T0,X0:T1,X1',
     options: ['proper-time', 'tips'],
     fromOptions(read) {
       const tipsText = read.option('tips');
-      if (tipsText === undefined) return { kind: 'diamond2d', properTime: properTimeOption(read, 2 * Math.SQRT2) };
+      if (tipsText === undefined) return { kind: 'diamond2d', properTime: properTimeOption(read, formDefault(diamond2d, 'properTime')) };
       if (read.option('proper-time') !== undefined) read.fail('give --proper-time or --tips, not both');
       const tips = tipsText.split(':');
       if (tips.length !== 2) read.fail(`--tips must be T0,X0:T1,X1, got "${tipsText}"`);
@@ -331,11 +334,15 @@ const cylinder2d: RegionDescriptor<'cylinder2d'> = {
   ownDiamond: (r) => centredTips(r.properTime, 2),
   defaultSubDiamond: (r) => concentricTips(centredTips(r.properTime, 2), 0.5),
   cli: {
-    usage: '--proper-time T [2] --circumference L [2]     (x periodic, x ∈ [−L/2, L/2))',
+    usage: '--proper-time T [2] --circumference C [4]     (x periodic, x ∈ [−C/2, C/2))',
     options: ['proper-time', 'circumference'],
     fromOptions(read) {
       const circumference = read.option('circumference');
-      return { kind: 'cylinder2d', properTime: properTimeOption(read, 2), circumference: circumference !== undefined ? read.number(circumference, '--circumference') : 2 };
+      return {
+        kind: 'cylinder2d',
+        properTime: properTimeOption(read, formDefault(cylinder2d, 'properTime')),
+        circumference: circumference !== undefined ? read.number(circumference, '--circumference') : formDefault(cylinder2d, 'circumference'),
+      };
     },
   },
 };
@@ -362,13 +369,13 @@ const slab2d: RegionDescriptor<'slab2d'> = {
     return { past: { t: t - h, x }, future: { t: t + h, x } };
   },
   cli: {
-    usage: '--t-range T0,T1 [0,1] --x-range X0,X1 [0,1]   (a negative start: --x-range=-1,1)',
+    usage: '--t-range T0,T1 [0,1] --x-range X0,X1 [0,4]   (a negative start: --x-range=-1,1)',
     options: ['t-range', 'x-range'],
     fromOptions(read) {
       const tRange = read.option('t-range');
       const xRange = read.option('x-range');
-      const [tMin, tMax] = tRange !== undefined ? read.pair(tRange, '--t-range') : [0, 1];
-      const [xMin, xMax] = xRange !== undefined ? read.pair(xRange, '--x-range') : [0, 1];
+      const [tMin, tMax] = tRange !== undefined ? read.pair(tRange, '--t-range') : [formDefault(slab2d, 'tMin'), formDefault(slab2d, 'tMax')];
+      const [xMin, xMax] = xRange !== undefined ? read.pair(xRange, '--x-range') : [formDefault(slab2d, 'xMin'), formDefault(slab2d, 'xMax')];
       return { kind: 'slab2d', tMin, tMax, xMin, xMax };
     },
   },
@@ -392,7 +399,7 @@ const diamond4d: RegionDescriptor<'diamond4d'> = {
   cli: {
     usage: '--proper-time T [2]',
     options: ['proper-time'],
-    fromOptions: (read) => ({ kind: 'diamond4d', properTime: properTimeOption(read, 2) }),
+    fromOptions: (read) => ({ kind: 'diamond4d', properTime: properTimeOption(read, formDefault(diamond4d, 'properTime')) }),
   },
 };
 

@@ -196,7 +196,7 @@ function quantityFits(aggregates: StudyAggregate[], quantity: FittedQuantity, mo
     const groups: [string | null, StudyAggregate[]][] = [[null, ofRule], ...subregions.map((s) => [s, ofRule.filter((a) => a.subregion === s)] as [string, StudyAggregate[]])];
     if (subregions.length === 1) groups.splice(1);
     for (const [subregion, rows] of groups) {
-      if (rows.length < 2) continue;
+      if (rows.length < FIT_MIN_POINTS) continue;
       const values = rows.map((r) => quantity.of(r)!);
       const sigmas = values.map((v) => v.se);
       const ys = values.map((v) => v.mean);
@@ -213,13 +213,17 @@ function quantityFits(aggregates: StudyAggregate[], quantity: FittedQuantity, mo
   return fits;
 }
 
-/** A log-log fit needs this many separations with ⟨I⟩ > 0. */
-export const PAIR_FIT_MIN_POINTS = 3;
+/**
+ * No fit below this many points: a line through two points has R² = 1 and no scatter to judge it by,
+ * which reads as agreement while a study is still filling in (the same for the log-log fits of I,
+ * counted over the separations with ⟨I⟩ > 0).
+ */
+export const FIT_MIN_POINTS = 3;
 
 /**
  * The decay of the mutual information with the separation: per (rule, size ℓ/L, N) a weighted fit of
  * ln⟨I⟩ against ln(d/L) over the separations whose ⟨I⟩ > 0 (σ of ln⟨I⟩ = SE/⟨I⟩ to first order, common
- * practice), at least PAIR_FIT_MIN_POINTS of them, with `excluded` counting the ones left out. Beside
+ * practice), at least FIT_MIN_POINTS of them, with `excluded` counting the ones left out. Beside
  * it, `continuum` holds the slope of the same (unweighted) log-log fit through the continuum two-interval
  * trend continuumMutualInformation(ℓ, ℓ, d) at those d/L values (Calabrese–Cardy 2004; Casini–Huerta
  * 2009; server/engine/README.md §15): the trend's shape, to compare with, not a prediction of the values.
@@ -234,7 +238,7 @@ export function pairDecayFits(aggregates: StudyAggregate[]): StudyFit[] {
   const fits: StudyFit[] = [];
   for (const rows of groups.values()) {
     const positive = rows.filter((r) => r.pair!.meanI > 0).sort((p, q) => p.pair!.separation - q.pair!.separation);
-    if (positive.length < PAIR_FIT_MIN_POINTS) continue;
+    if (positive.length < FIT_MIN_POINTS) continue;
     const { rule, N } = rows[0]!;
     const size = rows[0]!.pair!.size;
     const separations = positive.map((r) => r.pair!.separation);

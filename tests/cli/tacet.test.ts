@@ -8,6 +8,8 @@ import { readPointsCsv } from '../../server/cli/main';
 import { computeVacuum, type VacuumRequest } from '../../server/engine/index';
 import { numpySubregionEntropies } from '../engine/numpySubregionReference';
 
+/** the diamond |t| + |x| ≤ √2 these tests' tips were chosen in (the default diamond has proper time 2) */
+const WIDE = String(2 * Math.SQRT2);
 const bin = new URL('../../bin/tacet.mjs', import.meta.url).pathname;
 const dir = mkdtempSync(join(tmpdir(), 'tacet-cli-'));
 
@@ -136,7 +138,7 @@ describe('tacet entropy --renyi/--complement and tacet mutual-information', () =
   });
 
   beforeAll(() => {
-    expect(tacet('sprinkle', '--region', 'diamond2d', '--n', '200', '--seed', 'mi', '--out', 'mi.csv').code).toBe(0);
+    expect(tacet('sprinkle', '--region', 'diamond2d', '--proper-time', WIDE, '--n', '200', '--seed', 'mi', '--out', 'mi.csv').code).toBe(0);
     points = readPointsCsv(join(dir, 'mi.csv')).points;
   }, 60_000);
 
@@ -225,8 +227,8 @@ describe('tacet entropy --renyi/--complement and tacet mutual-information', () =
   }, 120_000);
 
   it('mutual-information on the structured engine with the region options of tacet entropy', () => {
-    expect(tacet('sprinkle', '--region', 'diamond2d', '--n', '1200', '--seed', 'mi-structured', '--out', 'mi1200.csv').code).toBe(0);
-    const r = tacet('mutual-information', '--points', 'mi1200.csv', '--region', 'diamond2d', '--a', A, '--b', B, '--double', '--engine', 'structured', '--json');
+    expect(tacet('sprinkle', '--region', 'diamond2d', '--proper-time', WIDE, '--n', '1200', '--seed', 'mi-structured', '--out', 'mi1200.csv').code).toBe(0);
+    const r = tacet('mutual-information', '--points', 'mi1200.csv', '--region', 'diamond2d', '--proper-time', WIDE, '--a', A, '--b', B, '--double', '--engine', 'structured', '--json');
     expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out).toMatchObject({ N: 1200, engine: 'structured', density: expect.closeTo(300, 9) });

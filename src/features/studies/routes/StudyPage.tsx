@@ -148,7 +148,7 @@ export function StudyPage() {
             ) : entropyFits ? (
               <FitsTable fits={s.fits} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
             ) : (
-              <p className="text-sm text-ink-soft">Fits need at least two different subregion sizes per rule.</p>
+              <p className="text-sm text-ink-soft">A fit needs at least three points (finished ensembles of different n) per rule; it appears as the cells come in.</p>
             )}
           </Section>
           <Section title="Figures">
