@@ -8,9 +8,9 @@ import { pairDecayTraces, pairFitOf, pairSeries, referenceSlopeTrace, scalingTra
 function RuleSelect({ value, onChange, rules, labels, what = 'rule' }: { value: string; onChange(v: string): void; rules: string[]; labels: Record<string, string>; what?: string }) {
   if (rules.length < 2) return null;
   return (
-    <label className="flex items-baseline gap-2 text-xs text-ink-soft">
+    <label className="flex min-w-0 max-w-full items-baseline gap-2 text-xs text-ink-soft">
       {what}
-      <select value={value} onChange={(e) => onChange(e.target.value)} className="border-0 border-b border-rule bg-transparent py-0.5 text-sm text-ink focus:border-accent focus:outline-none">
+      <select value={value} onChange={(e) => onChange(e.target.value)} className="min-w-0 max-w-full truncate border-0 border-b border-rule bg-transparent py-0.5 text-sm text-ink focus:border-accent focus:outline-none">
         {rules.map((r) => (
           <option key={r} value={r}>
             {labels[r] ?? r}
