@@ -12,7 +12,7 @@ import { ENGINE_VERSION, requestTruncation, type VacuumHooks, type VacuumRequest
 import { sjDiagnostics } from './sjDiagnostics';
 import { sjState } from './sjState';
 import type { StageRunner } from './stages';
-import { entropyCount, subregionEntropies, subregionSets, type SubregionSets } from './subregionEntropies';
+import { entropyStage, subregionSets, type SubregionSets } from './subregionEntropies';
 import type { EngineChoice } from './structured/engineChoice';
 import { applyTruncation } from './truncation';
 
@@ -95,17 +95,7 @@ export async function denseVacuum(input: {
     return { truncation, state, diagnostics: sjDiagnostics(state, spectrum.positive, backend) };
   });
 
-  const entropies: Pick<VacuumResult, 'entropy' | 'mutualInformation' | 'complement'> =
-    entropyCount(sets) > 0
-      ? await stage('entropy', () =>
-          subregionEntropies(
-            request,
-            sets,
-            (elements) => entanglementEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }),
-            input.hooks ?? {},
-          ),
-        )
-      : { entropy: null, mutualInformation: null, complement: null };
+  const entropies = await entropyStage(stage, request, sets, (elements, cut) => entanglementEntropy(state, elements, { ...cut, backend }), input.hooks ?? {});
 
   return {
     engineVersion: ENGINE_VERSION,

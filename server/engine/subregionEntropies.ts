@@ -6,6 +6,7 @@ import { mutualInformation, pairIssue } from './mutualInformation';
 import type { PlacedPoints } from './placement';
 import { renyiEntropies } from './renyi';
 import type { VacuumHooks, VacuumRequest, VacuumResult } from './request';
+import type { StageRunner } from './stages';
 import { elementListIssue } from './subregionCheck';
 
 /** The element sets whose entropies a request asks for, found before any heavy stage. */
@@ -106,4 +107,21 @@ export function subregionEntropies(
     complement = { ...result, elements: sets.complement, difference: result.S - entropy.S };
   }
   return { entropy, mutualInformation: pairResult, complement };
+}
+
+/**
+ * The `entropy` stage as both pipelines run it: subregionEntropies under the stage runner when there is
+ * any entropy to compute, and no stage at all otherwise. `entropyOf` takes an element list to its
+ * EntropyResult on the engine's own state; the request's double truncation and restricted cut apply.
+ */
+export async function entropyStage(
+  stage: StageRunner,
+  request: VacuumRequest,
+  sets: SubregionSets,
+  entropyOf: (elements: Int32Array, cut: { doubleTruncation?: boolean; restrictedCut?: VacuumRequest['restrictedCut'] }) => EntropyResult,
+  hooks: VacuumHooks,
+): Promise<Pick<VacuumResult, 'entropy' | 'mutualInformation' | 'complement'>> {
+  if (entropyCount(sets) === 0) return { entropy: null, mutualInformation: null, complement: null };
+  const cut = { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut };
+  return stage('entropy', () => subregionEntropies(request, sets, (elements) => entropyOf(elements, cut), hooks));
 }

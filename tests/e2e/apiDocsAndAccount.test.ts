@@ -1,17 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { screenshot, signIn, startApp, type RunningApp } from './browser';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn, useRunningApp } from './browser';
 
 // Issue 18 §9 in the browser: the API reference renders its Markdown and leads back to the app; the
 // Account page's token fields stand level with each other.
 describe('the API reference and the token form read well', () => {
-  let running: RunningApp;
-
-  beforeAll(async () => {
-    running = await startApp();
-  });
-  afterAll(async () => {
-    await running?.close();
-  });
+  const running = useRunningApp();
 
   it('/api-docs renders Markdown (code, not backticks) and links back to the app', async () => {
     const page = await running.browser.newPage({ viewport: { width: 1280, height: 900 } });

@@ -4,9 +4,11 @@ import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
 import { createApp } from '../../server/app';
 import { demoPassword, seedDemoTeam } from '../../server/db/demo-team';
-import { createTestContext, type TestContext } from '../support/app';
+import type { Worker } from 'bullmq';
+import { createTestContext, startTestWorker, type TestContext } from '../support/app';
 import { buildClient } from '../support/clientBuild';
 
 const projectRoot = resolve(import.meta.dirname, '../..');
@@ -46,9 +48,10 @@ export interface RunningApp {
 
 /**
  * The whole app as a user meets it: the built client and the API on one free loopback port,
- * a migrated database of its own with the demo team seeded, and a browser.
+ * a migrated database of its own with the demo team seeded, and a browser; with `worker`, a compute
+ * worker too (closed by `close()`).
  */
-export async function startApp(): Promise<RunningApp> {
+export async function startApp(options: { worker?: boolean } = {}): Promise<RunningApp> {
   mkdirSync(screenshotDir, { recursive: true });
   const [clientDir, port] = await Promise.all([buildClient(), freePort()]);
   const baseUrl = `http://127.0.0.1:${port}`;
@@ -66,11 +69,14 @@ export async function startApp(): Promise<RunningApp> {
     const s = app.listen(port, '127.0.0.1', () => listening(s));
   });
   const browser = await launchChromium();
+  // a compute worker on the same database and queue, for pages that wait for results
+  const worker: Worker | null = options.worker ? await startTestWorker(context) : null;
   return {
     baseUrl,
     context,
     browser,
     async close() {
+      await worker?.close();
       await browser.close();
       server.closeAllConnections();
       await new Promise((closed) => server.close(closed));
@@ -94,4 +100,24 @@ export async function signIn(running: RunningApp, email: string): Promise<Page> 
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL('**/runs');
   return page;
+}
+
+/**
+ * startApp for a whole test file: started before its tests, closed after them. The value stands for the
+ * running app (a stand-in that reads through to it once it has started), so tests write `running.baseUrl`.
+ */
+export function useRunningApp(options: { worker?: boolean } = {}): RunningApp {
+  let started: RunningApp | undefined;
+  beforeAll(async () => {
+    started = await startApp(options);
+  }, 120_000);
+  afterAll(async () => {
+    await started?.close();
+  });
+  return new Proxy({} as RunningApp, {
+    get(_target, key) {
+      if (!started) throw new Error('the app has not started yet: use it inside a test or a later beforeAll');
+      return started[key as keyof RunningApp];
+    },
+  });
 }

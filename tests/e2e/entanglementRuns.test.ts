@@ -1,10 +1,8 @@
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { Worker } from 'bullmq';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startTestWorker } from '../support/app';
-import { screenshot, signIn, startApp, type RunningApp } from './browser';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn, useRunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
 const phoneWidth = 390;
@@ -15,17 +13,7 @@ const phoneWidth = 390;
  * check; at desktop and at phone width (every wide table scrolls in its own box).
  */
 describe('a run with Rényi orders, a pair and the complement check', () => {
-  let running: RunningApp;
-  let worker: Worker;
-
-  beforeAll(async () => {
-    running = await startApp();
-    worker = await startTestWorker(running.context);
-  });
-  afterAll(async () => {
-    await worker?.close();
-    await running?.close();
-  });
+  const running = useRunningApp({ worker: true });
 
   it('is filled in, refused where wrong, computed and shown', async () => {
     const page = await signIn(running, researcher);

@@ -1,16 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoPassword, demoTeamName } from '../../server/db/demo-team';
-import { screenshot, startApp, type RunningApp } from './browser';
+import { screenshot, useRunningApp } from './browser';
 
 describe('inviting a colleague in the browser', () => {
-  let running: RunningApp;
-
-  beforeAll(async () => {
-    running = await startApp();
-  });
-  afterAll(async () => {
-    await running?.close();
-  });
+  const running = useRunningApp();
 
   it('the owner invites by e-mail, the link in the outbox lets the invitee sign up into the team', async () => {
     const invitee = 'leena.virtanen@tacet.example';

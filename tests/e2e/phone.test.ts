@@ -1,20 +1,16 @@
-import type { Worker } from 'bullmq';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoPassword } from '../../server/db/demo-team';
 import { demoRuns, queueDemoWork } from '../../server/demoWork';
-import { startTestWorker } from '../support/app';
 import { screenshot, startApp, type RunningApp } from './browser';
 
 // Issue 18 §3: at 390 × 844 every page fits the screen (wide tables scroll inside their own box) and the
 // header does not overlap itself. The demo team's work gives the run, study and compare pages content.
 let running: RunningApp;
-let worker: Worker;
 let page: Page;
 
 beforeAll(async () => {
-  running = await startApp();
-  worker = await startTestWorker(running.context);
+  running = await startApp({ worker: true });
   await queueDemoWork(running.context.dataSource, running.context.computeQueue);
   const ds = running.context.dataSource;
   const deadline = Date.now() + 240_000;
@@ -34,7 +30,6 @@ beforeAll(async () => {
   await page.waitForURL('**/runs');
 }, 300_000);
 afterAll(async () => {
-  await worker?.close();
   await running?.close();
 });
 

@@ -1,25 +1,13 @@
 import { readFile } from 'node:fs/promises';
-import type { Worker } from 'bullmq';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startTestWorker } from '../support/app';
-import { screenshot, signIn, startApp, type RunningApp } from './browser';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn, useRunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
 const viewer = 'mira.castellanos@tacet.example';
 
 describe('a vacuum run in the browser', () => {
-  let running: RunningApp;
-  let worker: Worker;
+  const running = useRunningApp({ worker: true });
   let runId: string;
-
-  beforeAll(async () => {
-    running = await startApp();
-    worker = await startTestWorker(running.context);
-  });
-  afterAll(async () => {
-    await worker?.close();
-    await running?.close();
-  });
 
   it('a researcher submits a small run with a subregion, watches it finish and sees the spectrum', async () => {
     const page = await signIn(running, researcher);

@@ -1,19 +1,12 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoPassword, demoTeamName } from '../../server/db/demo-team';
-import { screenshot, startApp, type RunningApp } from './browser';
+import { screenshot, useRunningApp } from './browser';
 
 const owner = 'ingrid.halvorsen@tacet.example';
 const viewer = 'mira.castellanos@tacet.example';
 
 describe('signing in and out in the browser', () => {
-  let running: RunningApp;
-
-  beforeAll(async () => {
-    running = await startApp();
-  });
-  afterAll(async () => {
-    await running?.close();
-  });
+  const running = useRunningApp();
 
   it('the demo owner signs in, sees the team page, and signs out', async () => {
     const page = await running.browser.newPage({ viewport: { width: 1280, height: 860 } });

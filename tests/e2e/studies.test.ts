@@ -1,24 +1,12 @@
-import type { Worker } from 'bullmq';
 import { readFile } from 'node:fs/promises';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoPassword } from '../../server/db/demo-team';
-import { startTestWorker } from '../support/app';
-import { screenshot, startApp, type RunningApp } from './browser';
+import { screenshot, useRunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
 
 describe('a scaling study in the browser', () => {
-  let running: RunningApp;
-  let worker: Worker;
-
-  beforeAll(async () => {
-    running = await startApp();
-    worker = await startTestWorker(running.context);
-  }, 120_000);
-  afterAll(async () => {
-    await worker?.close();
-    await running?.close();
-  });
+  const running = useRunningApp({ worker: true });
 
   it('the demo researcher plans a study, watches it finish and downloads the exports', async () => {
     const page = await running.browser.newPage({ viewport: { width: 1280, height: 900 }, acceptDownloads: true });

@@ -1,23 +1,11 @@
-import type { Worker } from 'bullmq';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startTestWorker } from '../support/app';
+import { describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { screenshot, screenshotDir, signIn, startApp, type RunningApp } from './browser';
+import { screenshot, screenshotDir, signIn, useRunningApp } from './browser';
 
 const researcher = 'tomas.okafor@tacet.example';
 
 describe('a pair study for the mutual information in the browser', () => {
-  let running: RunningApp;
-  let worker: Worker;
-
-  beforeAll(async () => {
-    running = await startApp();
-    worker = await startTestWorker(running.context);
-  }, 120_000);
-  afterAll(async () => {
-    await worker?.close();
-    await running?.close();
-  });
+  const running = useRunningApp({ worker: true });
 
   it('plans pairs with Rényi orders, waits for them and reads the I-vs-d plot with the measured agreement', async () => {
     const page = await signIn(running, researcher);

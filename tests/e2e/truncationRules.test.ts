@@ -1,7 +1,5 @@
-import type { Worker } from 'bullmq';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startTestWorker } from '../support/app';
-import { screenshot, signIn, startApp, type RunningApp } from './browser';
+import { describe, expect, it } from 'vitest';
+import { screenshot, signIn, useRunningApp } from './browser';
 
 /**
  * The restricted cut of double truncation and the 4D caution, as a researcher meets them in the browser:
@@ -9,17 +7,7 @@ import { screenshot, signIn, startApp, type RunningApp } from './browser';
  * page states both the restricted cut and the caution that √N/(4π) is a 2D rule.
  */
 describe('truncation rules in the browser: restricted cut, 4D caution, knee', () => {
-  let running: RunningApp;
-  let worker: Worker;
-
-  beforeAll(async () => {
-    running = await startApp();
-    worker = await startTestWorker(running.context);
-  });
-  afterAll(async () => {
-    await worker?.close();
-    await running?.close();
-  });
+  const running = useRunningApp({ worker: true });
 
   it('a 4D run with √N/4π and a fixed restricted λ shows both on its page', async () => {
     const page = await signIn(running, 'tomas.okafor@tacet.example');

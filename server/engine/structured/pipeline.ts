@@ -5,7 +5,7 @@ import type { LinearAlgebraBackend } from '../linalg/backend';
 import type { PlacedPoints } from '../placement';
 import { ENGINE_VERSION, requestTruncation, type VacuumHooks, type VacuumRequest, type VacuumResult } from '../request';
 import type { StageRunner } from '../stages';
-import { entropyCount, subregionEntropies, subregionSets } from '../subregionEntropies';
+import { entropyStage, subregionSets } from '../subregionEntropies';
 import { applyTruncation, sqrtNCutoff } from '../truncation';
 import { dominanceSweep, lightConeSweep, PauliJordan2D } from './dominance2d';
 import type { EngineChoice } from './engineChoice';
@@ -85,17 +85,7 @@ export async function structuredVacuum(input: {
     return { truncation, state, diagnostics: factoredDiagnostics(state, pairs.relativeResiduals.subarray(0, keep), backend) };
   });
 
-  const entropies: Pick<VacuumResult, 'entropy' | 'mutualInformation' | 'complement'> =
-    entropyCount(sets) > 0
-      ? await stage('entropy', () =>
-          subregionEntropies(
-            request,
-            sets,
-            (elements) => factoredEntropy(state, elements, { doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut, backend }),
-            hooks,
-          ),
-        )
-      : { entropy: null, mutualInformation: null, complement: null };
+  const entropies = await entropyStage(stage, request, sets, (elements, cut) => factoredEntropy(state, elements, { ...cut, backend }), hooks);
 
   return {
     engineVersion: ENGINE_VERSION,
