@@ -2,7 +2,7 @@ import { MAX_RENYI_ORDERS } from '@shared/vacuum';
 import { regionDescriptors, regionKinds } from '@shared/regions';
 
 /** The commands of `tacet`, in the order the overview lists them. */
-export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information', 'inspect'] as const;
+export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information', 'inspect', 'submit', 'fetch'] as const;
 export type CommandName = (typeof commandNames)[number];
 
 const TITLE = 'tacet — quantum-field vacua and entanglement entropy on causal sets';
@@ -21,6 +21,8 @@ const USAGE: Record<CommandName, string> = {
                  [--mass M] [--density RHO | --region R ...] [--engine E] [--backend B] [--json]`,
   inspect: `tacet inspect  --points points.csv [--region R [size options]] | --relations pairs.csv --count N
                  [--max-gap K] [--json]`,
+  submit: `tacet submit   SPEC.json          (with TACET_URL and TACET_TOKEN)`,
+  fetch: `tacet fetch    ID [--wait] [--out DIR]   (with TACET_URL and TACET_TOKEN)`,
 };
 
 /** One paragraph of option notes; each command's help shows the ones it accepts. */
@@ -60,6 +62,12 @@ needs the density: --density, or --region with its size so the volume is known (
   dimension: a header t,x / t,x,y / t,x,y,z (more space columns allowed); --region only for a periodic x
   (cylinder2d) and the expected count ρV. --relations: rows i,j meaning i ≺ j (labels 0 … N−1), closed
   transitively. Both estimators assume the set is a causal diamond of flat spacetime.`,
+  remote: `submit and fetch talk to a Tacet service: TACET_URL is its address (http://127.0.0.1:4310 for npm start),
+  TACET_TOKEN a personal API token (Account page → API tokens, tct_…), which acts in its own team.
+  submit SPEC.json: the JSON body of POST /api/runs (a run) or POST /api/studies (a study: it has counts,
+  seeds, rules or subregions), checked with the API's schemas before it is sent; prints {kind, id, url}.
+  fetch ID: the run's or study's detail as JSON; --wait polls until it has ended (progress on stderr);
+  --out DIR also writes the detail and every export of a done run or study into DIR.`,
   json: `--json prints one JSON document on stdout instead of text.`,
   exit: `exit codes: 0 success, 2 bad input, 1 failure.`,
 } as const;
@@ -72,6 +80,8 @@ const COMMAND_NOTES: Record<CommandName, Note[]> = {
   entropy: ['subregion', ...computeNotes.slice(0, 3), 'entropyRule', 'renyi', 'complement', ...computeNotes.slice(3)],
   'mutual-information': ['pair', ...computeNotes.slice(0, 3), 'entropyRule', ...computeNotes.slice(3)],
   inspect: ['inspect', 'regionSizes', 'json'],
+  submit: ['remote'],
+  fetch: ['remote'],
 };
 
 /** `tacet --help`: every command's usage and every note. */

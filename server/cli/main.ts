@@ -24,6 +24,7 @@ import { manifoldLikeness, RELATION_INSPECT_LIMIT, type ManifoldLikeness } from 
 import { makeRegion } from '../engine/regions';
 import { CausalSetFileError, parseRelationList } from '../causalSets/parse';
 import { formatDimension, longestChainConstant } from '@shared/manifoldLikeness';
+import { fetchWork, RemoteUsageError, submit } from './remote';
 import { ZodError } from 'zod';
 
 /** Bad command-line input: reported as one line on stderr with exit code 2. */
@@ -511,7 +512,21 @@ const commands: Record<CommandName, (args: string[], io: Io) => void | Promise<v
   entropy: runEntropy,
   'mutual-information': runMutualInformation,
   inspect: runInspect,
+  submit: (args, io) => remoteCommand(submit, args, io),
+  fetch: (args, io) => remoteCommand(fetchWork, args, io),
 };
+
+/** A command that talks to the service; its help is local, its usage errors are this CLI's. */
+async function remoteCommand(command: typeof submit, args: string[], io: Io): Promise<void> {
+  const name = command === submit ? 'submit' : 'fetch';
+  if (args.includes('--help') || args.includes('-h')) return io.stdout(commandHelp(name));
+  try {
+    await command(args, { stdout: io.stdout, stderr: io.stderr, env: process.env });
+  } catch (error) {
+    if (error instanceof RemoteUsageError) throw new UsageError(error.message);
+    throw error;
+  }
+}
 
 function isCommand(name: string): name is CommandName {
   return (commandNames as readonly string[]).includes(name);
