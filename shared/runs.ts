@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { manifoldLikenessSchema } from './manifoldLikeness';
 import { regionKinds } from './regions';
 import {
   engineRequestSchema,
@@ -181,6 +182,8 @@ export const runResultSchema = z.object({
     .optional(),
   /** the entropy of the subregion's causal complement O′ and S_O′ − S_O, when asked (a purity check) */
   complement: entropyPartSchema.extend({ difference: z.number() }).nullable().optional(),
+  /** counts and dimension estimators of the run's causal set (server/engine/README.md §16); null when not computed */
+  manifold: manifoldLikenessSchema.nullable().optional(),
   /** cautions for the rule on this dimension (e.g. a 2D cut on a 4D region), to show beside the result */
   cautions: z.array(z.string()).optional(),
   backend: z.string(),

@@ -1,3 +1,4 @@
+import type { ManifoldLikenessReport } from '@shared/manifoldLikeness';
 import { EntitySchema } from 'typeorm';
 import type { RunStatus } from '@shared/runs';
 import type { RestrictedCut, TruncationRule, VacuumStage } from '@shared/vacuum';
@@ -37,6 +38,8 @@ export interface RunSummaryRecord {
   complement?: (EntropyPartRecord & { difference: number }) | null;
   /** cautions for the rule on this dimension (absent in runs stored before them) */
   cautions?: string[];
+  /** counts and dimension estimators of the run's causal set (absent in runs stored before them) */
+  manifold?: ManifoldLikenessReport | null;
   /** which engine ran and why (absent in runs stored before the structured engine) */
   engine?: 'dense' | 'structured';
   engineReason?: string;

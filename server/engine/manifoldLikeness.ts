@@ -15,7 +15,7 @@ export interface ManifoldLikeness {
   /** r = R / (N choose 2) */
   orderingFraction: number;
   dimension: {
-    /** the root d of r = Γ(d+1)Γ(d/2)/(2Γ(3d/2)); error from the scatter over sub-intervals (null when too few) */
+    /** the root d of r = Γ(d+1)Γ(d/2)/(2Γ(3d/2)); error: the larger of r's sampling error and the scatter over sub-intervals */
     myrheimMeyer: { estimate: number | null; error: number | null; subIntervals: number };
     /** log₂(N / N_half) with N_half the larger half cut by the midpoint element */
     midpoint: { estimate: number | null; halfSize: number };
@@ -104,24 +104,45 @@ function midpointDimension(pastSize: Int32Array, futureSize: Int32Array): { esti
 }
 
 /**
- * The Myrheim–Meyer estimate of the whole set with its error: each sampled sub-interval (at least N/8
- * elements) is an interval of the same spacetime, so its estimate scatters about the same d; the
- * variance of an ordering fraction falls as 1/n, so the whole set's error is the scatter times
- * √(n̄/N), n̄ the mean sub-interval size.
+ * The Myrheim–Meyer estimate of the whole set with its error, the larger of two:
+ * - the sampling error of r as a U-statistic of order 2 (Hoeffding 1948): Var r ≈ 4ζ₁/N + 2r(1−r)/N²,
+ *   ζ₁ the variance over elements of the share of the others each is related to, carried to d through
+ *   the slope of the diamond ordering fraction (calibrated against the seed-to-seed spread of sprinkled
+ *   2D and 4D diamonds in tests/engine/manifoldLikeness.test.ts);
+ * - the scatter of the estimates of sampled sub-intervals (at least N/8 elements): every interval of a
+ *   manifold-like set is a diamond of the same spacetime, so their estimates scatter about the same d;
+ *   an ordering fraction's variance falls as 1/n, so the scatter is scaled by √(n̄/N). This one also
+ *   grows when the set is not homogeneous, which the first does not see.
  */
 function myrheimMeyerWithError(
   n: number,
   relations: number,
   subIntervals: { size: number; relations: number }[],
+  pastSize: Int32Array,
+  futureSize: Int32Array,
 ): ManifoldLikeness['dimension']['myrheimMeyer'] {
   const pairs = (m: number) => (m * (m - 1)) / 2;
-  const estimate = n > 1 ? myrheimMeyerDimension(relations / pairs(n)) : null;
+  const r = n > 1 ? relations / pairs(n) : 0;
+  const estimate = n > 1 ? myrheimMeyerDimension(r) : null;
   const estimates = subIntervals.map((s) => myrheimMeyerDimension(s.relations / pairs(s.size))).filter((d): d is number => d !== null);
-  if (estimate === null || estimates.length < 4) return { estimate, error: null, subIntervals: estimates.length };
-  const mean = estimates.reduce((s, d) => s + d, 0) / estimates.length;
-  const sd = Math.sqrt(estimates.reduce((s, d) => s + (d - mean) ** 2, 0) / (estimates.length - 1));
-  const meanSize = subIntervals.reduce((s, x) => s + x.size, 0) / subIntervals.length;
-  return { estimate, error: sd * Math.sqrt(meanSize / n), subIntervals: estimates.length };
+  if (estimate === null || n < 3) return { estimate, error: null, subIntervals: estimates.length };
+  let meanShare = 0;
+  for (let i = 0; i < n; i++) meanShare += (pastSize[i] + futureSize[i]) / (n - 1);
+  meanShare /= n;
+  let zeta = 0;
+  for (let i = 0; i < n; i++) zeta += ((pastSize[i] + futureSize[i]) / (n - 1) - meanShare) ** 2;
+  zeta /= n - 1;
+  const step = 1e-4 * estimate;
+  const slope = Math.abs(diamondOrderingFraction(estimate + step) - diamondOrderingFraction(estimate - step)) / (2 * step);
+  const sampling = Math.sqrt((4 * zeta) / n + (2 * r * (1 - r)) / (n * n)) / slope;
+  let scatter = 0;
+  if (estimates.length >= 4) {
+    const mean = estimates.reduce((s, d) => s + d, 0) / estimates.length;
+    const sd = Math.sqrt(estimates.reduce((s, d) => s + (d - mean) ** 2, 0) / (estimates.length - 1));
+    const meanSize = subIntervals.reduce((s, x) => s + x.size, 0) / subIntervals.length;
+    scatter = sd * Math.sqrt(meanSize / n);
+  }
+  return { estimate, error: Math.max(sampling, scatter), subIntervals: estimates.length };
 }
 
 /** The closed relation of points with t first and any number of space coordinates (periodic x in 2D when given). */
@@ -228,7 +249,7 @@ function fromRelation(causal: BitRelation, maxGap: number, samples: number, seed
     links: abundances[0],
     longestChain,
     orderingFraction: n > 1 ? relations / ((n * (n - 1)) / 2) : 0,
-    dimension: { myrheimMeyer: myrheimMeyerWithError(n, relations, subIntervals), midpoint: midpointDimension(pastSize, futureSize) },
+    dimension: { myrheimMeyer: myrheimMeyerWithError(n, relations, subIntervals, pastSize, futureSize), midpoint: midpointDimension(pastSize, futureSize) },
     intervalAbundances: abundances,
   };
 }
@@ -360,7 +381,7 @@ function from2dPoints(points: ArrayLike<number>, maxGap: number, samples: number
     links: abundances[0],
     longestChain: tails.length,
     orderingFraction: n > 1 ? relations / ((n * (n - 1)) / 2) : 0,
-    dimension: { myrheimMeyer: myrheimMeyerWithError(n, relations, subIntervals), midpoint: midpointDimension(pastSize, futureSize) },
+    dimension: { myrheimMeyer: myrheimMeyerWithError(n, relations, subIntervals, pastSize, futureSize), midpoint: midpointDimension(pastSize, futureSize) },
     intervalAbundances: abundances,
   };
 }
@@ -542,4 +563,20 @@ export function manifoldLikeness(input: OrderInput, options: ManifoldLikenessOpt
     throw new RangeError(`${n} elements in ${dimension}D${periodX !== undefined ? ' with a periodic x' : ''}: the relation is built pair by pair up to ${RELATION_INSPECT_LIMIT} elements (2D points without a periodic x have no limit)`);
   }
   return fromRelation(relationOfPoints(points, dimension, periodX), maxGap, samples, seed);
+}
+
+/**
+ * The manifold-likeness of a computed vacuum's causal set: its points (with the region's periodic x),
+ * or the relation it was given; null where the relation route would exceed RELATION_INSPECT_LIMIT.
+ */
+export function manifoldOfVacuum(
+  source: { kind: string; causal?: Uint32Array; count?: number },
+  result: { points: Float64Array; dimension: 2 | 4; N: number; periodX?: number },
+): ManifoldLikeness | null {
+  if (source.kind === 'order' && source.causal && source.count !== undefined) {
+    return manifoldLikeness({ kind: 'relation', causal: BitRelation.fromWords(source.causal, source.count) });
+  }
+  if (result.points.length === 0) return null;
+  if (!(result.dimension === 2 && result.periodX === undefined) && result.N > RELATION_INSPECT_LIMIT) return null;
+  return manifoldLikeness({ kind: 'points', points: result.points, dimension: result.dimension, periodX: result.periodX });
 }

@@ -1,5 +1,6 @@
 import type { RegionSpec, RenyiOrder, RestrictedCut, SprinklingSpecInput, SubregionPair, SubregionSpec, TruncationRule, VacuumStage } from '@shared/vacuum';
 import type { EntropyResult } from './entropy';
+import type { ManifoldLikeness } from './manifoldLikeness';
 import type { MutualInformationResult } from './mutualInformation';
 import type { BackendPreference } from './linalg';
 import type { LinearAlgebraBackend } from './linalg/backend';
@@ -96,6 +97,11 @@ export interface VacuumResult {
    * pure whole-region state the two agree in the continuum, so `difference` = S_O′ − S_O is a purity check
    */
   complement: (EntropyResult & { elements: Int32Array; difference: number }) | null;
+  /**
+   * counts and dimension estimators of the causal set (manifoldLikeness.ts), added by the engine thread
+   * after the vacuum (the pipelines leave it out, so their timings are the vacuum's alone)
+   */
+  manifold?: ManifoldLikeness | null;
   /** cautions for the rule used on this dimension (shared/vacuum.ts ruleCautions), to show beside the result */
   cautions: string[];
   /** seconds per stage */

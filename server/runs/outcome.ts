@@ -51,6 +51,7 @@ export function outcomeOf(result: VacuumResult): RunOutcome {
         }
       : null,
     complement: result.complement ? { ...entropyPart(result.complement), difference: result.complement.difference } : null,
+    manifold: result.manifold ?? null,
     cautions: result.cautions,
     engine: result.engine,
     engineReason: result.engineReason,

@@ -1,5 +1,7 @@
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, computeVacuum, EngineInputError, type VacuumRequest } from '../engine/index';
+import { manifoldOfVacuum } from '../engine/manifoldLikeness';
+import { makeRegion } from '../engine/regions';
 import type { EngineThreadData, EngineThreadMessage } from './engineThread';
 
 /**
@@ -17,6 +19,13 @@ try {
   const result = await computeVacuum(request as VacuumRequest, {
     onProgress: (stage, fraction) => post({ type: 'progress', stage, fraction }),
     shouldCancel: () => Atomics.load(flag, 0) !== 0,
+  });
+  // the set's manifold-likeness beside the vacuum, for the run page (server/engine/README.md §16)
+  result.manifold = manifoldOfVacuum(request.source as VacuumRequest['source'] & { causal?: Uint32Array; count?: number }, {
+    points: result.points,
+    dimension: result.dimension,
+    N: result.N,
+    periodX: result.region ? makeRegion(result.region).periodX : undefined,
   });
   const transfer = [result.points.buffer, result.eigenvalues.buffer] as ArrayBuffer[];
   if (result.entropy) transfer.push(result.entropy.generalizedEigenvalues.buffer as ArrayBuffer, result.entropy.elements.buffer as ArrayBuffer);

@@ -147,6 +147,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           : null,
         mutualInformation: s.mutualInformation ?? null,
         complement: s.complement ?? null,
+        manifold: s.manifold ?? null,
         backend: row.backend ?? '',
         engineVersion: row.engineVersion ?? '',
         timings: s.timings,

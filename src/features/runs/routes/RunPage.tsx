@@ -5,6 +5,7 @@ import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
 import { ExportDownloads } from '../../../ui/ExportDownloads';
+import { ManifoldLikenessPanel } from '../../../ui/ManifoldLikenessPanel';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
@@ -149,6 +150,17 @@ function RunView({ run }: { run: RunDetail }) {
                 </Section>
               )}
             </div>
+          )}
+          {result.manifold && (
+            <Section title="Manifold-likeness" aside="what the order alone says about its dimension">
+              <div className="max-w-2xl">
+                <ManifoldLikenessPanel
+                  report={result.manifold}
+                  declaredDimension={run.dimension}
+                  expectedElements={result.density !== null && result.volume !== null ? result.density * result.volume : null}
+                />
+              </div>
+            </Section>
           )}
           <Section title="Downloads">
             <ExportDownloads kind="run" id={run.id}>
