@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { eventSchema, regionSpecSchema, type Event } from './regions';
+import { eventSchema, regionDescriptors, regionSpecSchema, type Event, type RegionKind } from './regions';
 
 /**
  * Request vocabulary of a vacuum computation on a causal set: regions, sprinklings, truncation rules and
@@ -184,7 +184,8 @@ export function entropyRuleLabel(settings: EntropyRuleSettings): string {
  * derived — on a 500-element 4D diamond it keeps about half of the positive modes — so a 4D result that
  * uses it says so, and the forms offer the knee there.
  */
-export function ruleCautions(dimension: 2 | 4, settings: EntropyRuleSettings, kept?: { modes: number; of: number }): string[] {
+export function ruleCautions(dimension: 2 | 4, settings: EntropyRuleSettings, kept?: { modes: number; of: number }, regionKind?: RegionKind): string[] {
+  if (regionKind && regionDescriptors[regionKind].conformal) return curvedRuleCautions(settings);
   if (dimension !== 4) return [];
   const cautions: string[] = [];
   if (settings.truncation.rule === 'sqrtN') {
@@ -197,6 +198,17 @@ export function ruleCautions(dimension: 2 | 4, settings: EntropyRuleSettings, ke
     cautions.push('The restricted cut √n/(4π) of double truncation is a 2D rule as well; in 4D its value is a modelling choice, not a derived cut.');
   }
   return cautions;
+}
+
+/**
+ * On a curved region (the de Sitter kinds, drawn in conformal coordinates) the cuts √N/(4π) and √n/(4π)
+ * are flat 2D rules carried over, not derived there (server/engine/README.md §17).
+ */
+function curvedRuleCautions(settings: EntropyRuleSettings): string[] {
+  const flat2dRule = settings.truncation.rule === 'sqrtN' || effectiveRestrictedCut(settings)?.rule === 'sqrtN';
+  return flat2dRule
+    ? ['The cut √N/(4π) (and √n/(4π) of double truncation) comes from flat 2D diamonds (Sorkin–Yazdi 2018); on a de Sitter region it is a modelling choice, not a derived cut — compare it with the knee or a fixed λ before reading S.']
+    : [];
 }
 
 /** The truncation a new run or study proposes for a region of this dimension: √N/(4π) in 2D, the knee in 4D. */

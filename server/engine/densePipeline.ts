@@ -123,6 +123,7 @@ export async function denseVacuum(input: {
       dimension,
       { truncation: truncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut },
       { modes: truncation.modesKept, of: spectrum.positive.length },
+      region?.spec.kind,
     ),
     timings: input.timings,
     ...(request.keepState ? { state } : {}),

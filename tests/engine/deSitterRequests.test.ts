@@ -36,5 +36,16 @@ describe('requests on de Sitter regions', () => {
     expect(result.entropy!.n).toBeGreaterThan(100);
     expect(result.entropy!.n).toBeLessThan(300);
     expect(result.entropy!.S).toBeGreaterThan(0);
+    // the flat 2D cut carried to a curved region says so (server/engine/README.md §17)
+    expect(result.cautions.join(' ')).toMatch(/de Sitter region it is a modelling choice/);
+  });
+
+  it('puts the same caution on a structured run of the Poincaré diamond, and none on a flat diamond', async () => {
+    const base = { engine: 'structured' as const, truncation: { rule: 'sqrtN' as const } };
+    const curved = await computeVacuum({ ...base, source: { kind: 'sprinkling', sprinkling: { region: { kind: 'deSitterDiamond2d', etaPast: -2, etaFuture: -1 }, count: 1200, seed: 'ds-caution' } } });
+    const flat = await computeVacuum({ ...base, source: { kind: 'sprinkling', sprinkling: { region: { kind: 'diamond2d', properTime: 2 }, count: 1200, seed: 'ds-caution' } } });
+    expect(curved.engine).toBe('structured');
+    expect(curved.cautions).toHaveLength(1);
+    expect(flat.cautions).toEqual([]);
   });
 });

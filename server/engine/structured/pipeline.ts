@@ -1,4 +1,4 @@
-import type { TruncationRule } from '@shared/vacuum';
+import { ruleCautions, type TruncationRule } from '@shared/vacuum';
 import { lightConeNeighbourhood } from '../causalSeparation';
 import { EngineInputError } from '../errors';
 import type { LinearAlgebraBackend } from '../linalg/backend';
@@ -109,8 +109,8 @@ export async function structuredVacuum(input: {
     knee: null,
     diagnostics,
     ...entropies,
-    // the structured engine takes 2D regions only, where the cuts need no caution
-    cautions: [],
+    // 2D regions only: flat ones need no caution for these cuts, de Sitter ones do (shared/vacuum.ts ruleCautions)
+    cautions: ruleCautions(2, { truncation: truncationRule, doubleTruncation: request.doubleTruncation, restrictedCut: request.restrictedCut }, undefined, region?.spec.kind),
     timings: input.timings,
   };
 }

@@ -42,7 +42,8 @@ export function studyDimension(input: Pick<StudyExportInput, 'request' | 'causal
 /** The cautions of every rule of the study (shared/vacuum.ts ruleCautions), without repeats. */
 export function studyCautions(input: Pick<StudyExportInput, 'request' | 'causalSets'>): string[] {
   const dimension = studyDimension(input);
-  return [...new Set(input.request.rules.flatMap((r) => ruleCautions(dimension, r)))];
+  const kind = input.request.source === 'sprinkled' ? input.request.region.kind : undefined;
+  return [...new Set(input.request.rules.flatMap((r) => ruleCautions(dimension, r, undefined, kind)))];
 }
 
 /** Escapes LaTeX's special characters in running text. */

@@ -3,6 +3,7 @@ import { createRunRequestSchema, type CreateRunRequest } from '@shared/runs';
 import {
   defaultRegionKind,
   regionDefaultSubDiamond,
+  regionDescriptors,
   regionDimension,
   regionFieldDefaults,
   regionFieldKeys,
@@ -11,6 +12,7 @@ import {
   regionFromFieldText,
   regionLabels as regionKindLabels,
   regionSpecSchema,
+  type DiamondTips,
   type RegionFieldValues,
   type RegionKind,
 } from '@shared/regions';
@@ -113,12 +115,29 @@ const tipText = (tip: { t: number; x: number; y?: number; z?: number }): TipValu
  * A and B the form starts with: two diamonds of half the default sub-diamond's height, side by side at
  * ∓ its half-height in x, so they are disjoint and spacelike to each other and lie inside the region.
  */
-function defaultPairSide(side: -1 | 1): SubregionShapeValues {
-  const { past, future } = defaultSubDiamond;
+function defaultPairSide(side: -1 | 1, subDiamond: DiamondTips = defaultSubDiamond): SubregionShapeValues {
+  const { past, future } = subDiamond;
   const halfHeight = (future.t - past.t) / 2;
   const t = (past.t + future.t) / 2;
   const x = (past.x + future.x) / 2 + side * halfHeight;
   return { past: tipText({ t: t - halfHeight / 2, x }), future: tipText({ t: t + halfHeight / 2, x }), elementList: '' };
+}
+
+/**
+ * The subregion and pair tips for the region the form now describes: its own default sub-diamond and the
+ * pair beside it (the registry's `defaultSubDiamond`), so a change of kind (a de Sitter diamond lies at
+ * η < 0) never leaves the tips outside the region. Nothing changes while the region's fields do not parse.
+ */
+export function tipsForRegion(values: RegionFieldValues): Pick<RunFormValues, 'past' | 'future' | 'pairA' | 'pairB'> | null {
+  const region = regionSpecSchema.safeParse(regionFromFieldText(values));
+  if (!region.success) return null;
+  const sub = regionDefaultSubDiamond(region.data);
+  return { past: tipText(sub.past), future: tipText(sub.future), pairA: defaultPairSide(-1, sub), pairB: defaultPairSide(1, sub) };
+}
+
+/** Why a region offers the massless field only (the de Sitter kinds), or null. */
+export function masslessOnlyReason(kind: RegionKind): string | null {
+  return regionDescriptors[kind].massiveField?.reason ?? null;
 }
 
 export function defaultRunForm(seed: string = newSeed()): RunFormValues {

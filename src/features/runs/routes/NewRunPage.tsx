@@ -19,9 +19,11 @@ import { DoubleTruncationFields, PairFields, SubregionFields } from '../componen
 import { denseLimitN, denseLimits, engineNote, sizeHint } from '../lib/engineNotes';
 import {
   defaultRunForm,
+  masslessOnlyReason,
   newSeed,
   regionDimension,
   runRequestFromForm,
+  tipsForRegion,
   truncationForRegionChange,
   type PickedCausalSet,
   type RunFormValues,
@@ -126,7 +128,16 @@ function NewRunForm() {
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-3">
             <RegionFields
               values={values}
-              onKindChange={(regionKind) => setValues((v) => ({ ...v, regionKind, truncation: truncationForRegionChange(v.truncation, v.regionKind, regionKind) }))}
+              onKindChange={(regionKind) =>
+                setValues((v) => ({
+                  ...v,
+                  regionKind,
+                  truncation: truncationForRegionChange(v.truncation, v.regionKind, regionKind),
+                  // the tips follow the region: its own default sub-diamond and the pair beside it
+                  ...(tipsForRegion({ ...v, regionKind }) ?? {}),
+                  ...(masslessOnlyReason(regionKind) ? { mass: '0' } : {}),
+                }))
+              }
               onFieldChange={(key, text) => set(key, text)}
               kindError={fe['sprinkling.region']}
               fieldError={(key) => fe[`sprinkling.region.${key}`]}
@@ -256,7 +267,8 @@ function NewRunForm() {
               value={values.mass}
               onChange={(e) => set('mass', e.target.value)}
               error={fe.mass}
-              hint="0 for the massless field."
+              disabled={!imported && masslessOnlyReason(values.regionKind) !== null}
+              hint={!imported && masslessOnlyReason(values.regionKind) ? `Massless only here: ${masslessOnlyReason(values.regionKind)}` : '0 for the massless field.'}
             />
           </div>
         </FormSection>
