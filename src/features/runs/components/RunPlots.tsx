@@ -1,3 +1,4 @@
+import { regionDescriptors, type RegionKind } from '@shared/regions';
 import type { RunDetail, RunResult } from '@shared/runs';
 import { plotPalette } from '../../../lib/plotTheme';
 import { ErrorState, Loading } from '../../../ui/States';
@@ -37,6 +38,9 @@ export function PointsPlot({ run }: { run: RunDetail }) {
   if (points.isPending) return <Loading label="Loading the points" />;
   if (points.isError) return <ErrorState error={points.error} onRetry={() => points.refetch()} />;
   const projected = points.data.dimension === 4;
+  // a curved region is drawn in its conformal coordinates (T, θ or η, x), where light rays run at 45°
+  const region = (run.request as { sprinkling?: { region?: { kind?: string } } } | null)?.sprinkling?.region?.kind;
+  const conformal = region && region in regionDescriptors ? regionDescriptors[region as RegionKind].conformal : undefined;
   return (
     <PlotFigure
       title="Points"
@@ -44,8 +48,8 @@ export function PointsPlot({ run }: { run: RunDetail }) {
       height={460}
       data={pointsTraces(points.data, run.request, plotPalette)}
       layout={{
-        xaxis: { title: axisTitle('x'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, constrain: 'domain' },
-        yaxis: { title: axisTitle('t'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, scaleanchor: 'x', scaleratio: 1 },
+        xaxis: { title: axisTitle(conformal?.x ?? 'x'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, constrain: 'domain' },
+        yaxis: { title: axisTitle(conformal?.t ?? 't'), tickfont: tickFont, gridcolor: plotPalette.grid, zeroline: false, scaleanchor: 'x', scaleratio: 1 },
         legend: { orientation: 'h', y: -0.14 },
       }}
       caption={
