@@ -99,6 +99,8 @@ interface SubregionFieldsProps {
   renyi?: { value: string; onChange(text: string): void };
   /** the complement check */
   complement?: { checked: boolean; onChange(value: boolean): void };
+  /** on a region with cosmological horizons: fills the tips with the part inside the observer's horizons */
+  onHorizonPart?(): void;
 }
 
 /**
@@ -123,6 +125,14 @@ export function SubregionFields(props: SubregionFieldsProps) {
       {enabled && (
         <>
           <SubregionShapeFields dimension={props.dimension} past={props.past} future={props.future} onTipChange={props.onTipChange} errors={errors} path="subregion" elements={props.elements} />
+          {props.onHorizonPart && !props.elements && (
+            <div className="flex flex-wrap items-baseline gap-3 text-sm">
+              <button type="button" className="text-accent underline underline-offset-2" onClick={props.onHorizonPart}>
+                Horizon-bounded part
+              </button>
+              <span className="text-ink-faint">tips at (T, θ) = (∓π/2, 0): the part inside the horizons of the observer at θ = 0</span>
+            </div>
+          )}
           <FieldAlert message={errors.subregion} />
           {props.renyi && <RenyiOrdersField value={props.renyi.value} onChange={props.renyi.onChange} error={errors.renyi} />}
           {props.complement && (

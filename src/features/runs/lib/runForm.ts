@@ -135,6 +135,20 @@ export function tipsForRegion(values: RegionFieldValues): Pick<RunFormValues, 'p
   return { past: tipText(sub.past), future: tipText(sub.future), pairA: defaultPairSide(-1, sub), pairB: defaultPairSide(1, sub) };
 }
 
+/**
+ * The tips of the part of the region inside the horizons of the observer at θ = 0 (the registry's
+ * `horizonDiamond`, server/engine/README.md §17), or null for a region without horizons or while its
+ * fields do not parse. The engine accepts these tips on the conformal boundary (subregionCheck).
+ */
+export function horizonTipsForRegion(values: RegionFieldValues): Pick<RunFormValues, 'past' | 'future'> | null {
+  const horizonDiamond = regionDescriptors[values.regionKind].horizonDiamond as ((spec: unknown) => DiamondTips) | undefined;
+  if (!horizonDiamond) return null;
+  const region = regionSpecSchema.safeParse(regionFromFieldText(values));
+  if (!region.success) return null;
+  const tips = horizonDiamond(region.data);
+  return { past: tipText(tips.past), future: tipText(tips.future) };
+}
+
 /** Why a region offers the massless field only (the de Sitter kinds), or null. */
 export function masslessOnlyReason(kind: RegionKind): string | null {
   return regionDescriptors[kind].massiveField?.reason ?? null;

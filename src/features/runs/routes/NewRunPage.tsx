@@ -19,6 +19,7 @@ import { DoubleTruncationFields, PairFields, SubregionFields } from '../componen
 import { denseLimitN, denseLimits, engineNote, sizeHint } from '../lib/engineNotes';
 import {
   defaultRunForm,
+  horizonTipsForRegion,
   masslessOnlyReason,
   newSeed,
   regionDimension,
@@ -323,6 +324,7 @@ function NewRunForm() {
                 : undefined
             }
             renyi={{ value: values.renyi, onChange: (text) => set('renyi', text) }}
+            onHorizonPart={!imported && horizonTipsForRegion(values) ? () => setValues((v) => ({ ...v, ...(horizonTipsForRegion(v) ?? {}) })) : undefined}
             complement={{ checked: values.complement, onChange: (v) => set('complement', v) }}
           />
         </FormSection>
