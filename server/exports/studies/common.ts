@@ -61,6 +61,7 @@ export function escapeLatex(text: string): string {
     }
   })
     .replace(/ℓ/g, '$\\ell$')
+    .replace(/√(\w+)/g, '$\\sqrt{$1}$')
     .replace(/√/g, '$\\surd$')
     .replace(/π/g, '$\\pi$')
     .replace(/λ/g, '$\\lambda$')

@@ -57,11 +57,11 @@ async function closeStudy(context: WorkerContext, studyId: string): Promise<Auth
     authorId: study.authorId,
     teamId: study.teamId,
     about: `study ${study.id}`,
-    subject: `Tacet: study ${name} ${status === 'done' ? 'finished' : 'failed'}`,
+    subject: `Tacet: study ${name} ${status === 'done' ? 'finished' : 'finished with failed cells'}`,
     lines: [
       status === 'done'
         ? `your scaling study "${name}" has finished: all ${study.cellsTotal} sprinklings are computed.`
-        : `your scaling study "${name}" has finished with failures: ${study.error ?? ''}`,
+        : `your scaling study "${name}" has finished with failed cells: ${study.error ?? ''}`,
     ],
     link: `${context.config.appUrl}/studies/${study.id}`,
   };

@@ -91,6 +91,10 @@ export function RunsPage() {
         }
       />
 
+      <p className="-mt-2 mb-4 text-sm text-ink-soft" data-testid="compare-explanation">
+        Compare: tick 2 to 6 finished runs in the list below to see their spectra and entropies side by side.
+      </p>
+
       <form
         className="mb-6 grid grid-cols-1 items-end gap-6 sm:grid-cols-[1fr_10rem_12rem]"
         role="search"

@@ -164,7 +164,7 @@ export function NewStudyPage() {
             </SelectField>
             <TextField label="N values" name="counts" className="font-mono" value={values.counts} onChange={(e) => set('counts', e.target.value)} error={errors.counts} hint="comma-separated, at least 20 each" />
             <TextField label="Seeds per N" name="seedCount" inputMode="numeric" value={values.seedCount} onChange={(e) => set('seedCount', e.target.value)} error={errors.seedCount} hint="ensemble size; 3 or more give error bars" />
-            <TextField label="Seed prefix" name="seedPrefix" className="font-mono" value={values.seedPrefix} onChange={(e) => set('seedPrefix', e.target.value)} hint={`seeds ${values.seedPrefix || 'seed'}-1 … -${seedCount || 'k'}`} />
+            <TextField label="Seed prefix" name="seedPrefix" className="font-mono" value={values.seedPrefix} onChange={(e) => set('seedPrefix', e.target.value)} hint={`each N is sprinkled with the seeds ${values.seedPrefix || 'seed'}-1, ${values.seedPrefix || 'seed'}-2, … ${values.seedPrefix || 'seed'}-${seedCount || 'k'}`} />
           </div>
           <p className="mt-3 text-xs text-ink-soft">
             <span className="figures">{cells}</span> sprinkling{cells === 1 ? '' : 's'} (at most {STUDY_MAX_CELLS}). Each costs one dense eigendecomposition of N × N.
