@@ -2,6 +2,7 @@ import type { RegionSpec } from '@shared/vacuum';
 import { BitRelation, causalMatrix } from '../engine/order';
 import { RelationCycleError, transitiveClosure } from '../engine/orderAlgorithms';
 import { makeRegion } from '../engine/regions';
+import { centredDiamondOfReach, centredDiamondReach, recordedRegion, regionProposalText } from '@shared/regionProposal';
 
 /**
  * Parsing and validation of uploaded causal sets (pure: bytes in, typed arrays out, no I/O).
@@ -48,6 +49,10 @@ class ProblemList {
     }
     const where = row === null ? '' : column === null ? `row ${row}: ` : `row ${row}, column ${column}: `;
     this.items.push({ row, column, message: where + what });
+  }
+  /** A closing note after the listed rows (how to fix them all), kept even when the list is full. */
+  hint(what: string): void {
+    this.items.push({ row: null, column: null, message: what });
   }
   get full(): boolean {
     return this.items.length >= MAX_PROBLEMS;
@@ -211,6 +216,7 @@ export function parseCoordinatesCsv(
   const seen = new Map<string, number>();
   const event = new Float64Array(dimension);
   let next = -1;
+  let outside = false;
   forEachContentLine(text, (row, line) => {
     const e = next++;
     if (e < 0) return true; // the header
@@ -240,12 +246,31 @@ export function parseCoordinatesCsv(
     }
     seen.set(key, row);
     if (region && !region.contains(event)) {
+      outside = true;
       problems.add(row, null, `the point (${formatEvent(columns, event)}) lies outside the stated region (${options.region!.kind})`);
     }
     return true;
   });
+  if (outside) problems.hint(regionHint(text, dimension, options.region!));
   problems.throwIfAny();
   return { dimension, columns, n, points };
+}
+
+/**
+ * What to say when points fall outside the stated region: the region the file records (a `tacet
+ * sprinkle` file), else the smallest centred diamond holding every readable point.
+ */
+function regionHint(text: string, dimension: 2 | 4, stated: RegionSpec): string {
+  const recorded = recordedRegion(text);
+  if (recorded && JSON.stringify(recorded) !== JSON.stringify(stated)) return `the file records the region it was made in: ${regionProposalText(recorded)}; import it with that region`;
+  let reach = 0;
+  let header = true;
+  forEachContentLine(text, (_row, line) => {
+    if (header) return void (header = false);
+    const values = splitCells(line).map(readNumber);
+    if (values.length === dimension && values.every((v) => typeof v === 'number')) reach = Math.max(reach, centredDiamondReach(values as number[], dimension));
+  });
+  return `every point lies inside ${regionProposalText(centredDiamondOfReach(reach, dimension))}, the smallest centred diamond holding them; import with that region, or scale by a density instead`;
 }
 
 function formatEvent(columns: string[], event: ArrayLike<number>): string {

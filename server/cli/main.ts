@@ -17,6 +17,7 @@ import {
   type SubregionSpec,
 } from '@shared/vacuum';
 import { findRegionDescriptor, regionDescriptors, regionKinds } from '@shared/regions';
+import { regionCommentLine } from '@shared/regionProposal';
 import { commandHelp, commandNames, OVERVIEW_HELP, type CommandName } from './help';
 import { computeVacuum, EngineInputError, engineRequests, type EngineRequest, type EntropyResult, type VacuumRequest, type VacuumResult } from '../engine/index';
 import { sprinkle } from '../engine/sprinkle';
@@ -122,9 +123,10 @@ export function readPointsCsv(path: string): { points: Float64Array; dimension: 
   return { points, dimension };
 }
 
-function pointsCsv(points: Float64Array, dimension: 2 | 4): string {
+/** The sprinkled points as CSV, the region they fill recorded in a first `#` line so an import can propose it. */
+function pointsCsv(points: Float64Array, dimension: 2 | 4, region: RegionSpec): string {
   const header = dimension === 2 ? 't,x' : 't,x,y,z';
-  const rows: string[] = [header];
+  const rows: string[] = [regionCommentLine(region), header];
   // String(v) is the shortest text that parses back to the same double, so the file round-trips exactly
   for (let i = 0; i < points.length / dimension; i++) rows.push(Array.from(points.subarray(i * dimension, (i + 1) * dimension), String).join(','));
   return rows.join('\n') + '\n';
@@ -170,7 +172,7 @@ function runSprinkle(args: string[], io: Io): void {
   const prng = (values.prng as string | undefined) ?? 'arc4';
   if (!['arc4', 'alea', 'xor4096'].includes(prng)) throw new UsageError(`--prng must be arc4, alea or xor4096, got "${prng}"`);
   const s = sprinkle({ region, process: poisson ? 'poisson' : 'fixed', count, density, seed: values.seed as string, prng: prng as 'arc4' });
-  const csv = pointsCsv(s.points, s.dimension);
+  const csv = pointsCsv(s.points, s.dimension, region);
   const summary = { N: s.count, dimension: s.dimension, density: s.density, volume: s.volume, region, ...s.provenance };
   if (values.out !== undefined) {
     writeFileSync(values.out as string, csv);

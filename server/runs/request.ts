@@ -14,6 +14,18 @@ export interface CausalSetReference {
 }
 
 /**
+ * The region kind whose continuum a run's spectrum is compared with: the sprinkled region's, or the
+ * region an imported set of coordinates was declared with (its elements are taken to fill it
+ * uniformly, as a sprinkling would); null for an imported set without one (a relation list, or
+ * coordinates scaled by a density alone).
+ */
+export function continuumRegionKind(rowRegionKind: string, request: Pick<StoredRunRequest, 'causalSet'>): string | null {
+  if (rowRegionKind !== 'imported') return rowRegionKind;
+  const set = request.causalSet;
+  return set && set.kind === 'coordinates' && set.region ? set.region.kind : null;
+}
+
+/**
  * The request stored with a run. A fresh run keeps the validated POST body; a re-analysis keeps its
  * own settings, the parent's sprinkling (for provenance and the region) and `reusedPoints`, and
  * carries the parent's points in its own row.

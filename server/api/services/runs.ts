@@ -21,7 +21,7 @@ import { EngineInputError, makeRegion, validateVacuumRequest, type VacuumRequest
 import { subregionElements } from '../../engine/entropy';
 import { continuumSpectrumFor } from '../../engine/regions';
 import { discardJob, enqueueJob, vacuumRunJobId } from '../../queue/jobs';
-import { toEngineRequest, type StoredRunRequest } from '../../runs/request';
+import { continuumRegionKind, toEngineRequest, type StoredRunRequest } from '../../runs/request';
 import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
 import { entropiesExport } from '../../exports/runs';
 import type { TeamContext } from '../context';
@@ -165,7 +165,8 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   }
 
   function continuumFor(row: RunWithAuthor, count: number): number[] | null {
-    const continuum = row.n ? continuumSpectrumFor(row.regionKind, row.n, count) : null;
+    const kind = continuumRegionKind(row.regionKind, row.request as unknown as StoredRunRequest);
+    const continuum = row.n && kind ? continuumSpectrumFor(kind, row.n, count) : null;
     return continuum ? Array.from(continuum) : null;
   }
 
