@@ -94,33 +94,11 @@ function regionFromOptions(values: Record<string, string | boolean | undefined>)
   return parsed.data;
 }
 
-/** Points CSV with header t,x or t,x,y,z; every field a finite number. */
+/** Points CSV with header t,x or t,x,y,z (the dimensions a field is computed in); every field a finite number. */
 export function readPointsCsv(path: string): { points: Float64Array; dimension: 2 | 4 } {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (error) {
-    throw new UsageError(`cannot read points file ${path}: ${(error as NodeJS.ErrnoException).code ?? (error as Error).message}`);
-  }
-  const lines = text.split(/\r?\n/).filter((line) => line.trim() !== '');
-  if (lines.length === 0) throw new UsageError(`${path} is empty; expected a header t,x or t,x,y,z`);
-  const header = lines[0].split(',').map((h) => h.trim().toLowerCase());
-  const dimension = header.join(',') === 't,x' ? 2 : header.join(',') === 't,x,y,z' ? 4 : null;
-  if (dimension === null) throw new UsageError(`${path}: header must be t,x (2D) or t,x,y,z (4D), got "${lines[0].trim()}"`);
-  const points = new Float64Array((lines.length - 1) * dimension);
-  for (let row = 1; row < lines.length; row++) {
-    const fields = lines[row].split(',');
-    if (fields.length !== dimension) {
-      throw new UsageError(`${path} line ${row + 1}: expected ${dimension} columns (${header.join(',')}), got ${fields.length}`);
-    }
-    fields.forEach((field, k) => {
-      const v = field.trim() === '' ? Number.NaN : Number(field);
-      if (!Number.isFinite(v)) throw new UsageError(`${path} line ${row + 1}: ${header[k]} is not a finite number ("${field.trim()}")`);
-      points[(row - 1) * dimension + k] = v;
-    });
-  }
-  if (lines.length - 1 < 2) throw new UsageError(`${path} holds ${lines.length - 1} point(s); at least 2 are needed`);
-  return { points, dimension };
+  const { points, dimension, header } = readPointsOfAnyDimension(path);
+  if (header !== 't,x' && header !== 't,x,y,z') throw new UsageError(`${path}: header must be t,x (2D) or t,x,y,z (4D), got "${header}"`);
+  return { points, dimension: dimension as 2 | 4 };
 }
 
 /** The sprinkled points as CSV, the region they fill recorded in a first `#` line so an import can propose it. */
@@ -412,7 +390,7 @@ function optionOfField(field: string): string | null {
 }
 
 /** Points of any dimension: a header t then one or more space columns; every field a finite number. */
-function readPointsOfAnyDimension(path: string): { points: Float64Array; dimension: number } {
+function readPointsOfAnyDimension(path: string): { points: Float64Array; dimension: number; header: string } {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
@@ -435,7 +413,7 @@ function readPointsOfAnyDimension(path: string): { points: Float64Array; dimensi
     });
   }
   if (lines.length - 1 < 2) throw new UsageError(`${path} holds ${lines.length - 1} point(s); at least 2 are needed`);
-  return { points, dimension };
+  return { points, dimension, header: header.join(',') };
 }
 
 /** `tacet inspect`: counts and dimension estimators of a causal set (server/engine/manifoldLikeness.ts). */
