@@ -149,7 +149,7 @@ export interface RegionFieldText {
 /** The wording of each field in the run form; other forms change some of it (RegionFieldWording). */
 export const regionFieldTexts: Record<RegionFieldKey, RegionFieldText> = {
   properTime: { label: 'Proper time T', hint: 'Between the tips, at t = ±T/2.', invalid: 'The proper time between the tips is a positive number.' },
-  circumference: { label: 'Circumference', hint: 'x is periodic; T > circumference wraps.', invalid: 'The circumference is a positive number.' },
+  circumference: { label: 'Circumference', hint: 'C; x is periodic, a diamond with T > C wraps around.', invalid: 'The circumference is a positive number.' },
   tMin: { label: 't min' },
   tMax: { label: 't max' },
   xMin: { label: 'x min' },
@@ -195,11 +195,11 @@ export interface RegionDescriptor<K extends RegionKind = RegionKind> {
   readonly defaults: Readonly<Partial<Record<RegionFieldKey, string>>>;
   /** the field a form shows the region's own refinement at (a rule over several fields), if not at the kind */
   readonly refinementField?: RegionFieldKey;
-  /** short text for tables and pickers: "2D diamond, τ = 2" */
+  /** short text for tables and pickers: "2D diamond, T = 2" */
   text(spec: RegionSpecOf<K>): string;
   /** the label with the sizes, for a run's settings: "2D causal diamond, T = 2" */
   settingsText(spec: RegionSpecOf<K>): string;
-  /** a noun phrase in LaTeX for a methods paragraph: "a 2D causal diamond of proper time $L = 2$" */
+  /** a noun phrase in LaTeX for a methods paragraph: "a 2D causal diamond of proper time $T = 2$" */
   latex(spec: RegionSpecOf<K>): string;
   /** the boundary drawn behind the points in (x, t); null where no outline applies */
   outline(spec: RegionSpecOf<K>): Outline | null;
@@ -250,7 +250,7 @@ const centredOutline = (h: number): Outline => ({ x: [0, h, 0, -h, 0], y: [-h, 0
 const coordinates = (e: Event): number[] => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]);
 const toEvent = (c: number[]): Event => (c.length === 4 ? { t: c[0]!, x: c[1]!, y: c[2]!, z: c[3]! } : { t: c[0]!, x: c[1]! });
 
-/** Tips scaled by f about the centre of the given tips: a concentric diamond with proper time f·τ. */
+/** Tips scaled by f about the centre of the given tips: a concentric diamond with proper time f·T. */
 export function concentricTips(tips: DiamondTips, fraction: number): DiamondTips {
   const p = coordinates(tips.past);
   const q = coordinates(tips.future);
@@ -280,19 +280,19 @@ const diamond2d: RegionDescriptor<'diamond2d'> = {
   kind: 'diamond2d',
   schema: diamond2dRegionSchema,
   label: '2D causal diamond',
-  description: '2D causal diamond, tips at (±τ/2, 0)',
+  description: '2D causal diamond, tips at (±T/2, 0)',
   dimension: 2,
   periodic: false,
   fields: ['properTime'],
   defaults: { properTime: '2' },
   text: (r) =>
     r.properTime !== undefined
-      ? `2D diamond, τ = ${short(r.properTime)}`
+      ? `2D diamond, T = ${short(r.properTime)}`
       : `2D diamond (${short(r.past!.t)}, ${short(r.past!.x)}) → (${short(r.future!.t)}, ${short(r.future!.x)})`,
   settingsText: (r) => (typeof r.properTime === 'number' ? `${diamond2d.label}, T = ${r.properTime}` : diamond2d.label),
   latex: (r) =>
     r.properTime !== undefined
-      ? `a 2D causal diamond of proper time $L = ${r.properTime}$`
+      ? `a 2D causal diamond of proper time $T = ${r.properTime}$`
       : `the 2D causal diamond between $(t,x) = (${r.past!.t}, ${r.past!.x})$ and $(${r.future!.t}, ${r.future!.x})$`,
   outline: (r) => (typeof r.properTime === 'number' ? centredOutline(r.properTime / 2) : r.past && r.future ? diamondOutline(r.past, r.future) : null),
   ownDiamond: (r) => (r.properTime !== undefined ? centredTips(r.properTime, 2) : { past: r.past!, future: r.future! }),
@@ -322,9 +322,9 @@ const cylinder2d: RegionDescriptor<'cylinder2d'> = {
   periodic: true,
   fields: ['properTime', 'circumference'],
   defaults: { properTime: '2', circumference: '4' },
-  text: (r) => `cylinder diamond, τ = ${short(r.properTime)}, L = ${short(r.circumference)}`,
-  settingsText: (r) => `${cylinder2d.label}, T = ${r.properTime}, circumference ${r.circumference}`,
-  latex: (r) => `a causal diamond of proper time $L = ${r.properTime}$ on the cylinder of circumference ${r.circumference}`,
+  text: (r) => `cylinder diamond, T = ${short(r.properTime)}, C = ${short(r.circumference)}`,
+  settingsText: (r) => `${cylinder2d.label}, T = ${r.properTime}, circumference C = ${r.circumference}`,
+  latex: (r) => `a causal diamond of proper time $T = ${r.properTime}$ on the cylinder of circumference $C = ${r.circumference}$`,
   outline: (r) => {
     const h = r.properTime / 2;
     const c = r.circumference / 2;
@@ -385,14 +385,14 @@ const diamond4d: RegionDescriptor<'diamond4d'> = {
   kind: 'diamond4d',
   schema: diamond4dRegionSchema,
   label: '4D causal diamond',
-  description: '4D causal diamond, tips at (±τ/2, 0⃗)',
+  description: '4D causal diamond, tips at (±T/2, 0⃗)',
   dimension: 4,
   periodic: false,
   fields: ['properTime'],
   defaults: { properTime: '2' },
-  text: (r) => `4D diamond, τ = ${short(r.properTime)}`,
+  text: (r) => `4D diamond, T = ${short(r.properTime)}`,
   settingsText: (r) => `${diamond4d.label}, T = ${r.properTime}`,
-  latex: (r) => `a 4D causal diamond of proper time $L = ${r.properTime}$`,
+  latex: (r) => `a 4D causal diamond of proper time $T = ${r.properTime}$`,
   outline: () => null,
   ownDiamond: (r) => centredTips(r.properTime, 4),
   defaultSubDiamond: (r) => concentricTips(centredTips(r.properTime, 4), 0.5),

@@ -40,6 +40,6 @@ describe('import form', () => {
     expect(sniffFile('2,1\n')).toMatchObject({ kind: 'relations', countGuess: 3 });
     expect(sniffFile('a,b\n')).toMatchObject({ kind: null, dimension: null });
     expect(nameFromFileName('C:\\data\\sprinkling-7.csv')).toBe('sprinkling-7');
-    expect(describeRegion({ kind: 'diamond2d', properTime: 2 * Math.SQRT2 })).toBe('2D diamond, τ = 2.82843');
+    expect(describeRegion({ kind: 'diamond2d', properTime: 2 * Math.SQRT2 })).toBe('2D diamond, T = 2.82843');
   });
 });
