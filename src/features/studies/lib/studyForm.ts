@@ -32,6 +32,18 @@ function tipsOfDimension(dimension: 2 | 4): string {
   return tipsLine(regionDefaultSubDiamond(regionSpecSchema.parse(regionFromFieldText({ regionKind: kind, ...regionFieldDefaults() }))));
 }
 
+/**
+ * The tips line of the region the form now describes, its own default sub-diamond (the registry's
+ * `defaultSubDiamond`: a de Sitter diamond lies at η < 0), or null while its fields do not parse.
+ */
+export function tipsForStudyRegion(values: RegionFieldValues): string | null {
+  const region = regionSpecSchema.safeParse(regionFromFieldText(values));
+  return region.success ? tipsLine(regionDefaultSubDiamond(region.data)) : null;
+}
+
+/** Why a region offers the massless field only (the de Sitter kinds), or null. */
+export const studyMasslessOnlyReason = (kind: RegionKind): string | null => regionDescriptors[kind].massiveField?.reason ?? null;
+
 /** The sub-diamond tips the form starts from, per dimension. */
 export const defaultTips = { 2: tipsOfDimension(2), 4: tipsOfDimension(4) } as const;
 

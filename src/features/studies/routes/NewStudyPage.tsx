@@ -22,7 +22,9 @@ import {
   formFieldOf,
   offersConcentric,
   parseNumberList,
+  studyMasslessOnlyReason,
   studyRequestFrom,
+  tipsForStudyRegion,
   type StudyFormValues,
 } from '../lib/studyForm';
 
@@ -55,7 +57,9 @@ export function NewStudyPage() {
       ...v,
       regionKind,
       subregionKind: !offersConcentric(regionKind) && (v.subregionKind === 'concentric' || v.subregionKind === 'pairs') ? 'tips' : v.subregionKind,
-      tips: v.tips === defaultTips[regionDimension(v.regionKind)] ? defaultTips[regionDimension(regionKind)] : v.tips,
+      // untouched tips follow the region's own default sub-diamond (a de Sitter diamond lies at η < 0)
+      tips: v.tips === defaultTips[regionDimension(v.regionKind)] || v.tips === tipsForStudyRegion(v) ? (tipsForStudyRegion({ ...v, regionKind }) ?? v.tips) : v.tips,
+      ...(studyMasslessOnlyReason(regionKind) ? { mass: '0' } : {}),
     }));
 
   const counts = parseNumberList(values.counts).filter(Number.isFinite);
@@ -231,7 +235,7 @@ export function NewStudyPage() {
               {values.doubleTruncated && <RestrictedCutFields value={values.restrictedCut} onChange={(v) => set('restrictedCut', v)} error={errors.restrictedCut} />}
               {errors.untruncated && <p className="text-xs text-danger" role="alert">{errors.untruncated}</p>}
             </div>
-            <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} hint="0 for the massless field" />
+            <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} disabled={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) !== null} hint={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) ? `Massless only here: ${studyMasslessOnlyReason(values.regionKind)}` : '0 for the massless field'} />
           </div>
           <div className="mt-6 max-w-md">
             <RenyiOrdersField value={values.renyi} onChange={(text) => set('renyi', text)} error={errors.renyi} />
