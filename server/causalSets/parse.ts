@@ -31,8 +31,15 @@ export class CausalSetFileError extends Error {
     readonly problems: FileProblem[],
     /** problems found beyond those listed (scanning stops after MAX_PROBLEMS) */
     readonly more = 0,
+    /** how to fix them all, listed last among `problems` and not counted as one */
+    note?: string,
   ) {
-    super(problems.length === 0 ? 'the file is not a valid causal set' : problems[0].message + (problems.length + more > 1 ? ` (and ${problems.length + more - 1} more problem${problems.length + more > 2 ? 's' : ''})` : ''));
+    const count = problems.length - (note ? 1 : 0) + more;
+    super(
+      problems.length === 0
+        ? 'the file is not a valid causal set'
+        : problems[0].message + (count > 1 ? ` (and ${count - 1} more problem${count > 2 ? 's' : ''})` : '') + (note ? `; ${note}` : ''),
+    );
   }
 }
 
@@ -52,13 +59,14 @@ class ProblemList {
   }
   /** A closing note after the listed rows (how to fix them all), kept even when the list is full. */
   hint(what: string): void {
-    this.items.push({ row: null, column: null, message: what });
+    this.note = what;
   }
+  private note: string | undefined;
   get full(): boolean {
     return this.items.length >= MAX_PROBLEMS;
   }
   throwIfAny(code: FileErrorCode = 'invalid_file'): void {
-    if (this.items.length) throw new CausalSetFileError(code, this.items, this.more);
+    if (this.items.length) throw new CausalSetFileError(code, this.note ? [...this.items, { row: null, column: null, message: this.note }] : this.items, this.more, this.note);
   }
 }
 

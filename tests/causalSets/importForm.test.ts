@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { causalSetMetadataSchema, describeRegion, metadataFromFormFields, metadataToFormFields } from '@shared/causalSets';
-import { defaultImportForm, metadataFromForm, nameFromFileName, sniffFile } from '../../src/features/causalSets/lib/importForm';
+import { defaultImportForm, formWithRegion, metadataFromForm, nameFromFileName, sniffFile } from '../../src/features/causalSets/lib/importForm';
 
 describe('import form', () => {
   it('builds coordinates metadata with a region or a density, and relation metadata with count and dimension', () => {
@@ -41,5 +41,21 @@ describe('import form', () => {
     expect(sniffFile('a,b\n')).toMatchObject({ kind: null, dimension: null });
     expect(nameFromFileName('C:\\data\\sprinkling-7.csv')).toBe('sprinkling-7');
     expect(describeRegion({ kind: 'diamond2d', properTime: 2 * Math.SQRT2 })).toBe('2D diamond, T = 2.82843');
+  });
+});
+
+describe('the region the import form proposes', () => {
+  it('the recorded region wins over the points (a tacet sprinkle file)', () => {
+    const sniff = sniffFile('# tacet region {"kind":"diamond2d","properTime":2}\nt,x\n0,0.1\n0.2,0.3\n');
+    expect(sniff.proposal).toEqual({ region: { kind: 'diamond2d', properTime: 2 }, from: 'recorded' });
+  });
+
+  it('else the smallest centred diamond of the points; accepting it fills the form (worked example)', () => {
+    // worked by hand: |t| + |x| is at most 0.7, at (−0.6, 0.1); 1.4 leaves it on the open diamond's boundary, so T = 1.5
+    const sniff = sniffFile('t,x\n0,0.5\n0.3,-0.2\n-0.6,0.1\n');
+    expect(sniff.proposal).toEqual({ region: { kind: 'diamond2d', properTime: 1.5 }, from: 'points' });
+    const form = formWithRegion({ ...defaultImportForm(), scale: 'density' }, sniff.proposal!.region);
+    expect(form).toMatchObject({ regionKind: 'diamond2d', properTime: '1.5', scale: 'region' });
+    expect(sniffFile('i,j\n0,1\n').proposal).toBeNull();
   });
 });

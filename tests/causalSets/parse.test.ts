@@ -78,7 +78,10 @@ describe('coordinates CSV', () => {
     const region = { kind: 'diamond2d', properTime: 2 } as const;
     expect(parseCoordinatesCsv('t,x\n0,0.99\n0.5,-0.49\n', { region, limit }).n).toBe(2);
     const e = fileError(() => parseCoordinatesCsv('t,x\n0,0.99\n0.5,0.51\n', { region, limit }));
-    expect(e.message).toBe('row 3: the point (t = 0.5, x = 0.51) lies outside the stated region (diamond2d)');
+    // and the message names the region that would hold the file: |t| + |x| reaches 1.01, so T > 2.02, 2.1 at two figures (by hand)
+    expect(e.message).toBe(
+      'row 3: the point (t = 0.5, x = 0.51) lies outside the stated region (diamond2d); every point lies inside 2D causal diamond, T = 2.1 (diamond2d, properTime 2.1), the smallest centred diamond holding them; import with that region, or scale by a density instead',
+    );
     const four = fileError(() => parseCoordinatesCsv('t,x\n0,0\n0.1,0\n', { region: { kind: 'diamond4d', properTime: 2 }, limit }));
     expect(four.message).toMatch(/header is 2D but the region diamond4d is 4D/);
   });

@@ -1,5 +1,7 @@
 import { causalSetMetadataSchema, type CausalSetKind, type CausalSetMetadata } from '@shared/causalSets';
 import { defaultRegionKind, regionDescriptors, regionFieldKeys, regionFromFieldText, type RegionFieldValues } from '@shared/regions';
+import { recordedRegion, smallestCentredDiamond } from '@shared/regionProposal';
+import type { RegionSpec } from '@shared/vacuum';
 import { parseNumber, validate, type FieldErrors } from '../../../lib/forms';
 
 /** The import form as typed: every number is text until submitted. */
@@ -81,6 +83,32 @@ export interface FileSniff {
   /** the first lines, for showing beside the form */
   head: string[];
   rows: number;
+  /** coordinates: the region the form proposes for the file, null when it cannot tell */
+  proposal: RegionProposal | null;
+}
+
+/** The region proposed for a file: the one `tacet sprinkle` recorded in it, else the smallest centred diamond holding its points. */
+export interface RegionProposal {
+  region: RegionSpec;
+  from: 'recorded' | 'points';
+}
+
+/** The recorded region wins; else every readable row's point goes into the smallest centred diamond (a row that is no point is left to the server's check). */
+export function proposeRegion(text: string, dimension: 2 | 4, dataLines: string[]): RegionProposal | null {
+  const recorded = recordedRegion(text);
+  if (recorded) return { region: recorded, from: 'recorded' };
+  const points: number[] = [];
+  for (const line of dataLines) {
+    const values = line.split(',').map((cell) => Number(cell.replace(/"/g, '').trim()));
+    if (values.length === dimension && values.every(Number.isFinite)) points.push(...values);
+  }
+  return points.length ? { region: smallestCentredDiamond(points, dimension), from: 'points' } : null;
+}
+
+/** The form with a region's kind and fields filled in (the proposal accepted). */
+export function formWithRegion(v: ImportFormValues, region: RegionSpec): ImportFormValues {
+  const fields = Object.fromEntries(regionFieldKeys.map((key) => [key, key in region ? String((region as Record<string, unknown>)[key]) : '']));
+  return { ...v, ...fields, regionKind: region.kind, scale: 'region' };
 }
 
 export function sniffFile(text: string): FileSniff {
@@ -101,5 +129,6 @@ export function sniffFile(text: string): FileSniff {
     }
     countGuess = max >= 0 ? max + 1 : null;
   }
-  return { kind, dimension, countGuess, head: lines.slice(0, 6), rows: Math.max(0, content.length - (kind === 'coordinates' || first === 'i,j' ? 1 : 0)) };
+  const proposal = kind === 'coordinates' && dimension !== null ? proposeRegion(text, dimension, content.slice(1)) : null;
+  return { kind, dimension, countGuess, head: lines.slice(0, 6), rows: Math.max(0, content.length - (kind === 'coordinates' || first === 'i,j' ? 1 : 0)), proposal };
 }

@@ -8,6 +8,7 @@ import { Button } from '../../../ui/Button';
 import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader, Section } from '../../../ui/Page';
 import { RegionFields } from '../../../ui/RegionFields';
+import { regionProposalText } from '@shared/regionProposal';
 import { Empty } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { useCausalSets, useUploadCausalSet } from '../api/causalSets';
@@ -18,6 +19,7 @@ import {
   metadataFromForm,
   nameFromFileName,
   sniffFile,
+  formWithRegion,
   type FileSniff,
   type ImportFormValues,
 } from '../lib/importForm';
@@ -208,6 +210,17 @@ export function ImportCausalSetPage() {
                     inputClassName="figures"
                     selectClassName="sm:col-span-2"
                   />
+                  {sniff?.proposal && (
+                    <p className="flex flex-wrap items-center gap-x-3 gap-y-1 text-sm text-ink-soft sm:col-span-2" aria-label="Region proposed from the file">
+                      <span>
+                        Proposed from the file{sniff.proposal.from === 'recorded' ? ' (the region it records)' : ' (the smallest centred diamond holding its points)'}:{' '}
+                        <span className="figures text-ink">{regionProposalText(sniff.proposal.region)}</span>
+                      </span>
+                      <Button variant="quiet" onClick={() => setValues((v) => formWithRegion(v, sniff.proposal!.region))}>
+                        Use this region
+                      </Button>
+                    </p>
+                  )}
                 </div>
               ) : (
                 <div className="max-w-xs">
