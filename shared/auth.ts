@@ -39,6 +39,7 @@ export const userSchema = z.object({
   email: z.string(),
   name: z.string(),
   notifyOnRunDone: z.boolean(),
+  notifyOnStudyDone: z.boolean(),
 });
 export type User = z.infer<typeof userSchema>;
 
@@ -59,4 +60,5 @@ export type MeResponse = z.infer<typeof meResponseSchema>;
 export const updateMeRequestSchema = z.strictObject({
   name: z.string().trim().min(1, 'Enter your name.').max(120, 'Use at most 120 characters.').optional(),
   notifyOnRunDone: z.boolean().optional(),
+  notifyOnStudyDone: z.boolean().optional(),
 });

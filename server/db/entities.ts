@@ -13,6 +13,7 @@ export interface UserRow {
   name: string;
   passwordHash: string;
   notifyOnRunDone: boolean;
+  notifyOnStudyDone: boolean;
   createdAt: Date;
 }
 
@@ -83,6 +84,7 @@ export const UserEntity = new EntitySchema<UserRow>({
     name: { type: 'text' },
     passwordHash: { type: 'text', name: 'password_hash' },
     notifyOnRunDone: { type: 'boolean', name: 'notify_on_run_done', default: true },
+    notifyOnStudyDone: { type: 'boolean', name: 'notify_on_study_done', default: true },
     createdAt,
   },
 });

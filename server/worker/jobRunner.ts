@@ -8,8 +8,10 @@ import type { WorkerContext } from './context';
 /** What the runner hands to `compute`: pass it on to runInEngineThread / runInThread. */
 export type ThreadHooks = Required<Pick<EngineThreadOptions, 'onProgress' | 'poll'>>;
 
-/** A message to the author of a run or study; sent only when their run e-mails are switched on. */
+/** A message to the author of a run or study; sent only when their e-mails of that kind are switched on. */
 export interface AuthorMail {
+  /** which of the author's switches decides: run e-mails unless said */
+  kind?: 'run' | 'study';
   authorId: string;
   teamId: string;
   /** "run <id>", for the log line when sending fails */
@@ -78,7 +80,8 @@ function throttledProgress<C>(job: Job, spec: ComputeJob<C, unknown>, claimed: C
 async function mailAuthor(context: WorkerContext, mail: AuthorMail | null): Promise<void> {
   if (!mail) return;
   const author = await users.findUserById(context.dataSource.manager, mail.authorId);
-  if (!author || !author.notifyOnRunDone) return;
+  const kind = mail.kind ?? 'run';
+  if (!author || !(kind === 'study' ? author.notifyOnStudyDone : author.notifyOnRunDone)) return;
   try {
     await context.mailer.send({
       to: author.email,
@@ -91,7 +94,7 @@ async function mailAuthor(context: WorkerContext, mail: AuthorMail | null): Prom
         '',
         `Open it: ${mail.link}`,
         '',
-        'You get these messages because run e-mails are switched on in your account settings.',
+        `You get these messages because ${kind} e-mails are switched on in your account settings.`,
       ].join('\n'),
     });
   } catch (error) {

@@ -76,4 +76,27 @@ describe('migrations', () => {
       await ds.destroy();
     }
   });
+
+  it('give study e-mails their own switch and keep each account’s one choice for both kinds', async () => {
+    const ds = createDataSource(database.url);
+    await ds.initialize();
+    try {
+      await runMigrations(ds);
+      const split = migrations.findIndex((m) => new m().name === 'NotifyStudyDone1765324800000');
+      for (let k = migrations.length - 1; k >= split; k--) await ds.undoLastMigration();
+      await ds.query(
+        `INSERT INTO users (email, name, password_hash, notify_on_run_done) VALUES ('on@migration.test', 'On', 'x', true), ('off@migration.test', 'Off', 'x', false)`,
+      );
+      await runMigrations(ds);
+      const rows: { email: string; notify_on_run_done: boolean; notify_on_study_done: boolean }[] = await ds.query(
+        `SELECT email, notify_on_run_done, notify_on_study_done FROM users WHERE email LIKE '%@migration.test' ORDER BY email`,
+      );
+      expect(rows).toEqual([
+        { email: 'off@migration.test', notify_on_run_done: false, notify_on_study_done: false },
+        { email: 'on@migration.test', notify_on_run_done: true, notify_on_study_done: true },
+      ]);
+    } finally {
+      await ds.destroy();
+    }
+  });
 });

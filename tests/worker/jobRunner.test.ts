@@ -5,14 +5,14 @@ import { AbandonedError } from '../../server/threads/engineThread';
 import type { WorkerContext } from '../../server/worker/context';
 import { runComputeJob, type ComputeJob, type ThreadHooks } from '../../server/worker/jobRunner';
 
-const author = { id: 'author-1', email: 'ada@example.org', name: 'Ada', notifyOnRunDone: true };
+const author = { id: 'author-1', email: 'ada@example.org', name: 'Ada', notifyOnRunDone: true, notifyOnStudyDone: true };
 
 /** A context whose database answers only the author lookup and whose mailer keeps what it sends. */
-function fakeContext(notify = true) {
+function fakeContext(notify = true, notifyStudies = notify) {
   const sent: { to: string; subject: string; text: string; teamId?: string | null }[] = [];
   const context = {
     config: { appUrl: 'http://tacet.test' },
-    dataSource: { manager: { findOneBy: async () => ({ ...author, notifyOnRunDone: notify }) } },
+    dataSource: { manager: { findOneBy: async () => ({ ...author, notifyOnRunDone: notify, notifyOnStudyDone: notifyStudies }) } },
     mailer: { send: async (mail: (typeof sent)[number]) => (sent.push(mail), { id: 'm' }) },
   } as unknown as WorkerContext;
   return { context, sent };
@@ -201,4 +201,34 @@ describe('the shared job runner', () => {
     expect(calls).toEqual(['cancelled']);
     expect(sent).toEqual([]);
   });
+
+describe('the e-mail switches, one per kind', () => {
+  const ok = async () => 7;
+  const studyMail = (s: ReturnType<typeof spec>) => {
+    const ended = s.job.ended;
+    s.job.ended = async (claimed, end) => {
+      const mail = await ended(claimed, end);
+      return mail ? { ...mail, kind: 'study' as const } : null;
+    };
+    return s;
+  };
+
+  it('mails a run only when run e-mails are on, whatever the study switch says', async () => {
+    for (const [runs, studies, expected] of [[true, false, 1], [false, true, 0]] as const) {
+      const { context, sent } = fakeContext(runs, studies);
+      await runComputeJob(fakeJob().job, context, spec(ok).job);
+      expect(sent).toHaveLength(expected);
+      if (expected) expect(sent[0]!.text).toContain('because run e-mails are switched on');
+    }
+  });
+
+  it('mails a study only when study e-mails are on, whatever the run switch says', async () => {
+    for (const [runs, studies, expected] of [[false, true, 1], [true, false, 0]] as const) {
+      const { context, sent } = fakeContext(runs, studies);
+      await runComputeJob(fakeJob().job, context, studyMail(spec(ok)).job);
+      expect(sent).toHaveLength(expected);
+      if (expected) expect(sent[0]!.text).toContain('because study e-mails are switched on');
+    }
+  });
+});
 });

@@ -115,7 +115,7 @@ export function createAuthService(deps: {
       };
     },
 
-    async updateMe(userId: string, changes: { name?: string; notifyOnRunDone?: boolean }): Promise<User> {
+    async updateMe(userId: string, changes: { name?: string; notifyOnRunDone?: boolean; notifyOnStudyDone?: boolean }): Promise<User> {
       await users.updateUser(dataSource.manager, userId, changes);
       const user = await users.findUserById(dataSource.manager, userId);
       if (!user) throw unauthorized();

@@ -4,7 +4,7 @@ import type { InvitationRow, UserRow } from '../../db/entities';
 import type { MemberWithUser } from '../../db/repositories/teams';
 
 export function toUser(row: UserRow): User {
-  return { id: row.id, email: row.email, name: row.name, notifyOnRunDone: row.notifyOnRunDone };
+  return { id: row.id, email: row.email, name: row.name, notifyOnRunDone: row.notifyOnRunDone, notifyOnStudyDone: row.notifyOnStudyDone };
 }
 
 export function toMember(row: MemberWithUser): Member {

@@ -6,6 +6,7 @@ import { RunRelations1764979200000 } from './1764979200000-run-relations';
 import { NotifyDefaultOn1765065600000 } from './1765065600000-notify-default-on';
 import { ApiTokens1765152000000 } from './1765152000000-api-tokens';
 import { StudyCausalSets1765238400000 } from './1765238400000-study-causal-sets';
+import { NotifyStudyDone1765324800000 } from './1765324800000-notify-study-done';
 
 /**
  * Every migration, oldest first. Add new ones at the end; never edit one that has shipped.
@@ -20,4 +21,5 @@ export const migrations = [
   NotifyDefaultOn1765065600000,
   ApiTokens1765152000000,
   StudyCausalSets1765238400000,
+  NotifyStudyDone1765324800000,
 ];

@@ -19,7 +19,7 @@ export async function insertUser(
 export async function updateUser(
   m: EntityManager,
   id: string,
-  values: Partial<Pick<UserRow, 'name' | 'notifyOnRunDone' | 'passwordHash'>>,
+  values: Partial<Pick<UserRow, 'name' | 'notifyOnRunDone' | 'notifyOnStudyDone' | 'passwordHash'>>,
 ): Promise<void> {
   if (Object.keys(values).length > 0) await m.update(UserEntity, { id }, values);
 }

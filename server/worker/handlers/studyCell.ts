@@ -54,6 +54,7 @@ async function closeStudy(context: WorkerContext, studyId: string): Promise<Auth
   if (!status || !study) return null;
   const name = study.title || study.id.slice(0, 8);
   return {
+    kind: 'study',
     authorId: study.authorId,
     teamId: study.teamId,
     about: `study ${study.id}`,

@@ -23,7 +23,7 @@ export function AccountPage() {
         <NameForm currentName={user.name} />
       </Section>
       <Section title="Notifications">
-        <NotificationSwitch enabled={user.notifyOnRunDone} />
+        <NotificationSwitches runs={user.notifyOnRunDone} studies={user.notifyOnStudyDone} />
       </Section>
       <Section title="Teams">
         <ul className="text-sm">
@@ -86,16 +86,27 @@ function NameForm({ currentName }: { currentName: string }) {
   );
 }
 
-function NotificationSwitch({ enabled }: { enabled: boolean }) {
+type NotificationKey = 'notifyOnRunDone' | 'notifyOnStudyDone';
+
+/** One switch per kind of e-mail; while a change is on its way the switch shows the value asked for. */
+function NotificationSwitches({ runs, studies }: { runs: boolean; studies: boolean }) {
   const updateMe = useUpdateMe();
+  const shown = (key: NotificationKey, stored: boolean) => (updateMe.isPending && updateMe.variables?.[key] !== undefined ? updateMe.variables[key] : stored);
   return (
-    <div className="flex max-w-xl flex-col gap-2">
+    <div className="flex max-w-xl flex-col gap-4">
       <Switch
         label="E-mail me when a run finishes"
-        description="One message per vacuum run or scaling study you started, when it completes or fails."
-        checked={updateMe.isPending && updateMe.variables?.notifyOnRunDone !== undefined ? updateMe.variables.notifyOnRunDone : enabled}
+        description="One message per vacuum run you started, when it completes or fails."
+        checked={shown('notifyOnRunDone', runs)}
         disabled={updateMe.isPending}
         onChange={(notifyOnRunDone) => updateMe.mutate({ notifyOnRunDone })}
+      />
+      <Switch
+        label="E-mail me when a study finishes"
+        description="One message per scaling study you started, when its last cell is computed or it ends with failed cells."
+        checked={shown('notifyOnStudyDone', studies)}
+        disabled={updateMe.isPending}
+        onChange={(notifyOnStudyDone) => updateMe.mutate({ notifyOnStudyDone })}
       />
       <FormError message={updateMe.error?.message} />
     </div>
