@@ -31,7 +31,8 @@ export function RunOnCausalSet({ set }: { set: CausalSetSummary }) {
   const [truncation, setTruncation] = useState<TruncationFormValues>(() => truncationToForm(defaultTruncationFor(set.dimension)));
   const [mass, setMass] = useState('0');
   const [subregion, setSubregion] = useState('');
-  const [doubleTruncation, setDoubleTruncation] = useState(false);
+  // on by default (Sorkin–Yazdi 2018): without the second cut a subregion's entropy on a causal set follows its volume, not its boundary
+  const [doubleTruncation, setDoubleTruncation] = useState(true);
   const [restrictedCut, setRestrictedCut] = useState<RestrictedCutFormValues>({ ...defaultRestrictedCutForm });
   const [renyi, setRenyi] = useState('');
   const [complement, setComplement] = useState(false);

@@ -7,6 +7,7 @@ import { Button } from '../../../ui/Button';
 import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { ManifoldLikenessPanel } from '../../../ui/ManifoldLikenessPanel';
 import { PageHeader, Section } from '../../../ui/Page';
+import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { isActive, useCancelRun, useDeleteRun, useRun } from '../api/runs';
@@ -43,6 +44,26 @@ export function RunPage() {
   return <RunView run={run.data} />;
 }
 
+/** The imported causal set a run was made on, by a link to it, with its region ("relation list, N elements" when it has none). */
+function ImportedSetLink({ run }: { run: RunDetail }) {
+  const set = (run.request as { causalSet?: { id: string; name: string; kind: 'coordinates' | 'relations'; N: number; region: unknown } } | null)?.causalSet;
+  if (!set) return null;
+  const region = regionSpecSchema.safeParse(set.region);
+  const where = region.success ? regionSettingsText(region.data) : set.kind === 'relations' ? `relation list, ${set.N} elements` : `coordinates, ${set.N} elements, scaled by a density`;
+  return (
+    <>
+      <span aria-hidden>·</span>
+      <span>
+        on imported set{' '}
+        <Link to={`/causal-sets/${set.id}`} className="text-accent hover:underline">
+          {set.name}
+        </Link>{' '}
+        ({where})
+      </span>
+    </>
+  );
+}
+
 function RunView({ run }: { run: RunDetail }) {
   const canCompute = useCan('compute');
   const result = run.result;
@@ -60,6 +81,7 @@ function RunView({ run }: { run: RunDetail }) {
             <span>{run.author.name}</span>
             <span aria-hidden>·</span>
             <span className="figures">{formatDateTime(run.createdAt)}</span>
+            <ImportedSetLink run={run} />
             {run.parentRunId && (
               <>
                 <span aria-hidden>·</span>
