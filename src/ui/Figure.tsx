@@ -1,3 +1,4 @@
+import { formatQuantity, type QuantityKind } from '@shared/precision';
 import { formatSignificant, splitDecimal } from '../lib/numbers';
 
 interface FigureProps {
@@ -6,13 +7,15 @@ interface FigureProps {
   /** width of the integer part and of the fraction, in characters of the mono face */
   whole?: number;
   fraction?: number;
+  /** what the value is: its digits then follow the one precision rule of shared/precision.ts */
+  kind?: QuantityKind;
 }
 
 /**
  * A number aligned on its decimal point: the integer part right-aligned in a fixed number of mono
  * characters, the fraction left-aligned after it, so every row of a column lines up.
  */
-export function Figure({ value, digits = 5, whole = 6, fraction = 9 }: FigureProps) {
+export function Figure({ value, digits = 5, whole = 6, fraction = 9, kind }: FigureProps) {
   if (value === null || value === undefined) {
     return (
       <span className="figures inline-flex whitespace-nowrap text-ink-faint">
@@ -21,7 +24,7 @@ export function Figure({ value, digits = 5, whole = 6, fraction = 9 }: FigurePro
       </span>
     );
   }
-  const formatted = Number.isInteger(value) && Math.abs(value) < 1e9 ? String(value) : formatSignificant(value, digits);
+  const formatted = kind !== undefined ? formatQuantity(value, kind) : Number.isInteger(value) && Math.abs(value) < 1e9 ? String(value) : formatSignificant(value, digits);
   const parts = splitDecimal(formatted);
   const exponentAt = parts.fraction.indexOf('×10^');
   return (

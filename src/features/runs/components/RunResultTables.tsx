@@ -1,3 +1,4 @@
+import { belowEntropyFloor, formatEntropy, formatQuantity } from '@shared/precision';
 import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import type { EntropyPart, RunDetail, RunResult } from '@shared/runs';
 import { effectiveRestrictedCut, entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
@@ -40,7 +41,7 @@ export function singleCutNote(entropy: { n: number }, wholeRegionModesKept: numb
  */
 export function restrictedCutRowText(restrictedCut: RestrictedCut | null, cutoff: number | undefined): string {
   if (!restrictedCut) return 'none (only the numerical kernel of iΔ_sub is dropped)';
-  const value = cutoff === undefined ? '' : ` = ${Number(cutoff.toPrecision(4))}`;
+  const value = cutoff === undefined ? '' : ` = ${formatQuantity(cutoff, 'cut')}`;
   return restrictedCut.rule === 'sqrtN' ? `√n/(4π)${value}` : restrictedCutText(restrictedCut);
 }
 
@@ -63,7 +64,7 @@ export function EntropyTable({
         <tbody>
           <Row label="Entanglement entropy S" note="Sorkin's spacetime entropy of the subregion">
             <span data-testid="entropy-S" data-value={entropy.S}>
-              <Figure value={entropy.S} digits={6} />
+              <EntropyFigure value={entropy.S} />
             </span>
           </Row>
           <Row label="Elements in the subregion n">
@@ -122,7 +123,7 @@ function PartCut({ part }: { part: EntropyPart }) {
   return (
     <span className="figures inline-flex flex-col items-end text-xs leading-tight">
       <span className="text-ink-soft">{rule}</span>
-      <span>{part.restrictedCut?.rule === 'lambda' ? '' : `= ${Number(part.cutoff.toPrecision(4))}`}</span>
+      <span>{part.restrictedCut?.rule === 'lambda' ? '' : `= ${formatQuantity(part.cutoff, 'cut')}`}</span>
     </span>
   );
 }
@@ -208,8 +209,8 @@ export function ComplementTable({ entropy, complement }: { entropy: Pick<NonNull
         <tbody>
           <tr className="border-b border-rule align-baseline">
             <th scope="row" className="py-1.5 pr-6 text-left font-normal text-ink-soft">S</th>
-            <td className="py-1.5 pl-4 text-right"><Figure value={entropy.S} digits={6} /></td>
-            <td className="py-1.5 pl-4 text-right"><Figure value={complement.S} digits={6} /></td>
+            <td className="py-1.5 pl-4 text-right"><EntropyFigure value={entropy.S} /></td>
+            <td className="py-1.5 pl-4 text-right"><EntropyFigure value={complement.S} /></td>
           </tr>
           <tr className="border-b border-rule align-baseline">
             <th scope="row" className="py-1.5 pr-6 text-left font-normal text-ink-soft">n</th>
@@ -276,7 +277,7 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
           </Row>
         )}
         <Row label="Cut λc">
-          <Figure value={result.cutoff} />
+          <Figure value={result.cutoff} kind="cut" />
         </Row>
         <Row label="Modes kept" note={`of ${result.eigenvalues.length} positive eigenvalues`}>
           <Figure value={result.modesKept} />
@@ -389,4 +390,10 @@ export function SettingsTable({ run }: { run: RunDetail }) {
       </tbody>
     </table>
   );
+}
+
+/** An entropy by the precision rule: a pure state's rounding reads as zero below the floor, not as digits of noise. */
+function EntropyFigure({ value }: { value: number }) {
+  if (belowEntropyFloor(value)) return <span className="figures text-xs" data-testid="entropy-floor">{formatEntropy(value)}</span>;
+  return <Figure value={value} kind="entropy" />;
 }

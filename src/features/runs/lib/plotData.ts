@@ -1,3 +1,4 @@
+import { formatQuantity } from '@shared/precision';
 import { diamondOutline, regionOutlineOf, regionSpecSchema } from '@shared/regions';
 import type { RunPoints, RunResult } from '@shared/runs';
 import { renyiLabel, sortedRenyiOrders, type RenyiOrder } from '@shared/vacuum';
@@ -80,7 +81,7 @@ export function spectrumTraces(
   }
   if (result.cutoff > 0 && all.length > 0) {
     traces.push({
-      name: `cut λc = ${formatPlotNumber(result.cutoff)}`,
+      name: `cut λc = ${formatQuantity(result.cutoff, 'cut')}`,
       type: 'scatter',
       mode: 'lines',
       x: [1, all.length],
