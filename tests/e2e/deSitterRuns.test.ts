@@ -11,7 +11,16 @@ describe('a de Sitter run in the browser', () => {
   it('is set up, computed and shown', async () => {
     const page = await signIn(running, 'tomas.okafor@tacet.example');
     await page.goto(`${running.baseUrl}/runs/new`);
+    // the global slab has an observer's horizons: one click fills the tips with (T, θ) = (∓π/2, 0) (server/engine/README.md §17)
+    await page.getByLabel('Region', { exact: true }).selectOption('deSitterSlab2d');
+    await page.getByLabel('Compute the entanglement entropy of a subregion').check();
+    await page.getByRole('button', { name: 'Horizon-bounded part' }).click();
+    expect(Number(await page.getByLabel('past t').first().inputValue())).toBeCloseTo(-Math.PI / 2, 4);
+    expect(Number(await page.getByLabel('future t').first().inputValue())).toBeCloseTo(Math.PI / 2, 4);
+    await screenshot(page, 'de-sitter-00-horizon-part');
     await page.getByLabel('Region', { exact: true }).selectOption('deSitterDiamond2d');
+    // a Poincaré diamond has no horizon-bounded part to offer
+    await expect(page.getByRole('button', { name: 'Horizon-bounded part' }).count()).resolves.toBe(0);
     await expect(page.getByLabel('Past tip η₀').inputValue()).resolves.toBe(regionDescriptors.deSitterDiamond2d.defaults.etaPast);
     await expect(page.getByLabel('Mass m').isDisabled()).resolves.toBe(true);
     await page.getByLabel('Compute the entanglement entropy of a subregion').check();
