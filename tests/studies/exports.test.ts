@@ -96,6 +96,15 @@ describe('LaTeX table', () => {
     expect(escapeLatex('a\\b')).toBe('a\\textbackslash{}b');
   });
 
+  it('names each rule once in the caption', () => {
+    const caption = /\\caption\{(.*)\}\n/.exec(tex)![1]!;
+    expect(caption).not.toMatch(/untruncated \(untruncated/);
+    expect(caption).not.toMatch(/double-truncated \(double-truncated/);
+    expect(caption).toContain('Rules: untruncated; double-truncated (state');
+    const sentences = caption.split(/(?<=\.) /).filter((t) => t.length > 20);
+    expect(new Set(sentences).size).toBe(sentences.length);
+  });
+
   it('rounds a value to the decimal place of its two-digit uncertainty', () => {
     expect(formatWithUncertainty(1.86431, 0.03124)).toBe('1.864 \\pm 0.031');
     expect(formatWithUncertainty(123.456, 4.2)).toBe('123.5 \\pm 4.2');

@@ -6,4 +6,5 @@ describe('LaTeX wording', () => {
     expect(escapeLatex('cut at √N/(4π), restricted at √n/4π')).toBe('cut at $\\sqrt{N}$/(4$\\pi$), restricted at $\\sqrt{n}$/4$\\pi$');
     expect(escapeLatex('√N')).not.toContain('surd');
   });
+
 });

@@ -8,9 +8,15 @@ function latexRule(rule: string): string {
   return `\\texttt{${escapeLatex(rule)}}`;
 }
 
-/** A rule in the caption: its key and its label, which names the restricted cut of double truncation. */
+/**
+ * A rule in the caption: its column name and its label, which names the restricted cut of double
+ * truncation; once only when the label already starts with the column name ("untruncated", not
+ * "untruncated (untruncated)").
+ */
 function latexRuleDescription(rule: StudyRule): string {
-  return `${latexRule(studyRuleKey(rule))} (${escapeLatex(studyRuleLabel(rule))})`;
+  const column = latexRule(studyRuleKey(rule));
+  const label = escapeLatex(studyRuleLabel(rule));
+  return label.startsWith(column) ? label : `${column} (${label})`;
 }
 
 function seedList(seeds: string[]): string {
