@@ -105,9 +105,10 @@ describe('LaTeX table', () => {
     expect(new Set(sentences).size).toBe(sentences.length);
   });
 
-  it('rounds a value to the decimal place of its two-digit uncertainty', () => {
-    expect(formatWithUncertainty(1.86431, 0.03124)).toBe('1.864 \\pm 0.031');
-    expect(formatWithUncertainty(123.456, 4.2)).toBe('123.5 \\pm 4.2');
+  it('rounds a value to the decimal place of its uncertainty by the precision rule (two digits for a leading 1 or 2, else one)', () => {
+    expect(formatWithUncertainty(1.86431, 0.03124)).toBe('1.86 \\pm 0.03');
+    expect(formatWithUncertainty(1.86431, 0.01724)).toBe('1.864 \\pm 0.017');
+    expect(formatWithUncertainty(123.456, 4.2)).toBe('123 \\pm 4');
     expect(formatWithUncertainty(57.3, 12)).toBe('57 \\pm 12');
     expect(formatWithUncertainty(0.123456, null)).toBe('0.1235');
   });

@@ -1,3 +1,4 @@
+import { formatWithError } from '@shared/precision';
 import type { CreateStudyRequest, ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyEntropy, StudyFit, StudyStatus } from '@shared/studies';
 import { regionDimension, regionLatex } from '@shared/regions';
 import { ruleCautions, type RegionSpec } from '@shared/vacuum';
@@ -69,15 +70,9 @@ export function escapeLatex(text: string): string {
     .replace(/–/g, '--');
 }
 
-/**
- * A value with its uncertainty, the uncertainty to two significant digits and the value to the same
- * decimal place (common practice): 1.86431, 0.03124 → "1.864 \pm 0.031". Without an uncertainty,
- * four significant digits.
- */
+/** A value with its uncertainty in LaTeX, by the one precision rule of shared/precision.ts (formatWithError). */
 export function formatWithUncertainty(value: number, error: number | null): string {
-  if (error === null || !(error > 0) || !Number.isFinite(error)) return Number(value.toPrecision(4)).toString();
-  const decimals = Math.max(0, 1 - Math.floor(Math.log10(error)));
-  return `${value.toFixed(decimals)} \\pm ${error.toFixed(decimals)}`;
+  return formatWithError(value, error, 'latex');
 }
 
 export const regionText = (region: RegionSpec): string => regionLatex(region);
