@@ -70,9 +70,10 @@ describe('compare overlay', () => {
 
   it('divides by N when normalised, so runs of different size share the axis, and draws the continuum once', () => {
     const traces = compareTraces(runs, true, colors);
-    expect(traces[0].y).toEqual([0.2, 0.1]);
-    expect(traces[1].y).toEqual([0.2, 0.1, 0.05]);
-    expect(traces[0].marker).not.toEqual(traces[1].marker);
+    const spectra = traces.filter((t) => t.mode === 'markers');
+    expect(spectra[0].y).toEqual([0.2, 0.1]);
+    expect(spectra[1].y).toEqual([0.2, 0.1, 0.05]);
+    expect(spectra[0].marker).not.toEqual(spectra[1].marker);
     const continua = traces.filter((t) => t.name.startsWith('continuum'));
     expect(continua).toHaveLength(1);
     expect(continua[0].y).toEqual([0.25, 0.125, 0.0825]);
@@ -80,8 +81,18 @@ describe('compare overlay', () => {
 
   it('keeps raw eigenvalues and one continuum per run otherwise', () => {
     const traces = compareTraces(runs, false, colors);
-    expect(traces[1].y).toEqual([80, 40, 20]);
+    expect(traces.filter((t) => t.mode === 'markers')[1].y).toEqual([80, 40, 20]);
     expect(traces.filter((t) => t.name.startsWith('continuum'))).toHaveLength(2);
+  });
+
+  it('draws each run’s cut λc as a dashed line in the run’s colour, to the precision rule’s digits', () => {
+    const traces = compareTraces(runs, false, colors);
+    const cuts = traces.filter((t) => t.name.includes('cut λc'));
+    expect(cuts.map((t) => t.name)).toEqual(['A: cut λc = 1.000', 'B: cut λc = 1.600']);
+    expect(cuts[1].y).toEqual([1.6, 1.6]);
+    const spectra = traces.filter((t) => t.mode === 'markers');
+    expect(cuts.map((t) => (t.line as { color?: string }).color)).toEqual(spectra.map((t) => (t.marker as { color?: string }).color));
+    expect(compareTraces(runs, true, colors).find((t) => t.name.startsWith('B: cut'))!.y).toEqual([0.004, 0.004]);
   });
 });
 

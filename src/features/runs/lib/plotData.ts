@@ -208,6 +208,19 @@ export function compareTraces(runs: CompareRun[], normalised: boolean, colors: P
       marker: { color: style.color, symbol: style.symbol, size: 5, opacity: 0.85 },
       hovertemplate: `${run.label}<br>rank %{x}<br>${normalised ? 'λ/N' : 'λ'} = %{y:.6g}<extra></extra>`,
     });
+    // each run's own cut λc, in the run's colour, so a reader sees where each spectrum was truncated
+    if (run.cutoff > 0 && run.eigenvalues.length > 0) {
+      const cutText = formatQuantity(run.cutoff * scale, 'cut');
+      traces.push({
+        name: `${run.label}: cut λc${normalised ? '/N' : ''} = ${cutText}`,
+        type: 'scatter',
+        mode: 'lines',
+        x: [1, Math.max(2, run.eigenvalues.length)],
+        y: [run.cutoff * scale, run.cutoff * scale],
+        line: { color: style.color, width: 1.25, dash: 'dash' },
+        hovertemplate: `${run.label}<br>cut λc${normalised ? '/N' : ''} = ${cutText}<extra></extra>`,
+      });
+    }
   });
   const withContinuum = runs.filter((r) => r.continuum && r.continuum.length > 0);
   const continuumRuns = normalised

@@ -75,7 +75,8 @@ export function ComparePage() {
                 gridcolor: plotPalette.grid,
                 exponentformat: 'power',
               },
-              legend: { x: 1, xanchor: 'right', y: 1, bgcolor: 'rgba(247,244,238,0.85)' },
+              // below the plot, as the studies' plots: inside it the legend covered the largest eigenvalues
+              legend: { orientation: 'h', x: 0, y: -0.18, yanchor: 'top', bgcolor: 'rgba(0,0,0,0)' },
             }}
             caption={
               normalised
