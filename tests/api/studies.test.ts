@@ -301,5 +301,11 @@ describe('cancelling and restarting', () => {
     const end = await waitUntil(() => getStudy(id), finished, 30_000);
     expect(end.status).toBe('failed');
     expect(end.cells.find((c) => c.id === alive!.id)!.status).toBe('done');
+    // subject and body say the same thing: the study finished, with failed cells
+    const mails = await waitUntil(() => ctx.mailTo(researcher.email), (list) => list.some((m) => m.subject.includes('orphaned cells')), 10_000);
+    const mail = mails.find((m) => m.subject.includes('orphaned cells'))!;
+    expect(mail.subject).toBe('Tacet: study orphaned cells finished with failed cells');
+    expect(mail.text).toContain('has finished with failed cells');
+    expect(mail.text).toContain('because study e-mails are switched on');
   });
 });
