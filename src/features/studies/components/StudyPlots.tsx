@@ -145,7 +145,7 @@ export function StudyPlots({ study }: { study: StudyDetail }) {
         <PlotFigure
           title={study.source === 'imported' ? 'Spectra, one causal set per N' : 'Spectra, one seed per N'}
           fileName={`tacet-study-${id8}-spectra`}
-          data={spectraTraces(study.spectra, new Map(study.causalSets.map((c) => [c.id, c.name])))}
+          data={spectraTraces(study.spectra, new Map(study.causalSets.map((c) => [c.id, c.name])), study.ruleLabels)}
           layout={{ xaxis: { type: 'log', title: { text: 'rank k' } }, yaxis: { type: 'log', exponentformat: 'power', title: { text: 'λ_k (positive eigenvalues of iΔ)' } } }}
           caption={`Positive eigenvalues of the Pauli–Jordan operator of the first finished ${study.source === 'imported' ? 'causal set' : 'seed'} per N; dashed: the whole-region cut.`}
         />

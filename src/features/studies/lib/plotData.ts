@@ -1,3 +1,4 @@
+import { formatQuantity } from '@shared/precision';
 import type { StudyAggregate, StudyFit, StudySpectrum } from '@shared/studies';
 import { fitQuantity, renyiQuantity } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
@@ -98,27 +99,35 @@ export function referenceSlopeTrace(aggregates: StudyAggregate[], rule: string):
  * Positive eigenvalues by rank of one sprinkling per N (log–log), with each rule's cut as a dashed
  * line. `setNames` maps a cell seed that is an imported causal set's id to the set's name.
  */
-export function spectraTraces(spectra: StudySpectrum[], setNames: ReadonlyMap<string, string> = new Map()): Record<string, unknown>[] {
+export function spectraTraces(
+  spectra: StudySpectrum[],
+  setNames: ReadonlyMap<string, string> = new Map(),
+  ruleLabels: Readonly<Record<string, string>> = {},
+): Record<string, unknown>[] {
+  // N told apart by colour and marker as well as dash, so a grey-scale print or a colour-blind reader still can
+  const tones = [plotPalette.data, plotPalette.cut, plotPalette.dataSoft, plotPalette.accentDeep, plotPalette.reference, plotPalette.inkFaint];
+  const symbols = ['circle', 'square', 'triangle-up', 'diamond', 'cross', 'x'];
   const traces: Record<string, unknown>[] = spectra.map((s, k) => ({
     type: 'scatter',
-    mode: 'lines',
+    mode: 'lines+markers',
     name: setNames.has(s.seed) ? `N = ${s.N} (${setNames.get(s.seed)})` : `N = ${s.N} (seed ${s.seed})`,
     x: s.eigenvalues.map((_, r) => r + 1),
     y: s.eigenvalues,
-    line: { color: k % 2 === 0 ? plotPalette.data : plotPalette.dataSoft, width: 1.2, dash: ['solid', 'dot', 'dashdot', 'longdash'][Math.floor(k / 2) % 4] },
+    line: { color: tones[k % tones.length], width: 1.2, dash: ['solid', 'dot', 'dashdot', 'longdash'][k % 4] },
+    marker: { color: tones[k % tones.length], symbol: symbols[k % symbols.length], size: 5, maxdisplayed: 12 },
   }));
   for (const s of spectra) {
     for (const cut of s.cuts) {
       traces.push({
         type: 'scatter',
         mode: 'lines',
-        name: `cut (${cut.rule})`,
+        name: `cut: ${ruleLabels[cut.rule] ?? cut.rule}`,
         x: [1, s.eigenvalues.length],
         y: [cut.cutoff, cut.cutoff],
         line: { color: plotPalette.cut, width: 1, dash: 'dash' },
         showlegend: s === spectra[0],
-        legendgroup: 'cuts',
-        hoverinfo: 'skip',
+        legendgroup: `cut ${cut.rule}`,
+        hovertemplate: `${ruleLabels[cut.rule] ?? cut.rule}, N = ${s.N}: λc = ${formatQuantity(cut.cutoff, 'cut')}<extra></extra>`,
       });
     }
   }
