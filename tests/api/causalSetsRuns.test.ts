@@ -5,6 +5,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runDetailSchema, runPointsSchema, type RunDetail } from '@shared/runs';
 import { computeVacuum } from '../../server/engine/index';
+import { continuumSpectrumFor } from '../../server/engine/regions';
 import { createTestContext, signUp, type SignedUpUser, type TestContext, startTestWorker } from '../support/app';
 
 /**
@@ -105,6 +106,9 @@ describe('a vacuum run on an uploaded coordinates CSV', () => {
     expect(result.entropy!.modesKept).toBe(direct.entropy!.modesKept);
     expect(Math.abs(result.entropy!.S / direct.entropy!.S - 1)).toBeLessThan(1e-10);
     expectSameNumbers(result.entropy!.generalizedEigenvalues, direct.entropy!.generalizedEigenvalues, 1e-9);
+    // declared with a 2D diamond, the set gets the continuum a sprinkled run of that region gets (issue 18 §2);
+    // (the region's continuum itself is checked against its closed form in the engine's tests)
+    expect(result.continuum).toEqual(Array.from(continuumSpectrumFor('diamond2d', 300, result.eigenvalues.length)!));
 
     // and the numbers numpy/LAPACK computed on these points (fixtures/diamond300.ref.json, server/engine/README.md §13)
     expect(result.cutoff).toBeCloseTo(reference.lam_cut, 12);
