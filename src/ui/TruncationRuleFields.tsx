@@ -34,7 +34,7 @@ export function TruncationRuleFields({ value, onChange, errors, presets, presetI
           }}
           hint={presets.length === 0 ? 'None saved yet (Cut rules page).' : 'Copies the rule into the fields.'}
         >
-          <option value="">Set a rule here</option>
+          <option value="">Type a rule below, or pick a saved one</option>
           {presets.map((preset) => (
             <option key={preset.id} value={preset.id}>
               {preset.name} — {describeTruncation(preset.rule)}

@@ -1,3 +1,4 @@
+import { formatEntropy, formatQuantity } from '@shared/precision';
 import { entropyRuleLabel, vacuumStages, type VacuumStage } from '@shared/vacuum';
 import { decodeFloat64, decodeRelationWords } from '../../db/codecs';
 import * as runs from '../../db/repositories/runs';
@@ -33,10 +34,15 @@ function engineRequestOf(run: RunRow) {
 }
 
 function doneDetail(result: VacuumResult): string {
-  const lines = [`N = ${result.N}, modes kept ${result.modesKept} of ${result.eigenvalues.length} (cut λ = ${result.cutoff.toPrecision(6)}).`];
+  // the structured engine computes only the modes above the cut, so "k of k" would say nothing
+  const kept =
+    result.engine === 'structured'
+      ? `${result.modesKept} modes above the cut (the structured engine computes only those)`
+      : `modes kept ${result.modesKept} of ${result.eigenvalues.length}`;
+  const lines = [`N = ${result.N}, ${kept} (cut λ = ${formatQuantity(result.cutoff, 'cut')}).`];
   if (result.entropy) {
     const rule = entropyRuleLabel({ truncation: result.truncation, doubleTruncation: result.entropy.doubleTruncation, restrictedCut: result.entropy.restrictedCut });
-    lines.push(`Entropy of the subregion (${result.entropy.n} elements, ${rule}): S = ${result.entropy.S.toPrecision(6)}.`);
+    lines.push(`Entropy of the subregion (${result.entropy.n} elements, ${rule}): S = ${formatEntropy(result.entropy.S)}.`);
   }
   for (const caution of result.cautions) lines.push(`Caution: ${caution}`);
   return lines.join('\n');
