@@ -135,3 +135,9 @@ export function formatCheckPair(
   const label = style === 'latex' ? '\\text{difference}' : 'difference';
   return { first: firstText, second: secondText, difference: differenceText, text: `${firstText} vs ${secondText} (${label} ${differenceText})` };
 }
+
+/** The value and the error of `formatWithError` apart, for tables that put them in two columns. */
+export function splitWithError(value: number, error: number): { value: string; error: string } {
+  const [valueText, errorText] = formatWithError(value, error).split(' ± ');
+  return { value: valueText, error: errorText ?? '' };
+}

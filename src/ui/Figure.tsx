@@ -1,4 +1,4 @@
-import { formatQuantity, type QuantityKind } from '@shared/precision';
+import { formatQuantity, splitWithError, type QuantityKind } from '@shared/precision';
 import { formatSignificant, splitDecimal } from '../lib/numbers';
 
 interface FigureProps {
@@ -9,13 +9,15 @@ interface FigureProps {
   fraction?: number;
   /** what the value is: its digits then follow the one precision rule of shared/precision.ts */
   kind?: QuantityKind;
+  /** the value's error: the value is then shown to the decimal place the error supports */
+  error?: number | null;
 }
 
 /**
  * A number aligned on its decimal point: the integer part right-aligned in a fixed number of mono
  * characters, the fraction left-aligned after it, so every row of a column lines up.
  */
-export function Figure({ value, digits = 5, whole = 6, fraction = 9, kind }: FigureProps) {
+export function Figure({ value, digits = 5, whole = 6, fraction = 9, kind, error }: FigureProps) {
   if (value === null || value === undefined) {
     return (
       <span className="figures inline-flex whitespace-nowrap text-ink-faint">
@@ -24,7 +26,7 @@ export function Figure({ value, digits = 5, whole = 6, fraction = 9, kind }: Fig
       </span>
     );
   }
-  const formatted = kind !== undefined ? formatQuantity(value, kind) : Number.isInteger(value) && Math.abs(value) < 1e9 ? String(value) : formatSignificant(value, digits);
+  const formatted = error != null && error > 0 && Number.isFinite(error) ? splitWithError(value, error).value : kind !== undefined ? formatQuantity(value, kind) : Number.isInteger(value) && Math.abs(value) < 1e9 ? String(value) : formatSignificant(value, digits);
   const parts = splitDecimal(formatted);
   const exponentAt = parts.fraction.indexOf('×10^');
   return (

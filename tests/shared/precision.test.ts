@@ -8,6 +8,7 @@ import {
   formatQuantity,
   formatSignificantDigits,
   formatWithError,
+  splitWithError,
 } from '@shared/precision';
 
 // Worked examples of the rounding of a measured value with its uncertainty (common practice: the
@@ -64,5 +65,12 @@ describe('formatCheckPair', () => {
     expect(pair.text).toBe('150.0 vs 150.0 (difference 3.0×10^-7)');
     expect(formatCheckPair(63, 64, 'count').difference).toBe('−1');
     expect(formatCheckPair(2.308, 1.634, 'entropy', 'latex').text).toBe('2.308 vs 1.634 (\\text{difference} 0.67)');
+  });
+});
+
+describe('splitWithError', () => {
+  it('gives the two columns of a table the same rounding as the one-string form', () => {
+    expect(splitWithError(44.43, 1.83)).toEqual({ value: '44.4', error: '1.8' });
+    expect(splitWithError(-0.12345, 0.0061)).toEqual({ value: '−0.123', error: '0.006' });
   });
 });

@@ -1,3 +1,4 @@
+import { splitWithError } from '@shared/precision';
 import type { StudyAggregate, StudyFit } from '@shared/studies';
 import { fitQuantity, renyiQuantity, sortRenyiKeys } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
@@ -57,11 +58,11 @@ export function AggregateTable({
                   </td>
                   {cells.map((c, k) => [
                     <td key={`m${k}`} className={`${td} pr-0`}>
-                      <Figure value={c?.meanS} digits={4} whole={4} fraction={5} />
+                      <Figure value={c?.meanS} error={c?.seS} digits={4} whole={4} fraction={5} />
                     </td>,
                     <td key={`e${k}`} className={`${td} pl-1 text-ink-soft`}>
                       {c?.seS != null ? (
-                        <span className="figures text-xs">± {c.seS.toPrecision(2)}</span>
+                        <span className="figures text-xs">± {c.meanS != null ? splitWithError(c.meanS, c.seS).error : c.seS.toPrecision(2)}</span>
                       ) : (
                         <span className="text-xs text-ink-faint">one seed</span>
                       )}
@@ -307,7 +308,8 @@ export function FitsTable({
                   <span className="figures text-xs">{f.slopeError !== null ? `± ${f.slopeError.toPrecision(2)}` : ''}</span>
                 </td>
                 <td className={td}>
-                  <Figure value={f.intercept} digits={3} whole={3} fraction={5} />
+                  <Figure value={f.intercept} error={f.interceptError} digits={3} whole={3} fraction={5} />
+                  {f.interceptError != null && <span className="figures text-xs text-ink-soft"> ± {splitWithError(f.intercept, f.interceptError).error}</span>}
                 </td>
                 <td className={td}>
                   <Figure value={f.rSquared} digits={3} whole={2} fraction={5} />
