@@ -171,7 +171,7 @@ export const causalSetDetailSchema = causalSetSummarySchema.extend({
 });
 export type CausalSetDetail = z.infer<typeof causalSetDetailSchema>;
 
-/** Short text for a region, e.g. "2D diamond, τ = 2" (tables and the preview page). */
+/** Short text for a region, e.g. "2D diamond, T = 2" (tables and the preview page). */
 export function describeRegion(region: RegionSpec | null): string {
   return region ? regionText(region) : '—';
 }

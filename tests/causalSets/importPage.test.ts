@@ -54,7 +54,7 @@ describe('importing a causal set in the browser', () => {
     // the reference sprinkling (server/engine/README.md §13) in its diamond of proper time 2√2
     await page.getByLabel('CSV file').setInputFiles(fixture);
     await page.getByLabel('Name').fill('numpy diamond 300');
-    await page.getByLabel('Proper time τ between the tips').fill(String(2 * Math.SQRT2));
+    await page.getByLabel('Proper time T between the tips').fill(String(2 * Math.SQRT2));
     await page.getByLabel('First lines of the file').waitFor();
     await shot(page, '02-form');
     await page.getByRole('button', { name: 'Import', exact: true }).click();

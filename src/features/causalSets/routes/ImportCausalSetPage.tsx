@@ -54,10 +54,10 @@ function FileProblems({ message, problems }: { message: string; problems: string
   );
 }
 
-/** The import form's words: τ for the proper time, L for the circumference, ranges "from … to". */
+/** The import form's words: T for the proper time, C for the circumference (DEVELOPERS.md, Look and words), ranges "from … to". */
 const importRegionWording: RegionFieldWording = {
-  properTime: { label: 'Proper time τ between the tips', hint: null },
-  circumference: { label: 'Circumference L', hint: 'x in [−L/2, L/2)' },
+  properTime: { label: 'Proper time T between the tips', hint: null },
+  circumference: { label: 'Circumference C', hint: 'x in [−C/2, C/2)' },
   tMin: { label: 't from' },
   tMax: { label: 't to' },
   xMin: { label: 'x from' },
