@@ -1,4 +1,5 @@
 import { BitRelation, popcount } from './order';
+import { longestChainsFromBelow } from './orderAlgorithms';
 import { seededUniform } from './sprinkle';
 
 /**
@@ -200,22 +201,7 @@ function fromRelation(causal: BitRelation, maxGap: number, samples: number, seed
   });
   // longest chain: visiting elements by the size of their past is a linear extension
   const order = Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => pastSize[a] - pastSize[b] || a - b);
-  const chain = new Int32Array(n);
-  let longestChain = n > 0 ? 1 : 0;
-  for (const j of order) {
-    let best = 0;
-    for (let k = 0; k < w; k++) {
-      let bits = pw[j * w + k];
-      while (bits !== 0) {
-        const low = bits & -bits;
-        const i = (k << 5) + (31 - Math.clz32(low));
-        if (chain[i] > best) best = chain[i];
-        bits ^= low;
-      }
-    }
-    chain[j] = best + 1;
-    if (chain[j] > longestChain) longestChain = chain[j];
-  }
+  const longestChain = longestChainsFromBelow(past, order).height;
   // sub-intervals for the error: random related pairs whose interval holds at least N/8 elements
   const uniform = seededUniform(seed);
   const minimum = Math.max(8, Math.ceil(n / 8));

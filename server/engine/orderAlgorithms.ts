@@ -175,14 +175,15 @@ export interface OrderSummary {
  * from below. Elements are visited in a linear extension, so each element's longest chain is known
  * before anything in its future needs it.
  */
-export function orderSummary(causal: BitRelation): OrderSummary {
-  const n = causal.size;
-  const past = causal.transpose();
-  const relations = causal.count();
-  const order = linearExtension(causal);
-  const chain = new Int32Array(n);
+/**
+ * For each element the number of elements in a longest chain ending at it, and the height (the
+ * longest of all), given the past relation and a linear extension to visit the elements in.
+ */
+export function longestChainsFromBelow(past: BitRelation, order: ArrayLike<number>): { chain: Int32Array; height: number } {
+  const chain = new Int32Array(past.size);
   let height = 0;
-  for (const j of order) {
+  for (let k = 0; k < order.length; k++) {
+    const j = order[k];
     let best = 0;
     rowForEach(past, j, (i) => {
       if (chain[i] > best) best = chain[i];
@@ -190,6 +191,14 @@ export function orderSummary(causal: BitRelation): OrderSummary {
     chain[j] = best + 1;
     if (chain[j] > height) height = chain[j];
   }
+  return { chain, height };
+}
+
+export function orderSummary(causal: BitRelation): OrderSummary {
+  const n = causal.size;
+  const past = causal.transpose();
+  const relations = causal.count();
+  const { chain, height } = longestChainsFromBelow(past, linearExtension(causal));
   const layerSizes = new Array<number>(height).fill(0);
   for (let i = 0; i < n; i++) layerSizes[chain[i] - 1] += 1;
   let minimal = 0;
