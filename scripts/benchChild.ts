@@ -1,4 +1,5 @@
 import { spawn } from 'node:child_process';
+import { availableParallelism, loadavg } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -46,4 +47,15 @@ export async function runBenchScript<T>(file: string, childRows: (n: number) => 
   const childIndex = process.argv.indexOf('--child');
   if (childIndex >= 0) process.stdout.write(JSON.stringify(await childRows(Number(process.argv[childIndex + 1]))));
   else process.stdout.write(JSON.stringify({ rows: await benchRows() }, null, 2) + '\n');
+}
+
+/** CPU seconds (all threads) this process has used so far: the machine is shared, wall time alone misleads. */
+export function cpuSeconds(): number {
+  const used = process.cpuUsage();
+  return (used.user + used.system) / 1e6;
+}
+
+/** What every row reports of the machine at its end: peak RSS of this child, 1-minute load, cores. */
+export function machineFacts(): { peakRssMB: number; load: number; cores: number } {
+  return { peakRssMB: process.resourceUsage().maxRSS / 1024, load: Math.round(loadavg()[0] * 100) / 100, cores: availableParallelism() };
 }

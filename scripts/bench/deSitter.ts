@@ -11,10 +11,9 @@
  *
  * Run alone with `npx tsx scripts/bench/deSitter.ts`, or through `npm run bench`.
  */
-import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import type { RegionSpec } from '@shared/vacuum';
-import { benchSizes, runBenchChild, runBenchScript } from '../benchChild';
+import { benchSizes, cpuSeconds, machineFacts, runBenchChild, runBenchScript } from '../benchChild';
 
 export interface DeSitterBenchRow {
   task: 'de-sitter';
@@ -64,15 +63,11 @@ async function childRows(n: number): Promise<DeSitterBenchRow[]> {
       ...(setup.engine === 'structured' ? { doubleTruncation: true, subregion: { kind: 'diamond' as const, past: sub.past, future: sub.future } } : {}),
     };
   };
-  const cpu = () => {
-    const u = process.cpuUsage();
-    return (u.user + u.system) / 1e6;
-  };
   const time = async (region: RegionSpec) => {
-    const c0 = cpu();
+    const c0 = cpuSeconds();
     const t0 = performance.now();
     await computeVacuum(request(region));
-    return { seconds: (performance.now() - t0) / 1000, cpuSeconds: cpu() - c0 };
+    return { seconds: (performance.now() - t0) / 1000, cpuSeconds: cpuSeconds() - c0 };
   };
   // warm-up: compile the code paths of both regions on a small set
   await computeVacuum({ ...request(setup.curved), source: { kind: 'sprinkling', sprinkling: { region: setup.curved, count: 500, seed: 'warm' } } });
@@ -100,9 +95,7 @@ async function childRows(n: number): Promise<DeSitterBenchRow[]> {
       ratio,
       target: '< 1.5',
       met: ratio < TARGET,
-      peakRssMB: process.resourceUsage().maxRSS / 1024,
-      load: Math.round(loadavg()[0] * 100) / 100,
-      cores: availableParallelism(),
+      ...machineFacts(),
     },
   ];
 }

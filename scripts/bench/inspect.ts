@@ -9,10 +9,10 @@
  * Run alone with `npx tsx scripts/bench/inspect.ts`, or through `npm run bench`.
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { availableParallelism, loadavg, tmpdir } from 'node:os';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { benchSizes, runBenchChild, runBenchScript } from '../benchChild';
+import { benchSizes, cpuSeconds, machineFacts, runBenchChild, runBenchScript } from '../benchChild';
 
 export interface InspectBenchRow {
   task: 'inspect';
@@ -45,11 +45,11 @@ async function childRows(n: number): Promise<InspectBenchRow[]> {
   for (let i = 0; i < points.length; i += 2) rows.push(`${points[i]},${points[i + 1]}`);
   writeFileSync(file, rows.join('\n') + '\n');
   let out = '';
-  const cpuStart = process.cpuUsage();
+  const cpuStart = cpuSeconds();
   const start = performance.now();
   const code = await runCli(['inspect', '--points', file, '--json'], { stdout: (t) => (out += t), stderr: (t) => process.stderr.write(t), progress: false });
   const seconds = (performance.now() - start) / 1000;
-  const cpu = process.cpuUsage(cpuStart);
+  const cpu = cpuSeconds() - cpuStart;
   rmSync(dir, { recursive: true, force: true });
   if (code !== 0) throw new Error(`tacet inspect exited with ${code} at N = ${n}`);
   const report = JSON.parse(out);
@@ -58,15 +58,13 @@ async function childRows(n: number): Promise<InspectBenchRow[]> {
       task: 'inspect',
       N: n,
       seconds,
-      cpuSeconds: (cpu.user + cpu.system) / 1e6,
+      cpuSeconds: cpu,
       target: '< 30 s at N = 100 000',
       met: n === 100_000 ? seconds < TARGET_SECONDS : null,
       myrheimMeyer: report.dimension.myrheimMeyer,
       midpoint: report.dimension.midpoint.estimate,
       links: report.links,
-      peakRssMB: process.resourceUsage().maxRSS / 1024,
-      load: Math.round(loadavg()[0] * 100) / 100,
-      cores: availableParallelism(),
+      ...machineFacts(),
     },
   ];
 }

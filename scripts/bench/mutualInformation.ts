@@ -16,10 +16,9 @@
  *
  * Run alone with `npx tsx scripts/bench/mutualInformation.ts`, or through `npm run bench`.
  */
-import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import type { SubregionSpec } from '@shared/vacuum';
-import { benchSizes, runBenchChild, runBenchScript } from '../benchChild';
+import { benchSizes, cpuSeconds, machineFacts, runBenchChild, runBenchScript } from '../benchChild';
 
 export interface MutualInformationBenchRow {
   task: 'mutual-information';
@@ -83,16 +82,12 @@ async function childRows(n: number): Promise<MutualInformationBenchRow[]> {
     doubleTruncation: true,
     ...extra,
   });
-  const cpuNow = () => {
-    const u = process.cpuUsage();
-    return (u.user + u.system) / 1e6;
-  };
   type Timed = { value: Awaited<ReturnType<typeof computeVacuum>>; seconds: number; cpuSeconds: number };
   const timed = async (work: () => ReturnType<typeof computeVacuum>, best: Timed | null): Promise<Timed> => {
     const start = performance.now();
-    const cpuStart = cpuNow();
+    const cpuStart = cpuSeconds();
     const value = await work();
-    const run = { value, seconds: (performance.now() - start) / 1000, cpuSeconds: cpuNow() - cpuStart };
+    const run = { value, seconds: (performance.now() - start) / 1000, cpuSeconds: cpuSeconds() - cpuStart };
     if (!best) return run;
     return { value, seconds: Math.min(best.seconds, run.seconds), cpuSeconds: Math.min(best.cpuSeconds, run.cpuSeconds) };
   };
@@ -133,9 +128,7 @@ async function childRows(n: number): Promise<MutualInformationBenchRow[]> {
       I: mi.I,
       n_A: mi.a.n,
       n_B: mi.b.n,
-      peakRssMB: process.resourceUsage().maxRSS / 1024,
-      load: Math.round(loadavg()[0] * 100) / 100,
-      cores: availableParallelism(),
+      ...machineFacts(),
     },
   ];
 }
