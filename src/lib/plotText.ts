@@ -23,7 +23,11 @@ const textKeys = new Set(['name', 'text', 'hovertemplate', 'legendgrouptitle']);
 export function typesetPlotObject<T>(value: T): T {
   const walk = (v: Json, key: string | null): Json => {
     if (typeof v === 'string') return key !== null && textKeys.has(key) ? typesetPlotText(v) : v;
-    if (Array.isArray(v)) return key === 'text' ? v.map((item) => (typeof item === 'string' ? typesetPlotText(item) : walk(item, null))) : v.map((item) => walk(item, null));
+    if (Array.isArray(v)) {
+      // coordinates (x, y, error bars) hold no text: handed on as they are, not copied
+      if (v.every((item) => typeof item === 'number' || item === null)) return v;
+      return key === 'text' ? v.map((item) => (typeof item === 'string' ? typesetPlotText(item) : walk(item, null))) : v.map((item) => walk(item, null));
+    }
     if (v !== null && typeof v === 'object' && !ArrayBuffer.isView(v)) {
       const out: Record<string, Json> = {};
       for (const [k, item] of Object.entries(v)) out[k] = walk(item, k);
