@@ -31,7 +31,7 @@ export type CellStatus = z.infer<typeof cellStatusSchema>;
 
 /** Cells (one sprinkling each) a single study may hold: enough for a paper figure, bounded for a shared worker. */
 export const STUDY_MAX_CELLS = 400;
-/** A subregion expected to hold fewer elements gives no meaningful entropy; the form says so beside ℓ/L. */
+/** A subregion expected to hold fewer elements gives no meaningful entropy; the form says so beside ℓ/T. */
 export const STUDY_MIN_SUBREGION_ELEMENTS = 8;
 
 /**
@@ -71,7 +71,7 @@ export function studyRuleLabel(rule: EntropyRuleSettings): string {
 
 const fraction = z
   .number()
-  .refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'ℓ/L must lie strictly between 0 and 1' });
+  .refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'ℓ/T must lie strictly between 0 and 1' });
 
 const tipsDiamondSchema = z.strictObject({
   label: z.string().trim().min(1).max(40).optional(),
@@ -90,10 +90,10 @@ const elementListSchema = z.strictObject({
 
 /**
  * Subregions, each a causal diamond or, on imported causal sets, a list of elements:
- * - `concentric`: sub-diamonds sharing the centre and axis of the region, with proper time ℓ = f·L for
- *   each fraction f = ℓ/L (2D diamonds, cylinder diamonds and 4D diamonds);
- * - `pairs`: two equal sub-diamonds of proper time ℓ = (ℓ/L)·L on the region's central slice, symmetric
- *   about its centre, a gap d = (d/L)·L between their facing corners, for the mutual information;
+ * - `concentric`: sub-diamonds sharing the centre and axis of the region, with proper time ℓ = f·T for
+ *   each fraction f = ℓ/T (2D diamonds, cylinder diamonds and 4D diamonds);
+ * - `pairs`: two equal sub-diamonds of proper time ℓ = (ℓ/T)·T on the region's central slice, symmetric
+ *   about its centre, a gap d = (d/T)·T between their facing corners, for the mutual information;
  * - `tips`: sub-diamonds given by their past and future tips;
  * - `elements`: element lists, for imported causal sets (the only choice for a relation list).
  */
@@ -102,24 +102,24 @@ export const studySubregionsSchema = z.discriminatedUnion('kind', [
     kind: z.literal('concentric'),
     fractions: z
       .array(fraction)
-      .min(1, { message: 'give at least one ℓ/L' })
+      .min(1, { message: 'give at least one ℓ/T' })
       .max(12, { message: 'at most 12 sizes' })
-      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/L values must differ' }),
+      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/T values must differ' }),
   }),
   z.strictObject({
     kind: z.literal('pairs'),
-    /** proper time ℓ/L of each of the two equal sub-diamonds */
+    /** proper time ℓ/T of each of the two equal sub-diamonds */
     sizes: z
       .array(fraction)
-      .min(1, { message: 'give at least one ℓ/L' })
+      .min(1, { message: 'give at least one ℓ/T' })
       .max(6, { message: 'at most 6 sizes' })
-      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/L values must differ' }),
-    /** gap d/L between the facing corners of the two sub-diamonds, on the region's central slice */
+      .refine((f) => new Set(f).size === f.length, { message: 'ℓ/T values must differ' }),
+    /** gap d/T between the facing corners of the two sub-diamonds, on the region's central slice */
     separations: z
-      .array(z.number().refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'd/L must lie strictly between 0 and 1' }))
-      .min(1, { message: 'give at least one d/L' })
+      .array(z.number().refine((v) => Number.isFinite(v) && v > 0 && v < 1, { message: 'd/T must lie strictly between 0 and 1' }))
+      .min(1, { message: 'give at least one d/T' })
       .max(12, { message: 'at most 12 separations' })
-      .refine((d) => new Set(d).size === d.length, { message: 'd/L values must differ' }),
+      .refine((d) => new Set(d).size === d.length, { message: 'd/T values must differ' }),
   }),
   z.strictObject({
     kind: z.literal('tips'),
@@ -235,7 +235,7 @@ export const studyCausalSetSchema = z.object({
 });
 export type StudyCausalSet = z.infer<typeof studyCausalSetSchema>;
 
-/** A subregion as the worker and the exports see it: key, label, ℓ/L when concentric, tips. */
+/** A subregion as the worker and the exports see it: key, label, ℓ/T when concentric, tips. */
 export const resolvedSubregionSchema = z.object({
   key: z.string(),
   label: z.string(),
@@ -245,7 +245,7 @@ export const resolvedSubregionSchema = z.object({
   future: eventSchema.nullable(),
   /** the element labels of an element-list subregion */
   elements: z.array(z.number().int()).optional(),
-  /** a pair for the mutual information: the two sub-diamonds (past/future above are null), ℓ/L and d/L */
+  /** a pair for the mutual information: the two sub-diamonds (past/future above are null), ℓ/T and d/T */
   pair: z
     .object({
       size: z.number(),
@@ -341,7 +341,7 @@ export const studyFitSchema = z.object({
   model: z.enum(['log', 'linear', 'loglog']),
   /** what is fitted: "S" (absent on studies stored before Rényi orders), "renyi:2" (S_2, by renyiKey), "I" */
   quantity: z.string().optional(),
-  /** pairs: the size ℓ/L whose separations were fitted */
+  /** pairs: the size ℓ/T whose separations were fitted */
   size: z.number().optional(),
   /** pairs: the N whose separations were fitted (a log-log fit is per rule, size and N) */
   N: z.number().int().optional(),
@@ -349,7 +349,7 @@ export const studyFitSchema = z.object({
   excluded: z.number().int().optional(),
   /**
    * pairs: the log-log slope of the continuum two-interval trend (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] over the same
-   * d/L values (server/engine/README.md §15), beside the measured slope, and the d/L range fitted
+   * d/T values (server/engine/README.md §15), beside the measured slope, and the d/T range fitted
    */
   continuum: z.object({ slope: z.number(), from: z.number(), to: z.number() }).optional(),
   points: z.number().int(),
@@ -393,11 +393,11 @@ const short = (v: number, digits = 3) => String(Number(v.toPrecision(digits)));
 /**
  * The sentence that states a log-log fit of I against d beside the continuum trend, as the study page,
  * the LaTeX caption and the methods paragraph give it: "measured slope −1.12 ± 0.15 against continuum
- * trend −0.87 over d/L ∈ [0.05, 0.2] (4 points)".
+ * trend −0.87 over d/T ∈ [0.05, 0.2] (4 points)".
  */
 export function pairDecaySentence(fit: Pick<StudyFit, 'slope' | 'slopeError' | 'continuum' | 'points' | 'excluded'>): string {
   const measured = `measured slope ${short(fit.slope)}${fit.slopeError !== null ? ` ± ${short(fit.slopeError, 2)}` : ''}`;
-  const trend = fit.continuum ? ` against continuum trend ${short(fit.continuum.slope)} over d/L ∈ [${short(fit.continuum.from)}, ${short(fit.continuum.to)}]` : '';
+  const trend = fit.continuum ? ` against continuum trend ${short(fit.continuum.slope)} over d/T ∈ [${short(fit.continuum.from)}, ${short(fit.continuum.to)}]` : '';
   const left = fit.excluded ? `; ${fit.excluded} separation${fit.excluded === 1 ? '' : 's'} with ⟨I⟩ ≤ 0 left out` : '';
   return `${measured}${trend} (${fit.points} points${left})`;
 }

@@ -169,7 +169,7 @@ const renyiFitQuantity = (key: string): FittedQuantity => ({ key: renyiQuantity(
 /**
  * Fits of each rule's aggregates: S against ln √n̄ (slope b, expected near 1/3 with double truncation,
  * server/engine/README.md §9) and S against n̄ (the volume-law slope), once over every aggregate of the rule
- * (`subregion` null) and once per subregion across N (the ultraviolet scaling at fixed ℓ/L); each S_α
+ * (`subregion` null) and once per subregion across N (the ultraviolet scaling at fixed ℓ/T); each S_α
  * of the study's Rényi orders against ln √n̄ the same way. A group whose points share one x (or has
  * fewer than two) gets no fit. Pairs are fitted by pairDecayFits instead (their S is that of A∪B, whose
  * size changes with d as well as N).
@@ -221,11 +221,11 @@ function quantityFits(aggregates: StudyAggregate[], quantity: FittedQuantity, mo
 export const FIT_MIN_POINTS = 3;
 
 /**
- * The decay of the mutual information with the separation: per (rule, size ℓ/L, N) a weighted fit of
- * ln⟨I⟩ against ln(d/L) over the separations whose ⟨I⟩ > 0 (σ of ln⟨I⟩ = SE/⟨I⟩ to first order, common
+ * The decay of the mutual information with the separation: per (rule, size ℓ/T, N) a weighted fit of
+ * ln⟨I⟩ against ln(d/T) over the separations whose ⟨I⟩ > 0 (σ of ln⟨I⟩ = SE/⟨I⟩ to first order, common
  * practice), at least FIT_MIN_POINTS of them, with `excluded` counting the ones left out. Beside
  * it, `continuum` holds the slope of the same (unweighted) log-log fit through the continuum two-interval
- * trend continuumMutualInformation(ℓ, ℓ, d) at those d/L values (Calabrese–Cardy 2004; Casini–Huerta
+ * trend continuumMutualInformation(ℓ, ℓ, d) at those d/T values (Calabrese–Cardy 2004; Casini–Huerta
  * 2009; server/engine/README.md §15): the trend's shape, to compare with, not a prediction of the values.
  */
 export function pairDecayFits(aggregates: StudyAggregate[]): StudyFit[] {

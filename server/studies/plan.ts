@@ -71,12 +71,12 @@ export function pairSubregions(subregion: ResolvedSubregion): { a: SubregionSpec
 export const pairKey = (size: number, separation: number) => `pair l/L=${formatFraction(size)} d/L=${formatFraction(separation)}`;
 
 /**
- * Two equal sub-diamonds of proper time ℓ = size·L in the region's own diamond (tips `own`, proper time
- * L), centred on its central slice and symmetric about its centre, with a gap d = separation·L between
+ * Two equal sub-diamonds of proper time ℓ = size·T in the region's own diamond (tips `own`, proper time
+ * T), centred on its central slice and symmetric about its centre, with a gap d = separation·T between
  * their facing corners: centres c ± (ℓ + d)/2 ê, ê the unit spacelike direction orthogonal to the
  * diamond's axis in 2D (the x axis in its rest frame; x itself for the centred 4D diamond). Both lie in
- * the diamond when 2ℓ + d ≤ L (the outer corners at (ℓ + d/2) from the centre, the diamond's half-width
- * L/2); their bases are disjoint intervals (balls) of one slice, so A and B are spacelike to each other.
+ * the diamond when 2ℓ + d ≤ T (the outer corners at (ℓ + d/2) from the centre, the diamond's half-width
+ * T/2); their bases are disjoint intervals (balls) of one slice, so A and B are spacelike to each other.
  * On the cylinder the gap the other way round, C − 2ℓ − d, must be at least d too, or d would not be
  * the distance between them. Throws StudyPlanError naming the separation (or size) that does not fit.
  */
@@ -91,10 +91,10 @@ function pairTips(region: RegionSpec, own: Tips, size: number, separation: numbe
   const centre = p.map((v, i) => (v + q[i]!) / 2);
   const ell = size * L;
   const d = separation * L;
-  const where = `the pair ℓ/L = ${formatFraction(size)}, d/L = ${formatFraction(separation)}`;
+  const where = `the pair ℓ/T = ${formatFraction(size)}, d/T = ${formatFraction(separation)}`;
   if (2 * ell + d > L * (1 + 1e-12)) {
     throw new StudyPlanError(
-      `${where} does not fit in the region's diamond: two sub-diamonds and their gap span 2ℓ + d = ${formatFraction(2 * size + separation)} L across its central slice, at most L; take a smaller d/L or ℓ/L`,
+      `${where} does not fit in the region's diamond: two sub-diamonds and their gap span 2ℓ + d = ${formatFraction(2 * size + separation)} T across its central slice, at most T; take a smaller d/T or ℓ/T`,
       `subregions.separations.${k.separation}`,
     );
   }
@@ -102,7 +102,7 @@ function pairTips(region: RegionSpec, own: Tips, size: number, separation: numbe
     const other = region.circumference - 2 * ell - d;
     if (other < d) {
       throw new StudyPlanError(
-        `${where} on the cylinder of circumference ${formatFraction(region.circumference)}: the gap the other way round (C − 2ℓ − d = ${formatFraction(other)}) must be at least d = ${formatFraction(d)}, or the two sub-diamonds are closer that way than d says; take a smaller d/L or ℓ/L`,
+        `${where} on the cylinder of circumference ${formatFraction(region.circumference)}: the gap the other way round (C − 2ℓ − d = ${formatFraction(other)}) must be at least d = ${formatFraction(d)}, or the two sub-diamonds are closer that way than d says; take a smaller d/T or ℓ/T`,
         `subregions.separations.${k.separation}`,
       );
     }
@@ -122,7 +122,7 @@ function pairsSubregions(region: RegionSpec, subregions: Extract<CreateStudyRequ
   return subregions.sizes.flatMap((size, i) =>
     subregions.separations.map((separation, j) => ({
       key: pairKey(size, separation),
-      label: `ℓ/L = ${formatFraction(size)}, d/L = ${formatFraction(separation)}`,
+      label: `ℓ/T = ${formatFraction(size)}, d/T = ${formatFraction(separation)}`,
       fraction: null,
       past: null,
       future: null,
@@ -157,7 +157,7 @@ export function resolveSubregions(request: Pick<SprinkledStudyRequest, 'region' 
   if (subregions.kind === 'concentric') {
     const tips = regionOwnDiamond(request.region);
     if (!tips) throw new StudyPlanError('concentric sub-diamonds need a diamond region; give sub-diamonds by their tips for a slab', 'subregions.kind');
-    return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/L = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
+    return subregions.fractions.map((f) => ({ key: `l/L=${formatFraction(f)}`, label: `ℓ/T = ${formatFraction(f)}`, fraction: f, ...concentricTips(tips, f) }));
   }
   if (subregions.kind === 'pairs') return pairsSubregions(request.region, subregions);
   if (subregions.kind === 'elements') throw new StudyPlanError('element lists are for imported causal sets', 'subregions.kind');
@@ -175,7 +175,7 @@ const sameRegion = (a: RegionSpec | null, b: RegionSpec | null) => a !== null &&
 
 /**
  * Subregions of a study over imported causal sets. Concentric sub-diamonds need every set to be
- * coordinates imported with the same diamond region (ℓ/L is relative to it); sub-diamonds by tips
+ * coordinates imported with the same diamond region (ℓ/T is relative to it); sub-diamonds by tips
  * need coordinates of one dimension (checked against the region of every set imported with one); element
  * lists (keys `e1`, `e2`, …) fit any set with enough elements and are the only choice for relation lists.
  */

@@ -113,7 +113,7 @@ describe('a tiny study from POST to exports', () => {
     for (const a of done.aggregates) {
       expect(a.seeds).toBe(2);
       expect(a.seS).not.toBeNull();
-      // a concentric diamond of ℓ/L = f holds the fraction f² of the region's volume (server/engine/README.md §2)
+      // a concentric diamond of ℓ/T = f holds the fraction f² of the region's volume (server/engine/README.md §2)
       expect(a.meanN / a.N).toBeGreaterThan(0.5 * a.fraction! ** 2);
       expect(a.meanN / a.N).toBeLessThan(1.6 * a.fraction! ** 2);
     }
@@ -202,7 +202,7 @@ describe('a tiny study from POST to exports', () => {
 });
 
 describe('studies on the other regions the form offers', () => {
-  it('computes a 4D diamond (concentric, ℓ/L⁴ of the volume), a cylinder diamond and a slab (by tips)', async () => {
+  it('computes a 4D diamond (concentric, ℓ/T⁴ of the volume), a cylinder diamond and a slab (by tips)', async () => {
     const ids = await Promise.all([
       postStudy(tinyStudy({ title: '4D', region: { kind: 'diamond4d', properTime: 2 }, counts: [150], subregions: { kind: 'concentric', fractions: [0.7] } })),
       postStudy(tinyStudy({ title: 'cylinder', region: { kind: 'cylinder2d', properTime: 2, circumference: 1.5 }, counts: [120], subregions: { kind: 'tips', diamonds: [{ past: { t: -0.5, x: 0.2 }, future: { t: 0.5, x: 0.2 } }] } })),
@@ -213,7 +213,7 @@ describe('studies on the other regions the form offers', () => {
       expect(study!.status).toBe('done');
       expect(study!.aggregates.every((a) => a.seeds === 2 && Number.isFinite(a.meanS))).toBe(true);
     }
-    // a concentric 4D diamond of ℓ/L = f holds f⁴ of the volume, πτ⁴/24 scaling (server/engine/README.md §2)
+    // a concentric 4D diamond of ℓ/T = f holds f⁴ of the volume, πτ⁴/24 scaling (server/engine/README.md §2)
     for (const a of fourD!.aggregates) expect(a.meanN / a.N).toBeGreaterThan(0.5 * 0.7 ** 4);
     for (const a of fourD!.aggregates) expect(a.meanN / a.N).toBeLessThan(1.6 * 0.7 ** 4);
     // the slab's sub-diamond (t from 0 to 1 at x = 1) holds half the slab's area of 2: a quarter of N

@@ -81,11 +81,11 @@ describe('a small pair study with Rényi orders', () => {
       expect(a.pair!.seI).not.toBeNull();
       expect(Object.keys(a.renyi!)).toEqual(['2', 'inf']);
       expect(Object.keys(a.pair!.renyiI!)).toEqual(['2', 'inf']);
-      // A∪B holds about 2 (ℓ/L)² N = 37.5 elements on average (volume ratio of two diamonds of ℓ/L = 0.25)
+      // A∪B holds about 2 (ℓ/T)² N = 37.5 elements on average (volume ratio of two diamonds of ℓ/T = 0.25)
       expect(a.meanN).toBeGreaterThan(0.5 * 37.5);
       expect(a.meanN).toBeLessThan(1.6 * 37.5);
     }
-    // untruncated: subadditivity makes every I ≥ 0 (common practice), and I falls from d/L = 0.03 to 0.2
+    // untruncated: subadditivity makes every I ≥ 0 (common practice), and I falls from d/T = 0.03 to 0.2
     const untruncated = done.aggregates.filter((a) => a.rule === 'none').sort((p, q) => p.pair!.separation - q.pair!.separation);
     for (const a of untruncated) expect(a.pair!.meanI).toBeGreaterThan(0);
     expect(untruncated[2]!.pair!.meanI).toBeLessThan(untruncated[0]!.pair!.meanI);
@@ -103,7 +103,7 @@ describe('a small pair study with Rényi orders', () => {
     const latex = await request(ctx.app).get(`/api/studies/${id}/export?format=latex`).set(bearer(researcher.token));
     expect(latex.text).toContain('mutual-information-fits');
     const methods = await request(ctx.app).get(`/api/studies/${id}/export?format=methods`).set(bearer(researcher.token));
-    expect(methods.text).toMatch(/measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/L ∈ \[0\.03, 0\.2\]/);
+    expect(methods.text).toMatch(/measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
   }, 150_000);
 
   it('gives concentric sub-diamonds S_α beside S, with fits of each S_α against ln √n', async () => {

@@ -33,7 +33,7 @@ describe('a scaling study in the browser', () => {
     await page.getByLabel('Title').fill('Diamond entropy scaling (demo)');
     await page.getByLabel('N values').fill('120, 240, 480');
     await page.getByLabel('Seeds per N').fill('3');
-    await page.getByLabel('ℓ/L values').fill('0.4, 0.6');
+    await page.getByLabel('ℓ/T values').fill('0.4, 0.6');
     await page.getByRole('button', { name: 'Start study' }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
     await page.getByTestId('study-progress').waitFor();

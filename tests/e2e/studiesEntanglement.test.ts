@@ -18,8 +18,8 @@ describe('a pair study for the mutual information in the browser', () => {
     await page.getByLabel('N values').fill('300');
     await page.getByLabel('Seeds per N').fill('3');
     await page.getByLabel('Kind').selectOption('pairs');
-    await page.getByLabel('Pair sizes ℓ/L').fill('0.25');
-    await page.getByLabel('Separations d/L').fill('0.03, 0.08, 0.2');
+    await page.getByLabel('Pair sizes ℓ/T').fill('0.25');
+    await page.getByLabel('Separations d/T').fill('0.03, 0.08, 0.2');
     // α ≤ 0 is refused in place, with the field's words, before anything is sent
     await page.getByLabel('Rényi orders α').fill('0, 2');
     await page.getByRole('button', { name: 'Start study' }).click();
@@ -34,7 +34,7 @@ describe('a pair study for the mutual information in the browser', () => {
     await page.getByTestId('pair-table').waitFor();
     await page.getByTestId(`figure-tacet-study-${id8}-I-vs-d`).waitFor();
     const agreement = await page.getByTestId('pair-agreement').textContent();
-    expect(agreement).toMatch(/ℓ\/L = 0\.25, N = 300: measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/L ∈ \[0\.03, 0\.2\]/);
+    expect(agreement).toMatch(/ℓ\/T = 0\.25, N = 300: measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
     expect(agreement).toMatch(/difference of large numbers/);
     expect(await page.getByTestId('pair-table').locator('tbody tr').count()).toBe(3);
     expect(await page.getByTestId('pair-fits-table').textContent()).toContain('untruncated');
@@ -60,7 +60,7 @@ describe('a pair study for the mutual information in the browser', () => {
     await page.getByLabel('Title').fill('Rényi scaling (demo)');
     await page.getByLabel('N values').fill('120, 240');
     await page.getByLabel('Seeds per N').fill('2');
-    await page.getByLabel('ℓ/L values').fill('0.5, 0.7');
+    await page.getByLabel('ℓ/T values').fill('0.5, 0.7');
     await page.getByLabel('Rényi orders α').fill('inf, 2');
     await page.getByRole('button', { name: 'Start study' }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);

@@ -138,9 +138,9 @@ describe('mutual information across sprinklings', () => {
     expect(Math.abs(s.I - d.I)).toBeLessThan(1e-6 * (d.a.S + d.b.S));
   }, 120_000);
 
-  it('decreases with separation in the ensemble mean, untruncated (N = 800, 8 seeds, ℓ/L = 0.2)', async () => {
+  it('decreases with separation in the ensemble mean, untruncated (N = 800, 8 seeds, ℓ/T = 0.2)', async () => {
     // L = 2 is the base of the region; A and B have base intervals of ℓ = 0.4 a distance d apart on t = 0.
-    // Measured (server/engine/README.md §15) at d/L = 0.05, 0.15, 0.3: N = 800, 72 seeds, 0.217, 0.129, 0.096
+    // Measured (server/engine/README.md §15) at d/T = 0.05, 0.15, 0.3: N = 800, 72 seeds, 0.217, 0.129, 0.096
     // (s.e. ≤ 0.005), and each of 9 groups of 8 seeds fell step by step, by more than 3 s.e. end to end;
     // N = 1500, 24 seeds, 0.33, 0.24, 0.20; the continuum trend is 0.34, 0.13, 0.058. Double truncated the
     // means fall less surely (N = 1500: 0.72, 0.60, 0.58 with s.e. 0.04), so only the untruncated rule is

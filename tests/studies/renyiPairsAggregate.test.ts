@@ -9,12 +9,12 @@ import { runPython } from '../support/python';
 const base = { cellId: 'c', N: 400, elements: 400, fraction: null, rule: 'none', modesKept: 4, cutoff: 0, stateModesKept: 100, stateCutoff: 0 };
 
 /**
- * A synthetic pair table: ℓ/L = 0.2 at d/L = 0.05, 0.1, 0.2 with I = 0.01 (d/L)^−1 exactly in the mean
- * (two seeds at I(1 ± 0.1)), and d/L = 0.3 with ⟨I⟩ < 0. By hand: each mean is I, the two deviations ±0.1 I
+ * A synthetic pair table: ℓ/T = 0.2 at d/T = 0.05, 0.1, 0.2 with I = 0.01 (d/T)^−1 exactly in the mean
+ * (two seeds at I(1 ± 0.1)), and d/T = 0.3 with ⟨I⟩ < 0. By hand: each mean is I, the two deviations ±0.1 I
  * give sd = √(2 (0.1 I)²/1) = 0.1√2 I and SE = sd/√2 = 0.1 I, so σ of ln⟨I⟩ is SE/⟨I⟩ = 0.1 for every
- * point (w = 100). ln⟨I⟩ = ln 0.01 − ln(d/L) exactly: slope −1, intercept ln 0.01. The x = ln(d/L) are
+ * point (w = 100). ln⟨I⟩ = ln 0.01 − ln(d/T) exactly: slope −1, intercept ln 0.01. The x = ln(d/T) are
  * spaced by ln 2, Σ(x − x̄)² = 2 (ln 2)², Δ = w² · 3 · 2 (ln 2)², so σ_slope² = Σw/Δ = 1/(200 (ln 2)²):
- * σ_slope = 1/(√200 ln 2) ≈ 0.10201. The d/L = 0.3 point (⟨I⟩ ≤ 0) is left out: excluded 1.
+ * σ_slope = 1/(√200 ln 2) ≈ 0.10201. The d/T = 0.3 point (⟨I⟩ ≤ 0) is left out: excluded 1.
  */
 function pairRows(): StudyEntropy[] {
   const rows: StudyEntropy[] = [];
@@ -54,7 +54,7 @@ describe('aggregates and fits of pairs and Rényi orders', () => {
     expect(fit!.reducedChiSquared).toBeCloseTo(0, 12);
   });
 
-  it('puts beside it the log-log slope of the continuum trend (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] at the same d/L, as numpy.polyfit gives it', () => {
+  it('puts beside it the log-log slope of the continuum trend (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] at the same d/T, as numpy.polyfit gives it', () => {
     const [fit] = pairDecayFits(aggregateEntropies(pairRows()));
     // numpy: a straight line through (ln d, ln I_cont(d)), Calabrese–Cardy 2004 / Casini–Huerta 2009 two-interval form
     const expected = runPython<number>(
@@ -131,7 +131,7 @@ describe('exports of a pair study with Rényi orders', () => {
     expect(methods).toContain('its own restricted cut');
     expect(methods).toMatch(/S_α = Σ_\{μ>1\} ln\(μ\^α − \(μ−1\)\^α\)\/\(α − 1\)/);
     const slope = fits[0]!.continuum!.slope;
-    expect(methods).toContain(`measured slope -1 ± 0.1 against continuum trend ${Number(slope.toPrecision(3))} over d/L ∈ [0.05, 0.2] (3 points; 1 separation with ⟨I⟩ ≤ 0 left out)`);
+    expect(methods).toContain(`measured slope -1 ± 0.1 against continuum trend ${Number(slope.toPrecision(3))} over d/T ∈ [0.05, 0.2] (3 points; 1 separation with ⟨I⟩ ≤ 0 left out)`);
     expect(methods).toContain('Casini and Huerta 2009');
     expect(provenanceJson(input).renyiOrders).toEqual(['2', 'inf']);
   });

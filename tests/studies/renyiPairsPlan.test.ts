@@ -25,7 +25,7 @@ const planError = (fn: () => unknown): StudyPlanError => {
 
 describe('pairs of sub-diamonds for the mutual information', () => {
   it('places two sub-diamonds of proper time ℓ on the central slice, a gap d between their facing corners (worked example)', () => {
-    // L = 2, ℓ/L = 0.2 → ℓ = 0.4, half-width 0.2; d/L = 0.1 → d = 0.2. Facing corners at x = ∓d/2 = ∓0.1,
+    // L = 2, ℓ/T = 0.2 → ℓ = 0.4, half-width 0.2; d/T = 0.1 → d = 0.2. Facing corners at x = ∓d/2 = ∓0.1,
     // centres at ∓(ℓ + d)/2 = ∓0.3, tips at t = ∓ℓ/2 = ∓0.2; the outer corners at ∓0.5 lie inside |x| ≤ 1.
     const [pair] = resolveSubregions(request({ region: { kind: 'diamond2d', properTime: 2 } }));
     expect(pair!.key).toBe('pair l/L=0.2 d/L=0.1');
@@ -82,7 +82,7 @@ describe('pairs of sub-diamonds for the mutual information', () => {
   it('refuses a slab and pairs expected to hold too few elements, naming the size', () => {
     const slab = planError(() => resolveSubregions(request({ region: { kind: 'slab2d', tMin: 0, tMax: 1, xMin: 0, xMax: 4 } })));
     expect(slab.path).toBe('subregions.kind');
-    // ℓ/L = 0.1 at N = 400: 400 × 0.01 = 4 elements < 8
+    // ℓ/T = 0.1 at N = 400: 400 × 0.01 = 4 elements < 8
     const small = request({ subregions: { kind: 'pairs', sizes: [0.3, 0.1], separations: [0.05] } });
     const error = planError(() => planCells(small, resolveSubregions(small)));
     expect(error.path).toBe('subregions.sizes.1');

@@ -15,8 +15,8 @@ import { backendSelection } from '../../server/engine/linalg';
  *
  * Ensemble: fixed-N sprinklings of N = 400, 800, 1600 into the diamond of proper time 2, ten seeds
  * (nested: a seed's N points are the first N of its 2N), and five sub-diamonds of proper time 1 (the
- * centred one and four shifted by ¼ in t or x) whose fitted b are averaged. ℓ/L is fixed, so b is the
- * ultraviolet scaling with density (varying ℓ/L at fixed N mixes in the finite size of the region and
+ * centred one and four shifted by ¼ in t or x) whose fitted b are averaged. ℓ/T is fixed, so b is the
+ * ultraviolet scaling with density (varying ℓ/T at fixed N mixes in the finite size of the region and
  * gave b < 0). Measured with the native backend before the band was set, on 59 seeds (these ten among
  * them): the per-seed b of this design has mean 0.39 and scatters by 0.12, so ten seeds give
  * b ≈ 0.39 ± 0.04 (random ten-seed ensembles 0.28–0.49; these ten give 0.47, the high side). Smaller

@@ -49,9 +49,9 @@ export function latexTable(input: StudyExportInput): string {
   lines.push('\\begin{table}[htbp]');
   lines.push('  \\centering');
   const what = pairs
-    ? 'the union $A \\cup B$ of pairs of equal sub-diamonds of size $\\ell/L$ a gap $d/L$ apart'
+    ? 'the union $A \\cup B$ of pairs of equal sub-diamonds of size $\\ell/T$ a gap $d/T$ apart'
     : concentric
-      ? 'concentric sub-diamonds of size $\\ell/L$'
+      ? 'concentric sub-diamonds of size $\\ell/T$'
       : input.subregions.every((s) => s.elements)
         ? 'listed subsets of elements'
         : 'sub-diamonds';
@@ -71,7 +71,7 @@ export function latexTable(input: StudyExportInput): string {
   lines.push(`  \\label{tab:tacet-study-${id8}}`);
   lines.push(`  \\begin{tabular}{rlrr${'c'.repeat(rules.length)}}`);
   lines.push('    \\toprule');
-  lines.push(`    $N$ & ${concentric ? '$\\ell/L$' : 'subregion'} & seeds & $\\langle n \\rangle$ & ${rules.map((r) => `$\\langle S \\rangle$ ${latexRule(r)}`).join(' & ')} \\\\`);
+  lines.push(`    $N$ & ${concentric ? '$\\ell/T$' : 'subregion'} & seeds & $\\langle n \\rangle$ & ${rules.map((r) => `$\\langle S \\rangle$ ${latexRule(r)}`).join(' & ')} \\\\`);
   lines.push('    \\midrule');
   const counts = [...new Set(input.aggregates.map((a) => a.N))].sort((a, b) => a - b);
   counts.forEach((N, k) => {
@@ -100,7 +100,7 @@ export function latexTable(input: StudyExportInput): string {
     lines.push(`  \\label{tab:tacet-study-${id8}-fits}`);
     lines.push('  \\begin{tabular}{llrcccc}');
     lines.push('    \\toprule');
-    lines.push(`    rule & ${concentric ? '$\\ell/L$' : 'subregion'} & points & $b$ & $c$ & $R^2$ & $a$ (volume law) \\\\`);
+    lines.push(`    rule & ${concentric ? '$\\ell/T$' : 'subregion'} & points & $b$ & $c$ & $R^2$ & $a$ (volume law) \\\\`);
     lines.push('    \\midrule');
     const logFits = input.fits.filter((f) => f.model === 'log' && fitQuantity(f) === 'S');
     for (const f of logFits) {
@@ -159,7 +159,7 @@ function renyiTables(input: StudyExportInput, id8: string): string[] {
   return lines;
 }
 
-/** ⟨I⟩ ± SE against d/L per (N, ℓ/L) with a column per rule, and the log-log fits beside the continuum trend. */
+/** ⟨I⟩ ± SE against d/T per (N, ℓ/T) with a column per rule, and the log-log fits beside the continuum trend. */
 function pairTables(input: StudyExportInput, id8: string): string[] {
   const rows = input.aggregates.filter((a) => a.pair);
   if (rows.length === 0) return [];
@@ -174,7 +174,7 @@ function pairTables(input: StudyExportInput, id8: string): string[] {
   lines.push(`  \\label{tab:tacet-study-${id8}-mutual-information}`);
   lines.push(`  \\begin{tabular}{rrr${'c'.repeat(rules.length)}}`);
   lines.push('    \\toprule');
-  lines.push(`    $N$ & $\\ell/L$ & $d/L$ & ${rules.map((r) => `$\\langle I \\rangle$ ${latexRule(r)}`).join(' & ')} \\\\`);
+  lines.push(`    $N$ & $\\ell/T$ & $d/T$ & ${rules.map((r) => `$\\langle I \\rangle$ ${latexRule(r)}`).join(' & ')} \\\\`);
   lines.push('    \\midrule');
   const counts = [...new Set(rows.map((a) => a.N))].sort((a, b) => a - b);
   const ordered = [...input.subregions.filter((s) => s.pair)].sort((p, q) => p.pair!.size - q.pair!.size || p.pair!.separation - q.pair!.separation);
@@ -196,12 +196,12 @@ function pairTables(input: StudyExportInput, id8: string): string[] {
     lines.push('\\begin{table}[htbp]');
     lines.push('  \\centering');
     lines.push(
-      `  \\caption{Decay of $\\langle I \\rangle$ with the separation: weighted fits $\\ln\\langle I\\rangle = p \\ln(d/L) + q$ per rule, $\\ell/L$ and $N$ over the separations with $\\langle I \\rangle > 0$ (table~\\ref{tab:tacet-study-${id8}-mutual-information}), beside the slope of the same fit through the continuum two-interval trend $I = \\tfrac13 \\ln[(\\ell+d)^2/(d(2\\ell+d))]$ of a $c = 1$ vacuum at the same $d/L$ (Calabrese--Cardy 2004; Casini--Huerta 2009; exact for a free Dirac fermion, a trend for the boson). Finite-size effects and the truncation, a modelling choice, shift both.}`,
+      `  \\caption{Decay of $\\langle I \\rangle$ with the separation: weighted fits $\\ln\\langle I\\rangle = p \\ln(d/T) + q$ per rule, $\\ell/T$ and $N$ over the separations with $\\langle I \\rangle > 0$ (table~\\ref{tab:tacet-study-${id8}-mutual-information}), beside the slope of the same fit through the continuum two-interval trend $I = \\tfrac13 \\ln[(\\ell+d)^2/(d(2\\ell+d))]$ of a $c = 1$ vacuum at the same $d/T$ (Calabrese--Cardy 2004; Casini--Huerta 2009; exact for a free Dirac fermion, a trend for the boson). Finite-size effects and the truncation, a modelling choice, shift both.}`,
     );
     lines.push(`  \\label{tab:tacet-study-${id8}-mutual-information-fits}`);
     lines.push('  \\begin{tabular}{lrrrccc}');
     lines.push('    \\toprule');
-    lines.push('    rule & $N$ & $\\ell/L$ & points & $p$ (measured) & $p$ (continuum trend) & $d/L$ range \\\\');
+    lines.push('    rule & $N$ & $\\ell/T$ & points & $p$ (measured) & $p$ (continuum trend) & $d/T$ range \\\\');
     lines.push('    \\midrule');
     for (const f of fits) {
       const points = `${f.points}${f.excluded ? ` (${f.excluded} left out)` : ''}`;
@@ -212,7 +212,7 @@ function pairTables(input: StudyExportInput, id8: string): string[] {
     lines.push('    \\bottomrule');
     lines.push('  \\end{tabular}');
     lines.push('\\end{table}');
-    lines.push(...fits.map((f) => `% ${f.rule}, N = ${f.N}, l/L = ${f.size}: ${pairDecaySentence(f)}`));
+    lines.push(...fits.map((f) => `% ${f.rule}, N = ${f.N}, l/T = ${f.size}: ${pairDecaySentence(f)}`));
   }
   return lines;
 }

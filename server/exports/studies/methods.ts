@@ -18,9 +18,9 @@ export function methodsParagraph(input: StudyExportInput): string {
   const subregions = request.subregions;
   const sizes =
     subregions.kind === 'concentric'
-      ? `concentric sub-diamonds with ℓ/L ∈ {${subregions.fractions.join(', ')}}`
+      ? `concentric sub-diamonds with ℓ/T ∈ {${subregions.fractions.join(', ')}}`
       : subregions.kind === 'pairs'
-        ? `pairs A, B of equal sub-diamonds of proper time ℓ, ℓ/L ∈ {${subregions.sizes.join(', ')}}, on the central slice of the region, symmetric about its centre with a gap d between their facing corners, d/L ∈ {${subregions.separations.join(', ')}}, and their union A∪B`
+        ? `pairs A, B of equal sub-diamonds of proper time ℓ, ℓ/T ∈ {${subregions.sizes.join(', ')}}, on the central slice of the region, symmetric about its centre with a gap d between their facing corners, d/T ∈ {${subregions.separations.join(', ')}}, and their union A∪B`
       : subregions.kind === 'tips'
         ? `${input.subregions.length} sub-diamond(s) given by their tips`
         : `${input.subregions.length} subregion(s) given as lists of elements`;
@@ -76,11 +76,11 @@ function pairSentences(input: StudyExportInput): string[] {
   if (!input.subregions.some((s) => s.pair)) return [];
   const fits = input.fits.filter((f) => f.model === 'loglog');
   const measured = fits.length
-    ? `Fitting ln⟨I⟩ = p ln(d/L) + q by weighted least squares (σ = SE/⟨I⟩) over the separations with ⟨I⟩ > 0, per rule, ℓ/L and N, we measured: ${fits.map((f) => `${f.rule} at N = ${f.N}, ℓ/L = ${f.size}: ${pairDecaySentence(f)}`).join('; ')}.`
-    : `No rule, ℓ/L and N had the three separations with ⟨I⟩ > 0 a log-log fit of I against d needs, so no decay exponent is reported.`;
+    ? `Fitting ln⟨I⟩ = p ln(d/T) + q by weighted least squares (σ = SE/⟨I⟩) over the separations with ⟨I⟩ > 0, per rule, ℓ/T and N, we measured: ${fits.map((f) => `${f.rule} at N = ${f.N}, ℓ/T = ${f.size}: ${pairDecaySentence(f)}`).join('; ')}.`
+    : `No rule, ℓ/T and N had the three separations with ⟨I⟩ > 0 a log-log fit of I against d needs, so no decay exponent is reported.`;
   return [
     `For each pair we report the mutual information I(A:B) = S_A + S_B − S_{A∪B} on the same state, after checking in the causal order that A and B share no element and no element of A is related to one of B; with double truncation each of A, B and A∪B is cut at its own restricted cut (√n/(4π) with n its own element count), so I depends on that choice of truncation.`,
     measured,
-    `The continuum trend we compare with is the two-interval result of a c = 1 vacuum, I = (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] ${cite('calabrese2004', 'casini2009')}, exact for a free Dirac fermion and only a trend for the boson, with each sub-diamond standing for its base interval of length ℓ; its log-log slope over the same d/L values is quoted beside each measured one, as a comparison of shapes, not of values. I is a difference of large numbers, so its relative error far exceeds that of S, and at small N the sub-diamonds hold few elements.`,
+    `The continuum trend we compare with is the two-interval result of a c = 1 vacuum, I = (1/3) ln[(ℓ+d)²/(d(2ℓ+d))] ${cite('calabrese2004', 'casini2009')}, exact for a free Dirac fermion and only a trend for the boson, with each sub-diamond standing for its base interval of length ℓ; its log-log slope over the same d/T values is quoted beside each measured one, as a comparison of shapes, not of values. I is a difference of large numbers, so its relative error far exceeds that of S, and at small N the sub-diamonds hold few elements.`,
   ];
 }

@@ -24,7 +24,7 @@ function RuleSelect({ value, onChange, rules, labels, what = 'rule' }: { value: 
 const axisTitle = (text: string) => ({ title: { text } });
 
 /**
- * ⟨I⟩ against d/L on log-log axes with the fits and the continuum trend's slope, and beside it the
+ * ⟨I⟩ against d/T on log-log axes with the fits and the continuum trend's slope, and beside it the
  * measured agreement in words and the cautions a difference of large numbers needs.
  */
 function PairDecayPlot({ study, rule, onRule }: { study: StudyDetail; rule: string; onRule(rule: string): void }) {
@@ -41,13 +41,13 @@ function PairDecayPlot({ study, rule, onRule }: { study: StudyDetail; rule: stri
           data={pairDecayTraces(study.aggregates, study.fits, rule)}
           height={480}
           layout={{
-            xaxis: { type: 'log', title: { text: 'd/L (gap between the sub-diamonds)' } },
+            xaxis: { type: 'log', title: { text: 'd/T (gap between the sub-diamonds)' } },
             yaxis: { type: 'log', exponentformat: 'power', title: { text: '⟨I⟩' } },
             // below the plot, so the axes keep the width on a phone
             legend: { orientation: 'h', x: 0, y: -0.18, yanchor: 'top', bgcolor: 'rgba(0,0,0,0)' },
             margin: { l: 56, r: 16, t: 16, b: 44 },
           }}
-          caption={`${study.ruleLabels[rule] ?? rule}: ensemble means of I = S_A + S_B − S_A∪B with standard errors, one series per ℓ/L and N${left ? ` (${left} mean${left === 1 ? '' : 's'} ≤ 0 cannot be drawn on log axes and ${left === 1 ? 'is' : 'are'} left out of the fits)` : ''}; dashed: weighted log-log fits; green: the continuum two-interval trend of a c = 1 vacuum, drawn with its own log-log slope through the middle of each fit — a comparison of slopes, not of values.`}
+          caption={`${study.ruleLabels[rule] ?? rule}: ensemble means of I = S_A + S_B − S_A∪B with standard errors, one series per ℓ/T and N${left ? ` (${left} mean${left === 1 ? '' : 's'} ≤ 0 cannot be drawn on log axes and ${left === 1 ? 'is' : 'are'} left out of the fits)` : ''}; dashed: weighted log-log fits; green: the continuum two-interval trend of a c = 1 vacuum, drawn with its own log-log slope through the middle of each fit — a comparison of slopes, not of values.`}
         />
         <aside className="flex flex-col gap-3 text-sm text-ink-soft" data-testid="pair-agreement">
           <p className="font-medium text-ink">Measured against the continuum trend</p>
@@ -55,7 +55,7 @@ function PairDecayPlot({ study, rule, onRule }: { study: StudyDetail; rule: stri
             const fit = pairFitOf(study.fits, rule, size, N);
             return (
               <p key={`${size}-${N}`}>
-                <span className="font-mono text-xs text-ink">ℓ/L = {size}, N = {N}:</span>{' '}
+                <span className="font-mono text-xs text-ink">ℓ/T = {size}, N = {N}:</span>{' '}
                 {fit ? `${pairDecaySentence(fit)}.` : 'no fit: it needs three separations with ⟨I⟩ > 0.'}
               </p>
             );
@@ -98,7 +98,7 @@ function RenyiPlot({ study, renyiKeys }: { study: StudyDetail; renyiKeys: string
 
 /**
  * S against ln √n with error bars and the fit, S against n, S_α against ln √n when the study has Rényi
- * orders, ⟨I⟩ against d/L for pairs, and one spectrum per N.
+ * orders, ⟨I⟩ against d/T for pairs, and one spectrum per N.
  */
 export function StudyPlots({ study }: { study: StudyDetail }) {
   const rules = study.rules;

@@ -150,7 +150,7 @@ export function RenyiTable({
   );
 }
 
-/** ⟨I⟩ ± SE per (N, ℓ/L, d/L), one column per rule, for a study of pairs. */
+/** ⟨I⟩ ± SE per (N, ℓ/T, d/T), one column per rule, for a study of pairs. */
 export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: StudyAggregate[]; rules: string[]; ruleLabels: Record<string, string> }) {
   const pairs = aggregates.filter((a) => a.pair);
   const byKey = new Map(pairs.map((a) => [`${a.N}|${a.subregion}|${a.rule}`, a]));
@@ -163,8 +163,8 @@ export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: Study
         <thead>
           <tr>
             <th className={th}>N</th>
-            <th className={th}>ℓ/L</th>
-            <th className={th}>d/L</th>
+            <th className={th}>ℓ/T</th>
+            <th className={th}>d/T</th>
             <th className={th}>seeds</th>
             <th className={th}>⟨n_A⟩ ≈ ⟨n_B⟩</th>
             {rules.map((r) => (
@@ -208,7 +208,7 @@ export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: Study
   );
 }
 
-/** The log-log fits of ⟨I⟩ against d/L per rule, ℓ/L and N, beside the continuum trend's slope over the same d/L. */
+/** The log-log fits of ⟨I⟩ against d/T per rule, ℓ/T and N, beside the continuum trend's slope over the same d/T. */
 export function PairFitsTable({ fits, ruleLabels }: { fits: StudyFit[]; ruleLabels: Record<string, string> }) {
   const rows = fits.filter((f) => f.model === 'loglog');
   return (
@@ -217,12 +217,12 @@ export function PairFitsTable({ fits, ruleLabels }: { fits: StudyFit[]; ruleLabe
         <thead>
           <tr>
             <th className={th}>rule</th>
-            <th className={th}>ℓ/L</th>
+            <th className={th}>ℓ/T</th>
             <th className={th}>N</th>
             <th className={th}>points</th>
             <th className={th} colSpan={2}>slope of ln ⟨I⟩ vs ln d</th>
             <th className={th}>continuum trend</th>
-            <th className={th}>d/L range</th>
+            <th className={th}>d/T range</th>
           </tr>
         </thead>
         <tbody>

@@ -49,8 +49,8 @@ export function scalingTraces({ aggregates, fits, rule, subregionLabels, model, 
       customdata: points.map((p) => p.N),
     };
   });
-  // With several subregions the line per subregion (across N, at fixed ℓ/L) is the ultraviolet
-  // scaling; one line through every point would mix in how S depends on ℓ/L.
+  // With several subregions the line per subregion (across N, at fixed ℓ/T) is the ultraviolet
+  // scaling; one line through every point would mix in how S depends on ℓ/T.
   const lines = subregions.length > 1 ? subregions.map((sub) => ({ sub, points: rows.filter((r) => r.subregion === sub) })) : [{ sub: null, points: rows }];
   const slopeName = model === 'log' ? 'b' : 'a';
   lines.forEach(({ sub, points }, k) => {
@@ -134,7 +134,7 @@ export function spectraTraces(
   return traces;
 }
 
-/** The pair-study series: one per (ℓ/L, N) of a rule, separations ascending. */
+/** The pair-study series: one per (ℓ/T, N) of a rule, separations ascending. */
 export function pairSeries(aggregates: StudyAggregate[], rule: string): { size: number; N: number; rows: StudyAggregate[] }[] {
   const series = new Map<string, { size: number; N: number; rows: StudyAggregate[] }>();
   for (const a of aggregates) {
@@ -149,13 +149,13 @@ export function pairSeries(aggregates: StudyAggregate[], rule: string): { size: 
     .map((s) => ({ ...s, rows: s.rows.sort((p, q) => p.pair!.separation - q.pair!.separation) }));
 }
 
-/** The log-log fit of one (rule, ℓ/L, N), if the study has one. */
+/** The log-log fit of one (rule, ℓ/T, N), if the study has one. */
 export const pairFitOf = (fits: StudyFit[], rule: string, size: number, N: number): StudyFit | undefined =>
   fits.find((f) => f.model === 'loglog' && f.rule === rule && f.size === size && f.N === N);
 
 /**
- * ⟨I⟩ ± SE against d/L on log-log axes, one series per (ℓ/L, N) of the rule (⟨I⟩ ≤ 0 cannot be drawn
- * there and is left out; the fit leaves it out too), each fit ⟨I⟩ = e^q (d/L)^p as a dashed accent line
+ * ⟨I⟩ ± SE against d/T on log-log axes, one series per (ℓ/T, N) of the rule (⟨I⟩ ≤ 0 cannot be drawn
+ * there and is left out; the fit leaves it out too), each fit ⟨I⟩ = e^q (d/T)^p as a dashed accent line
  * over the fitted range, and the continuum trend as a `reference` line of the continuum's log-log slope
  * (stored with the fit) through the middle of the fitted line: a comparison of slopes, not of values.
  */
@@ -163,7 +163,7 @@ export function pairDecayTraces(aggregates: StudyAggregate[], fits: StudyFit[], 
   const traces: Record<string, unknown>[] = [];
   pairSeries(aggregates, rule).forEach(({ size, N, rows }, k) => {
     const drawn = rows.filter((r) => r.pair!.meanI > 0);
-    const name = `ℓ/L = ${size}, N = ${N}`;
+    const name = `ℓ/T = ${size}, N = ${N}`;
     traces.push({
       type: 'scatter',
       mode: 'markers',
@@ -172,7 +172,7 @@ export function pairDecayTraces(aggregates: StudyAggregate[], fits: StudyFit[], 
       y: drawn.map((r) => r.pair!.meanI),
       error_y: { type: 'data', array: drawn.map((r) => r.pair!.seI ?? 0), visible: true, color: inks[k % 2], thickness: 1, width: 3 },
       marker: { color: inks[k % 2], symbol: symbols[k % symbols.length], size: 7 },
-      hovertemplate: `d/L = %{x:.4g}<br>⟨I⟩ = %{y:.4g}<extra>${name}</extra>`,
+      hovertemplate: `d/T = %{x:.4g}<br>⟨I⟩ = %{y:.4g}<extra>${name}</extra>`,
     });
     const fit = pairFitOf(fits, rule, size, N);
     if (!fit?.continuum) return;

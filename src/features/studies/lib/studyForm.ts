@@ -20,7 +20,7 @@ import { defaultTruncationFor } from '@shared/vacuum';
 import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../../lib/truncationForm';
 import { renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 
-/** Whether concentric sub-diamonds (ℓ/L) or pairs on the central slice can be asked for on a kind: it needs a diamond of its own. */
+/** Whether concentric sub-diamonds (ℓ/T) or pairs on the central slice can be asked for on a kind: it needs a diamond of its own. */
 export const offersConcentric = (kind: RegionKind): boolean => regionDescriptors[kind].ownDiamond !== undefined;
 
 const tipText = (e: Event) => ('y' in e ? [e.t, e.x, e.y, e.z] : [e.t, e.x]).join(',');
@@ -61,7 +61,7 @@ export interface StudyFormValues extends RegionFieldValues {
   seedPrefix: string;
   subregionKind: 'concentric' | 'pairs' | 'tips' | 'elements';
   fractions: string;
-  /** pairs for the mutual information: ℓ/L of each of the two sub-diamonds, and the gaps d/L */
+  /** pairs for the mutual information: ℓ/T of each of the two sub-diamonds, and the gaps d/T */
   pairSizes: string;
   separations: string;
   /** Rényi orders α as typed ("0.5, 2, inf"); blank for none */

@@ -28,7 +28,7 @@ import {
   type StudyFormValues,
 } from '../lib/studyForm';
 
-/** The study's words for the region fields: L is the proper time the fractions ℓ/L refer to. */
+/** The study's words for the region fields: L is the proper time the fractions ℓ/T refer to. */
 const studyRegionWording: RegionFieldWording = {
   properTime: { label: 'Diamond proper time L', hint: (kind) => `${regionLabels[kind]}, tips at t = ±L/2` },
   circumference: { hint: 'x is periodic with this period' },
@@ -180,7 +180,7 @@ export function NewStudyPage() {
         <Section title="Subregions">
           <div className="grid grid-cols-1 gap-6 sm:grid-cols-[17rem_1fr]">
             <SelectField label="Kind" name="subregionKind" value={values.subregionKind} onChange={(e) => set('subregionKind', e.target.value as StudyFormValues['subregionKind'])} error={errors.subregionKind}>
-              {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="concentric">concentric, by ℓ/L</option>}
+              {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="concentric">concentric, by ℓ/T</option>}
               {!(values.source === 'sprinkled' && !offersConcentric(values.regionKind)) && <option value="pairs">pairs for mutual information</option>}
               <option value="tips">by tips</option>
               {values.source === 'imported' && <option value="elements">element lists</option>}
@@ -199,11 +199,11 @@ export function NewStudyPage() {
               </div>
             ) : values.subregionKind === 'pairs' ? (
               <div className="grid grid-cols-1 gap-6 sm:grid-cols-2">
-                <TextField label="Pair sizes ℓ/L" name="pairSizes" className="font-mono" value={values.pairSizes} onChange={(e) => set('pairSizes', e.target.value)} error={errors.pairSizes} hint={`proper time of each of the two equal sub-diamonds; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
-                <TextField label="Separations d/L" name="separations" className="font-mono" value={values.separations} onChange={(e) => set('separations', e.target.value)} error={errors.separations} hint="gap between the facing corners on the central slice; 2ℓ + d ≤ L; three or more for a log-log fit of I against d" />
+                <TextField label="Pair sizes ℓ/T" name="pairSizes" className="font-mono" value={values.pairSizes} onChange={(e) => set('pairSizes', e.target.value)} error={errors.pairSizes} hint={`proper time of each of the two equal sub-diamonds; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
+                <TextField label="Separations d/T" name="separations" className="font-mono" value={values.separations} onChange={(e) => set('separations', e.target.value)} error={errors.separations} hint="gap between the facing corners on the central slice; 2ℓ + d ≤ L; three or more for a log-log fit of I against d" />
               </div>
             ) : values.subregionKind === 'concentric' ? (
-              <TextField label="ℓ/L values" name="fractions" className="font-mono" value={values.fractions} onChange={(e) => set('fractions', e.target.value)} error={errors.fractions} hint={`sub-diamonds sharing the centre, proper time ℓ = (ℓ/L)·L; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
+              <TextField label="ℓ/T values" name="fractions" className="font-mono" value={values.fractions} onChange={(e) => set('fractions', e.target.value)} error={errors.fractions} hint={`sub-diamonds sharing the centre, proper time ℓ = (ℓ/T)·L; each needs ≥ ${STUDY_MIN_SUBREGION_ELEMENTS} elements at the smallest N`} />
             ) : (
               <div className="flex flex-col gap-1">
                 <label htmlFor="study-tips" className="text-xs tracking-wide text-ink-soft">

@@ -143,7 +143,7 @@ export function StudyPage() {
               pairFits ? (
                 <PairFitsTable fits={s.fits} ruleLabels={s.ruleLabels} />
               ) : (
-                <p className="text-sm text-ink-soft">A log-log fit of I against d needs three separations with ⟨I⟩ &gt; 0 per rule, ℓ/L and N.</p>
+                <p className="text-sm text-ink-soft">A log-log fit of I against d needs three separations with ⟨I⟩ &gt; 0 per rule, ℓ/T and N.</p>
               )
             ) : entropyFits ? (
               <FitsTable fits={s.fits} ruleLabels={s.ruleLabels} subregionLabels={subregionLabels} />
