@@ -1,7 +1,7 @@
 import type Plotly from 'plotly.js-dist-min';
 import { lazy, Suspense, useMemo, useRef, useState } from 'react';
 import { typesetPlotObject } from '../lib/plotText';
-import { baseLayout } from '../lib/plotTheme';
+import { baseLayout, tidyLogAxes } from '../lib/plotTheme';
 import { Button } from './Button';
 import { Loading } from './States';
 
@@ -28,7 +28,7 @@ export function PlotFigure({ title, fileName, data, layout, height = 420, captio
   const graph = useRef<HTMLElement | null>(null);
   const [error, setError] = useState<string | null>(null);
   const typesetData = useMemo(() => typesetPlotObject(data), [data]);
-  const typesetLayout = useMemo(() => typesetPlotObject(baseLayout({ height, autosize: true, ...layout })), [layout, height]);
+  const typesetLayout = useMemo(() => typesetPlotObject(tidyLogAxes(baseLayout({ height, autosize: true, ...layout }), data)), [layout, data, height]);
 
   async function download(format: 'png' | 'svg') {
     if (!graph.current) return;

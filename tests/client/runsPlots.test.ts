@@ -133,6 +133,7 @@ describe('log axis ticks', () => {
     expect(logDecadeStep([100, 1, 0.01])).toBe(1);
     expect(logDecadeStep([100, 1e-9, 0])).toBe(2);
     expect(logDecadeStep([1e3, 1e-13])).toBe(3);
-    expect(logDecadeStep([])).toBe(1);
+    expect(logDecadeStep([])).toBe('D2');
+    expect(logDecadeStep([0.03, 0.2])).toBe('D2');
   });
 });

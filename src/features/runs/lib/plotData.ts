@@ -1,6 +1,7 @@
 import { formatQuantity } from '@shared/precision';
 import { diamondOutline, regionOutlineOf, regionSpecSchema } from '@shared/regions';
 import type { RunPoints, RunResult } from '@shared/runs';
+import { decadesSpanned, logAxisStep } from '../../../lib/plotTheme';
 import { renyiLabel, sortedRenyiOrders, type RenyiOrder } from '@shared/vacuum';
 
 /**
@@ -240,22 +241,9 @@ export function compareTraces(runs: CompareRun[], normalised: boolean, colors: P
   return traces;
 }
 
-/**
- * Tick step of a log axis in decades: every decade for up to seven, every second beyond, so labels never
- * crowd and Plotly's 2-and-5 minor labels (which read as data) never appear.
- */
-export function logDecadeStep(values: number[]): number {
-  let min = Infinity;
-  let max = -Infinity;
-  for (const v of values) {
-    if (v > 0 && Number.isFinite(v)) {
-      if (v < min) min = v;
-      if (v > max) max = v;
-    }
-  }
-  if (!(max > min)) return 1;
-  const decades = Math.log10(max / min);
-  return decades > 14 ? 3 : decades > 7 ? 2 : 1;
+/** The label step of a log axis over these values (src/lib/plotTheme.ts logAxisStep), for an axis whose range includes a value no trace draws (the cut). */
+export function logDecadeStep(values: number[]): number | 'D2' {
+  return logAxisStep(decadesSpanned(values));
 }
 
 /** Plotly's monospace tick font, for the layouts built in the components. */
