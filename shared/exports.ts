@@ -19,7 +19,7 @@ export interface ExportFormatRow {
 }
 
 /** A run's exports; the format is also the last segment of its URL, `/api/runs/:id/<format>`. */
-export const runExportFormats = ['points.csv', 'spectrum.csv', 'spectrum.json'] as const;
+export const runExportFormats = ['points.csv', 'spectrum.csv', 'spectrum.json', 'entropy.csv', 'generalized.csv', 'run.json', 'numbers.tex'] as const;
 export type RunExportFormat = (typeof runExportFormats)[number];
 
 /** One restricted cut as exports give it: the rule's text ("√n/(4π)", "λ = 0.2") and the |λ| it came to; rule null without double truncation. */
@@ -55,6 +55,60 @@ export const runSpectrumExportSchema = z.object({
 });
 export type RunSpectrumExport = z.infer<typeof runSpectrumExportSchema>;
 
+/**
+ * `run.json`: one run with everything a reader needs to trust and reuse its numbers — settings,
+ * diagnostics, the spectrum, the subregion's generalised eigenvalues μ (W v = μ iΔ v restricted to the
+ * subregion, server/engine/README.md §9), every entropy and the provenance.
+ */
+export const runJsonExportSchema = z.object({
+  format: z.literal('tacet-run/1'),
+  exportedAt: z.string(),
+  run: z.object({
+    id: z.string(),
+    title: z.string().nullable(),
+    status: z.string(),
+    author: z.string(),
+    parentRunId: z.string().nullable(),
+    createdAt: z.string(),
+    startedAt: z.string().nullable(),
+    finishedAt: z.string().nullable(),
+  }),
+  /** the validated request the run was made from, as stored */
+  request: z.unknown(),
+  settings: z.object({
+    dimension: z.union([z.literal(2), z.literal(4)]),
+    regionKind: z.string(),
+    region: z.unknown().nullable(),
+    causalSet: z.object({ id: z.string(), name: z.string() }).nullable(),
+    seed: z.string().nullable(),
+    prng: z.string().nullable(),
+    process: z.string().nullable(),
+    mass: z.number(),
+    truncation: z.string(),
+    entropyRule: z.string(),
+    restrictedCut: z.string().nullable(),
+    engineRequest: z.string(),
+  }),
+  provenance: z.object({
+    tacetVersion: z.string(),
+    engineVersion: z.string(),
+    backend: z.string(),
+    engine: z.string(),
+    engineReason: z.string().nullable(),
+    timings: z.record(z.string(), z.number()),
+  }),
+  causalSet: z.object({ N: z.number().int(), density: z.number().nullable(), volume: z.number().nullable(), relations: z.number().int(), links: z.number().int().nullable() }),
+  spectrum: runSpectrumExportSchema.omit({ entropies: true }).extend({ knee: z.unknown().nullable() }),
+  diagnostics: z.record(z.string(), z.unknown()),
+  cautions: z.array(z.string()),
+  /** the subregion's entropy and its generalised eigenvalues μ, descending; null without a subregion */
+  subregion: z
+    .object({ S: z.number(), n: z.number().int(), modesKept: z.number().int(), cutoff: z.number().nullable(), restrictedCut: z.string().nullable(), renyi: z.record(z.string(), z.number()).nullable(), generalizedEigenvalues: z.array(z.number()) })
+    .nullable(),
+  entropies: runEntropiesExportSchema.nullable(),
+});
+export type RunJsonExport = z.infer<typeof runJsonExportSchema>;
+
 export interface RunExportRow extends ExportFormatRow {
   /** the route's summary in the OpenAPI description */
   summary: string;
@@ -87,6 +141,39 @@ export const runExports = {
     extension: 'json',
     summary: 'Spectrum with cut and continuum',
     schema: runSpectrumExportSchema,
+  },
+  'entropy.csv': {
+    label: 'Entropies (CSV)',
+    note: 'quantity, part, α, n, value, modes kept, cut: S, S_α, the pair and the complement, 17 significant digits',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-entropies',
+    extension: 'csv',
+    summary: 'Entropies as CSV: quantity,part,alpha,n,value,modes_kept,cutoff,restricted_cut',
+  },
+  'generalized.csv': {
+    label: 'Generalised eigenvalues (CSV)',
+    note: 'rank, μ of the subregion (W v = μ iΔ v), 17 significant digits',
+    contentType: 'text/csv; charset=utf-8',
+    nameSuffix: '-generalized-eigenvalues',
+    extension: 'csv',
+    summary: "The subregion's generalised eigenvalues μ as CSV: rank,mu",
+  },
+  'run.json': {
+    label: 'Run with provenance (JSON)',
+    note: 'settings, diagnostics, spectrum, μ, entropies, engine version, backend, seed, times',
+    contentType: 'application/json; charset=utf-8',
+    nameSuffix: '',
+    extension: 'json',
+    summary: 'The whole run with its provenance',
+    schema: runJsonExportSchema,
+  },
+  'numbers.tex': {
+    label: 'Numbers (LaTeX)',
+    note: 'booktabs table of N, ρ, the cut, n, S, S_α and I(A:B) by the precision rule',
+    contentType: 'text/x-tex; charset=utf-8',
+    nameSuffix: '-numbers',
+    extension: 'tex',
+    summary: "The run's numbers as a LaTeX table",
   },
 } as const satisfies Record<RunExportFormat, RunExportRow>;
 

@@ -13,7 +13,9 @@ import {
 } from '@shared/exports';
 import { createStudyRequestSchema, type SprinkledStudyRequest, type StudyEntropy } from '@shared/studies';
 import { apiRoutes } from '../../server/api/openapi';
-import { pointsCsv, runRenderers, spectrumCsv, spectrumJson, type RunExportSource } from '../../server/exports/runs';
+import { entropyCsv, generalizedEigenvaluesCsv, pointsCsv, runRenderers, spectrumCsv, spectrumJson, type RunExportSource } from '../../server/exports/runs';
+import { runNumbersLatex } from '@shared/runNumbers';
+import type { RunDetail } from '@shared/runs';
 import { studyRenderers, type StudyExportInput } from '../../server/exports/studies';
 import { aggregateEntropies, fitAggregates } from '../../server/studies/aggregate';
 import { resolveSubregions } from '../../server/studies/plan';
@@ -49,8 +51,20 @@ describe('one export table for the API and the client', () => {
       `/api/runs/${id}/points.csv`,
       `/api/runs/${id}/spectrum.csv`,
       `/api/runs/${id}/spectrum.json`,
+      `/api/runs/${id}/entropy.csv`,
+      `/api/runs/${id}/generalized.csv`,
+      `/api/runs/${id}/run.json`,
+      `/api/runs/${id}/numbers.tex`,
     ]);
-    expect(runExportFormats.map((f) => exportFileName('run', id, f))).toEqual(['tacet-run-2a2f7d25-points.csv', 'tacet-run-2a2f7d25-spectrum.csv', 'tacet-run-2a2f7d25-spectrum.json']);
+    expect(runExportFormats.map((f) => exportFileName('run', id, f))).toEqual([
+      'tacet-run-2a2f7d25-points.csv',
+      'tacet-run-2a2f7d25-spectrum.csv',
+      'tacet-run-2a2f7d25-spectrum.json',
+      'tacet-run-2a2f7d25-entropies.csv',
+      'tacet-run-2a2f7d25-generalized-eigenvalues.csv',
+      'tacet-run-2a2f7d25.json',
+      'tacet-run-2a2f7d25-numbers.tex',
+    ]);
     expect(exportUrl('study', id, 'aggregates-csv')).toBe(`/api/studies/${id}/export?format=aggregates-csv`);
     const names = Object.fromEntries(studyExportFormats.map((f) => [f, [exportFileName('study', id, f), studyExports[f].contentType]]));
     expect(names).toEqual({
@@ -75,6 +89,18 @@ describe('run renderers', () => {
   // binary64, common practice; the same strings as Python's '%.17g').
   const points = { columns: ['t', 'x'], points: [[0.1, -0.25], [1 / 3, 0]] };
   const spectrum = { eigenvalues: [2, 1.5, 0.5], continuum: [2.1, 1.4, 0.6], cutoff: 1, modesKept: 2, N: 3 };
+  // the fields of a run's detail the whole-run exports read
+  const doneRun = {
+    id: '2a2f7d25-1111-4000-8000-000000000000', title: null, status: 'done', stage: null, percent: 100, author: { id: 'u', name: 'Ada' },
+    createdAt: '2026-01-01T00:00:00.000Z', startedAt: null, finishedAt: null, dimension: 2, regionKind: 'diamond2d', N: 3, truncation: 'none',
+    restrictedCut: null, S: 0.25, parentRunId: null, request: { mass: 0, truncation: { rule: 'none' } }, error: null, cancelRequested: false,
+    result: {
+      N: 3, density: 3, volume: 1, relations: 2, links: 2, eigenvalues: spectrum.eigenvalues, continuum: null, cutoff: 0, modesKept: 3, knee: null,
+      diagnostics: { hermiticity: 0, minEigenvalueW: 0, commutatorResidual: 0, positiveNegativeOverlap: 0, trace: 1.5 },
+      entropy: { S: 0.25, n: 2, modesKept: 2, generalizedEigenvalues: [1.2, -0.2], renyi: null },
+      backend: 'ml-matrix', engineVersion: 'tacet-engine 0.1.0', timings: {},
+    },
+  } as RunDetail;
 
   it('writes the points with 17 significant digits, one element a row', () => {
     expect(pointsCsv(points)).toBe('t,x\n0.10000000000000001,-0.25000000000000000\n0.33333333333333331,0.0000000000000000\n');
@@ -97,11 +123,22 @@ describe('run renderers', () => {
       const source: RunExportSource = {
         points: async () => (loaded.push('points'), points),
         spectrum: async () => (loaded.push('spectrum'), spectrum),
+        run: async () => (loaded.push('run'), doneRun),
       };
       const body = await runRenderers[format](source);
-      const expected = format === 'points.csv' ? pointsCsv(points) : format === 'spectrum.csv' ? spectrumCsv(spectrum) : spectrumJson(spectrum);
-      expect(body, format).toBe(expected);
-      expect(loaded, format).toEqual([format === 'points.csv' ? 'points' : 'spectrum']);
+      const expected = {
+        'points.csv': () => pointsCsv(points),
+        'spectrum.csv': () => spectrumCsv(spectrum),
+        'spectrum.json': () => spectrumJson(spectrum),
+        'entropy.csv': () => entropyCsv(doneRun.result!),
+        'generalized.csv': () => generalizedEigenvaluesCsv(doneRun.result!),
+        'run.json': () => null,
+        'numbers.tex': () => runNumbersLatex(doneRun),
+      }[format]();
+      if (expected === null) expect((JSON.parse(body) as { run: { id: string } }).run.id, format).toBe(doneRun.id);
+      else expect(body, format).toBe(expected);
+      const needs = { 'points.csv': ['points'], 'spectrum.csv': ['spectrum'], 'spectrum.json': ['spectrum'], 'run.json': ['run', 'spectrum'] } as Record<string, string[]>;
+      expect(loaded.sort(), format).toEqual(needs[format] ?? ['run']);
     }
   });
 });

@@ -386,7 +386,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
     /** One export of a run: body, content type and the attachment's file name. */
     async exportRun(team: TeamContext, id: string, format: RunExportFormat): Promise<ExportFile> {
       const row = await findOrThrow(team, id);
-      const body = await runRenderers[format]({ points: () => pointsOf(row), spectrum: () => spectrumOf(row) });
+      const body = await runRenderers[format]({ points: () => pointsOf(row), spectrum: () => spectrumOf(row), run: () => detail(requireDone(row)) });
       return exportFile('run', row.id, format, body);
     },
   };
