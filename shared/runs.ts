@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { computeTimingSchema } from './computeTiming';
 import { manifoldLikenessSchema } from './manifoldLikeness';
 import { regionKinds } from './regions';
 import {
@@ -61,6 +62,9 @@ export const reanalyseRunRequestSchema = z.strictObject({
 });
 export type ReanalyseRunRequest = z.infer<typeof reanalyseRunRequestSchema>;
 
+/** Answer of POST /api/runs/:id/reseed: the new run and the seed it sprinkles from. */
+export const reseededRunSchema = z.object({ id: z.string(), seed: z.string() });
+
 export const runSortFields = ['createdAt', 'N', 'S', 'status'] as const;
 
 /** Query of GET /api/runs. */
@@ -99,6 +103,10 @@ export const runSummarySchema = z.object({
   /** entropy of the subregion when one was asked and the run is done */
   S: z.number().nullable(),
   parentRunId: z.string().nullable(),
+  /** the failed or cancelled run this one retries (POST /api/runs/:id/retry), else null */
+  retryOfRunId: z.string().nullable(),
+  /** elapsed time, an estimate of the time left and the queue position */
+  timing: computeTimingSchema,
 });
 export type RunSummary = z.infer<typeof runSummarySchema>;
 

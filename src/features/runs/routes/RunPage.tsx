@@ -19,6 +19,7 @@ import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
 import { StatusLabel } from '../../../ui/StatusLabel';
 import { runLabel } from '../lib/runIds';
+import { RunLatexCopy } from '../components/RunLatexCopy';
 
 export function RunPage() {
   const { runId = '' } = useParams();
@@ -188,6 +189,7 @@ function RunView({ run }: { run: RunDetail }) {
             <ExportDownloads kind="run" id={run.id}>
               Each plot has its own PNG and SVG download beneath it.
             </ExportDownloads>
+            <RunLatexCopy run={run} />
           </Section>
         </>
       )}
