@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { computeTimingSchema } from './computeTiming';
 import {
   effectiveRestrictedCut,
   entropyRuleLabel,
@@ -442,6 +443,8 @@ export const studySummarySchema = z.object({
     /** 0..100 including the share of the cells still computing */
     percent: z.number(),
   }),
+  /** elapsed time, an estimate of the time left (from the finished cells) and the queue position of the next waiting cell */
+  timing: computeTimingSchema,
 });
 export type StudySummary = z.infer<typeof studySummarySchema>;
 

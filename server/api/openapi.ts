@@ -23,6 +23,7 @@ import {
   cutRuleSchema,
   listRunsQuerySchema,
   reanalyseRunRequestSchema,
+  reseededRunSchema,
   runDetailSchema,
   runListResponseSchema,
   runPointsSchema,
@@ -106,6 +107,8 @@ export const apiRoutes: ApiRouteDescription[] = [
   { method: 'get', path: '/api/runs/:id', summary: 'A run: status, progress and, when done, its result', tag: 'runs', access: 'read', status: 200, response: runDetailSchema },
   { method: 'post', path: '/api/runs/:id/cancel', summary: 'Cancel a queued or running run', tag: 'runs', access: 'compute', status: 200, response: runDetailSchema },
   { method: 'post', path: '/api/runs/:id/reanalyse', summary: 'A new run on the same points with other settings', tag: 'runs', access: 'compute', status: 202, body: reanalyseRunRequestSchema, response: idAnswer },
+  { method: 'post', path: '/api/runs/:id/retry', summary: 'Queue a failed or cancelled run again, as a new run that records which it retries', tag: 'runs', access: 'compute', status: 202, response: idAnswer },
+  { method: 'post', path: '/api/runs/:id/reseed', summary: 'The same settings on a new sprinkling with a fresh seed, as a new run', tag: 'runs', access: 'compute', status: 202, response: reseededRunSchema },
   { method: 'delete', path: '/api/runs/:id', summary: 'Delete a run (cancels it first when running)', tag: 'runs', access: 'compute', status: 204 },
   { method: 'get', path: '/api/runs/:id/points', summary: 'The causal set elements of a done run', tag: 'runs', access: 'read', status: 200, response: runPointsSchema },
   ...runExportFormats.map((format): ApiRouteDescription => {

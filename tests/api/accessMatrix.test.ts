@@ -174,6 +174,16 @@ const matrix: Record<string, MatrixCase> = {
     success: 202,
     prepare: async () => ({ path: `/api/runs/${doneRunId}/reanalyse`, body: { truncation: { rule: 'none' } } }),
   },
+  'POST /api/runs/:id/retry': {
+    access: 'compute',
+    success: 202,
+    prepare: async () => {
+      const cancelled = await newRun();
+      await request(ctx.app).post(`/api/runs/${cancelled}/cancel`).set(asOwner()).expect(200);
+      return { path: `/api/runs/${cancelled}/retry` };
+    },
+  },
+  'POST /api/runs/:id/reseed': { access: 'compute', success: 202, prepare: async () => ({ path: `/api/runs/${doneRunId}/reseed` }) },
   'DELETE /api/runs/:id': { access: 'compute', success: 204, prepare: async () => ({ path: `/api/runs/${await newRun()}` }) },
   'GET /api/runs/:id/points': { access: 'read', success: 200, prepare: async () => ({ path: `/api/runs/${doneRunId}/points` }) },
   // one route per run export of shared/exports.ts (points.csv, spectrum.csv, spectrum.json)

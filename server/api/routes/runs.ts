@@ -34,6 +34,14 @@ export function runRoutes(deps: { auth: AuthService; teams: TeamService; runs: R
     res.status(202).json(await runs.reanalyse(requireTeam(req), requireAuth(req).user, req.params.id as string, req.body ?? {}));
   });
 
+  router.post('/runs/:id/retry', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await runs.retry(requireTeam(req), requireAuth(req).user, req.params.id as string));
+  });
+
+  router.post('/runs/:id/reseed', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await runs.reseed(requireTeam(req), requireAuth(req).user, req.params.id as string));
+  });
+
   router.delete('/runs/:id', requirePermission('compute'), async (req, res) => {
     await runs.remove(requireTeam(req), req.params.id as string);
     res.status(204).end();

@@ -1,3 +1,4 @@
+import { randomBytes } from 'node:crypto';
 import type { Queue } from 'bullmq';
 import type { DataSource } from 'typeorm';
 import {
@@ -26,6 +27,7 @@ import { exportFile, runRenderers, type ExportFile } from '../../exports/index';
 import { entropiesExport } from '../../exports/runs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
+import { readQueueSnapshot, runTiming, type QueueSnapshot } from './queueStatus';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -55,7 +57,23 @@ function restrictedCutOf(request: StoredRunRequest): string | null {
   return cut ? formatRestrictedCut(cut) : null;
 }
 
-export function toRunSummary(row: RunWithAuthor): RunSummary {
+/**
+ * The stored request of a run, with `retryOf` when it was started by Retry from a failed or cancelled
+ * run (provenance, like a re-analysis's `reusedPoints`; the engine request ignores it).
+ */
+type StoredRunWithRetry = StoredRunRequest & { retryOf?: string };
+
+const retryOfRun = (row: Pick<RunWithAuthor, 'request'>) => (row.request as unknown as StoredRunWithRetry).retryOf ?? null;
+
+/** A seed of eight hex digits that differs from `old`. */
+function freshSeed(old: string): string {
+  for (;;) {
+    const seed = randomBytes(4).toString('hex');
+    if (seed !== old) return seed;
+  }
+}
+
+export function toRunSummary(row: RunWithAuthor, queue: QueueSnapshot, now: Date = new Date()): RunSummary {
   return {
     id: row.id,
     title: row.title,
@@ -73,6 +91,8 @@ export function toRunSummary(row: RunWithAuthor): RunSummary {
     restrictedCut: restrictedCutOf(row.request as unknown as StoredRunRequest),
     S: row.entropyS,
     parentRunId: row.parentRunId,
+    retryOfRunId: retryOfRun(row),
+    timing: runTiming(row, queue, now),
   };
 }
 
@@ -118,6 +138,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   }
 
   async function detail(row: RunWithAuthor): Promise<RunDetail> {
+    const queue = await readQueueSnapshot(computeQueue);
     let result: RunResult | null = null;
     if (row.status === 'done' && row.summary) {
       const arrays = await runs.loadRunArrays(m, row.teamId, row.id, ['eigenvalues', 'generalizedEigenvalues']);
@@ -156,7 +177,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
       };
     }
     return {
-      ...toRunSummary(row),
+      ...toRunSummary(row, queue),
       request: row.request,
       error: row.error,
       cancelRequested: row.cancelRequested,
@@ -299,7 +320,9 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
 
     async list(team: TeamContext, query: ListRunsQuery): Promise<{ items: RunSummary[]; total: number; page: number; pageSize: number }> {
       const { rows, total } = await runs.listRunsOfTeam(m, team.id, query);
-      return { items: rows.map(toRunSummary), total, page: query.page, pageSize: query.pageSize };
+      const queue = await readQueueSnapshot(computeQueue);
+      const now = new Date();
+      return { items: rows.map((row) => toRunSummary(row, queue, now)), total, page: query.page, pageSize: query.pageSize };
     },
 
     async get(team: TeamContext, id: string): Promise<RunDetail> {
@@ -375,6 +398,74 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           parentRunId: parent.id,
           points: arrays.points,
           relation: arrays.relation,
+        }),
+      };
+    },
+
+    /**
+     * Retry: a failed or cancelled run's stored request queued again as a new run that records `retryOf`,
+     * so the failed record stays as it was. The elements a run on an imported set or a re-analysis
+     * carries in its row are copied; a sprinkling is made again from the same seed.
+     */
+    async retry(team: TeamContext, author: UserRow, id: string): Promise<{ id: string }> {
+      const original = await findOrThrow(team, id);
+      if (original.status !== 'failed' && original.status !== 'cancelled') {
+        const hint = original.status === 'done' ? ' For another sprinkling with the same settings use “Same settings, new seed”.' : '';
+        throw conflict('run_not_retryable', `The run is ${original.status}; only failed or cancelled runs can be retried.${hint}`);
+      }
+      const { retryOf: _earlier, ...request } = original.request as unknown as StoredRunWithRetry;
+      const carriesElements = Boolean(request.causalSet || request.reusedPoints);
+      const arrays = carriesElements ? await runs.loadRunArrays(m, team.id, original.id, ['points', 'relation']) : null;
+      const points = arrays?.points ? decodeFloat64(arrays.points) : null;
+      const relation = arrays?.relation && request.causalSet ? decodeRelationWords(arrays.relation, request.causalSet.N) : null;
+      validateForEngine(toEngineRequest(request, original.dimension, points, relation));
+      const stored: StoredRunWithRetry = { ...request, retryOf: original.id };
+      return {
+        id: await storeAndEnqueue({
+          teamId: team.id,
+          authorId: author.id,
+          title: original.title,
+          request: stored as unknown as Record<string, unknown>,
+          dimension: original.dimension,
+          regionKind: original.regionKind,
+          requestedN: original.requestedN,
+          truncationText: original.truncationText,
+          parentRunId: original.parentRunId,
+          points: arrays?.points ?? null,
+          relation: arrays?.relation ?? null,
+        }),
+      };
+    },
+
+    /**
+     * Same settings, new seed: the run's settings and sprinkling with a fresh seed, as a new run that
+     * sprinkles anew (a re-analysis's settings on a new sprinkling of its region). A run on an imported
+     * set has no seed to change.
+     */
+    async reseed(team: TeamContext, author: UserRow, id: string): Promise<{ id: string; seed: string }> {
+      const original = await findOrThrow(team, id);
+      // a new sprinkling is no longer the points of a re-analysis's parent, nor of a study's cell
+      const { retryOf: _retry, reusedPoints: _reused, origin: _origin, ...request } = original.request as unknown as StoredRunWithRetry & { origin?: unknown };
+      if (!request.sprinkling) {
+        throw conflict('run_has_no_seed', 'This run is on an imported causal set, which has no seed; import another set, or start a new run from the form.');
+      }
+      const seed = freshSeed(request.sprinkling.seed);
+      const stored: StoredRunRequest = { ...request, sprinkling: { ...request.sprinkling, seed } };
+      validateForEngine(toEngineRequest(stored, original.dimension, null));
+      const region = makeRegion(stored.sprinkling!.region);
+      const sprinkling = stored.sprinkling!;
+      return {
+        seed,
+        id: await storeAndEnqueue({
+          teamId: team.id,
+          authorId: author.id,
+          title: original.title,
+          request: stored as unknown as Record<string, unknown>,
+          dimension: region.dimension,
+          regionKind: sprinkling.region.kind,
+          requestedN: sprinkling.count ?? Math.round((sprinkling.density as number) * region.volume),
+          truncationText: original.truncationText,
+          parentRunId: null,
         }),
       };
     },

@@ -39,6 +39,7 @@ import {
 import { discardJob, enqueueJobs, studyCellJobId } from '../../queue/jobs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
+import { readQueueSnapshot, studyTiming } from './queueStatus';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -68,7 +69,7 @@ function countsAndSeeds(row: Pick<StudyWithAuthor, 'request' | 'causalSets'>): {
   return { counts: [...new Set(sets.map((s) => s.N))].sort((a, b) => a - b), seedCount: sets.length };
 }
 
-export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCounts): StudySummary {
+export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCounts, timing: StudySummary['timing']): StudySummary {
   const request = storedRequest(row);
   return {
     id: row.id,
@@ -90,6 +91,7 @@ export function toStudySummary(row: StudyWithAuthor, progress: StudyProgressCoun
       total: row.cellsTotal,
       percent: percentOf(row.cellsTotal, progress),
     },
+    timing,
   };
 }
 
@@ -343,7 +345,12 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
     async list(team: TeamContext): Promise<{ items: StudySummary[] }> {
       const rows = await studies.listStudiesOfTeam(m, team.id);
       const progress = await studies.progressOfStudies(m, rows.map((r) => r.id));
-      return { items: rows.map((r) => toStudySummary(r, progress.get(r.id)!)) };
+      const queue = await readQueueSnapshot(computeQueue);
+      // only a queued or running study has a queue position or time left, so only those need their cells
+      const timings = await Promise.all(
+        rows.map(async (r) => studyTiming(r, r.status === 'queued' || r.status === 'running' ? await studies.cellsOfStudy(m, r.id) : [], queue)),
+      );
+      return { items: rows.map((r, i) => toStudySummary(r, progress.get(r.id)!, timings[i]!)) };
     },
 
     async get(team: TeamContext, id: string): Promise<StudyDetail> {
@@ -355,7 +362,7 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       const request = storedRequest(row);
       const backends = [...new Set(cells.map((c) => c.backend).filter((b): b is string => b !== null))];
       return {
-        ...toStudySummary(row, progress),
+        ...toStudySummary(row, progress, studyTiming(row, cells, await readQueueSnapshot(computeQueue))),
         request: row.request,
         error: row.error,
         cancelRequested: row.cancelRequested,
