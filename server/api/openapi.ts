@@ -13,6 +13,7 @@ import {
   userSchema,
 } from '@shared/auth';
 import { csrfHeaderName, sessionCookieName, teamHeaderName } from '@shared/headers';
+import { createRunBundleRequestSchema } from '@shared/bundles';
 import { causalSetDetailSchema, causalSetListResponseSchema, causalSetMetadataSchema } from '@shared/causalSets';
 import { runExportFormats, runExports, studyExportQuerySchema, type RunExportRow } from '@shared/exports';
 import { engineLimitsSchema } from '@shared/limits';
@@ -28,7 +29,15 @@ import {
   runListResponseSchema,
   runPointsSchema,
 } from '@shared/runs';
-import { createStudyRequestSchema, studyDetailSchema, studyListResponseSchema } from '@shared/studies';
+import {
+  createStudyRequestSchema,
+  extendStudyRequestSchema,
+  listStudiesQuerySchema,
+  queuedCellsResponseSchema,
+  studyCellRunRequestSchema,
+  studyDetailSchema,
+  studyListResponseSchema,
+} from '@shared/studies';
 import {
   changeRoleRequestSchema,
   createInvitationRequestSchema,
@@ -128,11 +137,17 @@ export const apiRoutes: ApiRouteDescription[] = [
   { method: 'delete', path: '/api/causal-sets/:id', summary: 'Delete a causal set (runs keep their copy)', tag: 'causal sets', access: 'compute', status: 204 },
 
   { method: 'post', path: '/api/studies', summary: 'Submit a scaling study', tag: 'studies', access: 'compute', status: 202, body: createStudyRequestSchema, response: idAnswer },
-  { method: 'get', path: '/api/studies', summary: 'Scaling studies of the team', tag: 'studies', access: 'read', status: 200, response: studyListResponseSchema },
+  { method: 'get', path: '/api/studies', summary: 'Scaling studies of the team, searched and filtered', tag: 'studies', access: 'read', status: 200, query: listStudiesQuerySchema, response: studyListResponseSchema },
   { method: 'get', path: '/api/studies/:id', summary: 'A study: progress, aggregates and fits', tag: 'studies', access: 'read', status: 200, response: studyDetailSchema },
   { method: 'post', path: '/api/studies/:id/cancel', summary: 'Cancel the cells not yet computed', tag: 'studies', access: 'compute', status: 200, response: studyDetailSchema },
+  { method: 'post', path: '/api/studies/:id/extend', summary: 'Add N values and/or seeds to a study over sprinklings; the missing cells are queued', tag: 'studies', access: 'compute', status: 202, body: extendStudyRequestSchema, response: queuedCellsResponseSchema },
+  { method: 'post', path: '/api/studies/:id/retry-failed', summary: 'Queue every failed cell of a study again', tag: 'studies', access: 'compute', status: 202, response: queuedCellsResponseSchema },
+  { method: 'post', path: '/api/studies/:id/cells/:cellId/retry', summary: 'Queue one failed cell of a study again', tag: 'studies', access: 'compute', status: 202, response: queuedCellsResponseSchema },
+  { method: 'post', path: '/api/studies/:id/cells/:cellId/run', summary: "A finished cell's sprinkling, subregion and cut rule as a vacuum run (with its diagnostics, spectrum and points)", tag: 'studies', access: 'compute', status: 202, body: studyCellRunRequestSchema, response: idAnswer },
   { method: 'delete', path: '/api/studies/:id', summary: 'Delete a study', tag: 'studies', access: 'compute', status: 204 },
   { method: 'get', path: '/api/studies/:id/export', summary: 'Export a study (CSV, LaTeX, JSON, BibTeX, methods)', tag: 'studies', access: 'read', status: 200, query: studyExportQuerySchema, produces: 'text/plain' },
+  { method: 'get', path: '/api/studies/:id/bundle', summary: 'Supplementary bundle of a study, streamed as a zip: points of every sprinkling, spectra, tables (CSV, LaTeX), figures (SVG, PDF), methods, BibTeX, README and manifest.json (SHA-256 of each file, every entropy with its inputs); x-tacet-bundle-files gives the file count', tag: 'studies', access: 'read', status: 200, produces: 'application/zip' },
+  { method: 'post', path: '/api/bundles', summary: 'Supplementary bundle of chosen done runs of the team, streamed as a zip (as the study bundle)', tag: 'runs', access: 'read', status: 200, body: createRunBundleRequestSchema, produces: 'application/zip' },
 ];
 
 const accessWords: Record<RouteAccess, string> = {

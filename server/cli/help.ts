@@ -2,7 +2,7 @@ import { MAX_RENYI_ORDERS } from '@shared/vacuum';
 import { regionDescriptors, regionKinds } from '@shared/regions';
 
 /** The commands of `tacet`, in the order the overview lists them. */
-export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information', 'inspect', 'submit', 'fetch'] as const;
+export const commandNames = ['sprinkle', 'vacuum', 'entropy', 'mutual-information', 'inspect', 'submit', 'fetch', 'reproduce'] as const;
 export type CommandName = (typeof commandNames)[number];
 
 const TITLE = 'tacet — quantum-field vacua and entanglement entropy on causal sets';
@@ -23,6 +23,7 @@ const USAGE: Record<CommandName, string> = {
                  [--max-gap K] [--json]`,
   submit: `tacet submit   SPEC.json          (with TACET_URL and TACET_TOKEN)`,
   fetch: `tacet fetch    ID [--wait] [--out DIR]   (with TACET_URL and TACET_TOKEN)`,
+  reproduce: `tacet reproduce BUNDLE.zip [--json]`,
 };
 
 /** One paragraph of option notes; each command's help shows the ones it accepts. */
@@ -68,6 +69,12 @@ needs the density: --density, or --region with its size so the volume is known (
   seeds, rules or subregions), checked with the API's schemas before it is sent; prints {kind, id, url}.
   fetch ID: the run's or study's detail as JSON; --wait polls until it has ended (progress on stderr);
   --out DIR also writes the detail and every export of a done run or study into DIR.`,
+  reproduce: `reproduce BUNDLE.zip: a supplementary bundle (Study or Runs page → Supplementary bundle). Every file is
+  checked against its SHA-256 in manifest.json (an altered, missing or unlisted file is named and the bundle
+  refused), then every entropy of the manifest is computed again from the bundle's own points with this engine
+  and compared: agreement within 1e-6 relative plus 1e-6 absolute (the numerical floor of a pure state).
+  Prints { checked, maxRelDiff, ok, mismatches } with --json, one line otherwise; progress on stderr.
+  Exit code 0 only when every value agrees.`,
   json: `--json prints one JSON document on stdout instead of text.`,
   exit: `exit codes: 0 success, 2 bad input, 1 failure.`,
 } as const;
@@ -82,6 +89,7 @@ const COMMAND_NOTES: Record<CommandName, Note[]> = {
   inspect: ['inspect', 'regionSizes', 'json'],
   submit: ['remote'],
   fetch: ['remote'],
+  reproduce: ['reproduce', 'json'],
 };
 
 /** `tacet --help`: every command's usage and every note. */

@@ -26,7 +26,9 @@ import { makeRegion } from '../engine/regions';
 import { CausalSetFileError, parseRelationList } from '../causalSets/parse';
 import { formatDimension, longestChainConstant } from '@shared/manifoldLikeness';
 import { fetchWork, RemoteUsageError, submit } from './remote';
+import { BundleRefusedError, reproduceBundle } from './reproduce';
 import { ZodError } from 'zod';
+import { belowEntropyFloor, formatCheckPair, formatEntropy, formatQuantity, formatSignificantDigits } from '@shared/precision';
 
 /** Bad command-line input: reported as one line on stderr with exit code 2. */
 export class UsageError extends Error {
@@ -230,9 +232,9 @@ async function runVacuum(args: string[], io: Io): Promise<void> {
   io.stdout(
     [
       `N = ${out.N} (${out.dimension}D), density ${out.density ?? 'unknown'}, mass ${out.mass}, engine ${out.engine}, backend ${out.backend}`,
-      `largest eigenvalues of iΔ: ${out.eigenvalues.slice(0, 5).map((v) => v.toPrecision(6)).join(', ')}`,
-      `truncation ${out.truncation}: λ_c = ${out.cutoff.toPrecision(6)}, ${out.modesKept} of ${out.eigenvalues.length} positive modes kept`,
-      `checks: ‖W−W†‖ ${d.hermiticityError.toExponential(1)}, min eig W ${d.smallestEigenvalue.toExponential(2)} (${d.smallestEigenvalueMethod}), ‖W−W̄−iΔc‖ ${d.commutatorError.toExponential(1)}, ‖WW̄‖ ${d.orthogonalityError.toExponential(1)}, tr W ${d.trace.toPrecision(8)}`,
+      `largest eigenvalues of iΔ: ${out.eigenvalues.slice(0, 5).map((v) => formatQuantity(v, 'spectral')).join(', ')}`,
+      `truncation ${out.truncation}: λ_c = ${formatQuantity(out.cutoff, 'cut')}, ${out.modesKept} of ${out.eigenvalues.length} positive modes kept`,
+      `checks: ‖W−W†‖ ${formatQuantity(d.hermiticityError, 'residual')}, min eig W ${formatQuantity(d.smallestEigenvalue, 'residual')} (${d.smallestEigenvalueMethod}), ‖W−W̄−iΔc‖ ${formatQuantity(d.commutatorError, 'residual')}, ‖WW̄‖ ${formatQuantity(d.orthogonalityError, 'residual')}, tr W ${formatCheckPair(d.trace, d.positiveEigenvalueSum, 'spectral').first} (tr W − Σλ kept ${formatCheckPair(d.trace, d.positiveEigenvalueSum, 'spectral').difference})`,
       ...result.cautions.map((c) => `caution: ${c}`),
     ].join('\n') + '\n',
   );
@@ -319,10 +321,10 @@ async function runEntropy(args: string[], io: Io): Promise<void> {
     timings: result.timings,
   };
   if (values.json) return io.stdout(JSON.stringify(out) + '\n');
-  const lines = [`S = ${e.S.toPrecision(10)} for n = ${e.n} of N = ${result.N} elements (${out.rule}), ${e.modesKept} modes of iΔ_O kept`];
-  if (renyiValues) lines.push(`Rényi: ${orders.map((order) => `${renyiLabel(order)} = ${renyiValues[renyiKey(order)].toPrecision(10)}`).join(', ')}`);
+  const lines = [`S = ${formatEntropy(e.S)} for n = ${e.n} of N = ${result.N} elements (${out.rule}), ${e.modesKept} modes of iΔ_O kept`];
+  if (renyiValues) lines.push(`Rényi: ${orders.map((order) => `${renyiLabel(order)} = ${formatEntropy(renyiValues[renyiKey(order)])}`).join(', ')}`);
   if (complement) {
-    lines.push(`complement O′: S = ${complement.S.toPrecision(10)} for n = ${complement.n} elements; S_O′ − S_O = ${complement.difference.toPrecision(6)}`);
+    lines.push(`complement O′: S = ${formatEntropy(complement.S)} for n = ${complement.n} elements; S_O′ − S_O = ${belowEntropyFloor(complement.difference) ? formatEntropy(complement.difference) : formatSignificantDigits(complement.difference, 2)}`);
   }
   io.stdout(lines.join('\n') + '\n' + cautionLines(result));
 }
@@ -352,8 +354,8 @@ async function runMutualInformation(args: string[], io: Io): Promise<void> {
   if (values.json) return io.stdout(JSON.stringify(out) + '\n');
   io.stdout(
     [
-      `S_A = ${mi.a.S.toPrecision(10)} (n_A = ${mi.a.n}), S_B = ${mi.b.S.toPrecision(10)} (n_B = ${mi.b.n}), S_AB = ${mi.union.S.toPrecision(10)} (n = ${mi.union.n})`,
-      `I(A:B) = S_A + S_B − S_AB = ${mi.I.toPrecision(10)} for N = ${result.N} elements (${out.rule}), engine ${result.engine}`,
+      `S_A = ${formatEntropy(mi.a.S)} (n_A = ${mi.a.n}), S_B = ${formatEntropy(mi.b.S)} (n_B = ${mi.b.n}), S_AB = ${formatEntropy(mi.union.S)} (n = ${mi.union.n})`,
+      `I(A:B) = S_A + S_B − S_AB = ${formatQuantity(mi.I, 'entropy')} for N = ${result.N} elements (${out.rule}), engine ${result.engine}`,
     ].join('\n') +
       '\n' +
       cautionLines(result),
@@ -472,15 +474,15 @@ function runInspect(args: string[], io: Io): void {
   if (values.json) return io.stdout(JSON.stringify(out) + '\n');
   const mm = report.dimension.myrheimMeyer;
   const lines = [
-    `N = ${report.N}, relations ${report.relations}, links ${report.links}, longest chain ${report.longestChain}, ordering fraction ${report.orderingFraction.toPrecision(6)}`,
-    `Myrheim–Meyer dimension ${mm.estimate === null ? '—' : formatDimension(mm.estimate, mm.error)}${mm.error === null ? ' (too few sub-intervals for an error)' : ` (error from ${mm.subIntervals} sub-intervals)`}; midpoint-scaling dimension ${report.dimension.midpoint.estimate?.toFixed(2) ?? '—'}`,
+    `N = ${report.N}, relations ${report.relations}, links ${report.links}, longest chain ${report.longestChain}, ordering fraction ${formatQuantity(report.orderingFraction, 'measure')}`,
+    `Myrheim–Meyer dimension ${mm.estimate === null ? '—' : formatDimension(mm.estimate, mm.error)}${mm.error === null ? ' (too few sub-intervals for an error)' : ` (error from ${mm.subIntervals} sub-intervals)`}; midpoint-scaling dimension ${report.dimension.midpoint.estimate === null ? '—' : formatDimension(report.dimension.midpoint.estimate, null)}`,
     `interval abundances N_k, k = 0 … ${maxGap}: ${report.intervalAbundances.join(' ')}`,
   ];
   if (dimension !== null) {
     // a file's N stands for ρV: exact for a fixed-N sprinkling, the Poisson mean's estimate otherwise
     const ratio = report.longestChain / Math.pow(report.N, 1 / dimension);
     const m = longestChainConstant(dimension);
-    lines.push(`longest chain / N^(1/${dimension}) = ${ratio.toFixed(3)} (a ${dimension}D diamond tends to ${m.low === m.high ? m.low : `${m.low}–${m.high}`}, from below)`);
+    lines.push(`longest chain / N^(1/${dimension}) = ${formatQuantity(ratio, 'fit')} (a ${dimension}D diamond tends to ${m.low === m.high ? m.low : `${m.low}–${m.high}`}, from below)`);
   }
   lines.push('Both estimators assume a causal diamond of flat spacetime; other regions and small N read differently.');
   io.stdout(lines.join('\n') + '\n');
@@ -494,7 +496,22 @@ const commands: Record<CommandName, (args: string[], io: Io) => void | Promise<v
   inspect: runInspect,
   submit: (args, io) => remoteCommand(submit, args, io),
   fetch: (args, io) => remoteCommand(fetchWork, args, io),
+  reproduce: runReproduce,
 };
+
+async function runReproduce(args: string[], io: Io): Promise<void> {
+  const { values, positionals } = parseArgs({ args, options: { json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } }, allowPositionals: true, strict: false });
+  if (values.help) return io.stdout(commandHelp('reproduce'));
+  const unknown = args.find((a) => a.startsWith('-') && a !== '--json');
+  if (unknown) throw new UsageError(`reproduce: unknown option ${unknown}; use --json`);
+  if (positionals.length !== 1) throw new UsageError('reproduce needs one bundle: tacet reproduce BUNDLE.zip [--json]');
+  try {
+    await reproduceBundle(positionals[0]!, { json: values.json === true }, io);
+  } catch (error) {
+    if (error instanceof BundleRefusedError) throw new Error(`the bundle is refused: ${error.message}`);
+    throw error;
+  }
+}
 
 /** A command that talks to the service; its help is local, its usage errors are this CLI's. */
 async function remoteCommand(command: typeof submit, args: string[], io: Io): Promise<void> {
