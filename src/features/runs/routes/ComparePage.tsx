@@ -9,25 +9,35 @@ import { Checkbox } from '../../../ui/Checkbox';
 import { Figure } from '../../../ui/Figure';
 import { PlotFigure } from '../../../ui/PlotFigure';
 import { StatusLabel } from '../../../ui/StatusLabel';
+import { Button } from '../../../ui/Button';
+import { CompareDownloads } from '../components/CompareDownloads';
+import { CompareEntropy } from '../components/CompareEntropy';
+import { CompareSettings } from '../components/CompareSettings';
+import { compareSearch, compareSelection } from '../lib/compareRuns';
 import { compareTraces, logDecadeStep, tickFont, type CompareRun } from '../lib/plotData';
-import { maxCompared, parseCompareIds, runLabel } from '../lib/runIds';
+import { maxCompared, runLabel } from '../lib/runIds';
 
+/**
+ * Runs side by side by spectrum and by entropy, with the settings that differ and the compared data as
+ * files. The selection lives in the URL (`?ids=a,b`), so a reload or a shared link shows the same runs.
+ */
 export function ComparePage() {
-  const [params] = useSearchParams();
-  const ids = parseCompareIds(params.get('ids'));
+  const [params, setParams] = useSearchParams();
+  const ids = compareSelection(params);
   const details = useRunDetails(ids);
   const [normalised, setNormalised] = useState(true);
+  const leaveOut = (id: string) => setParams(new URLSearchParams(compareSearch(ids.filter((other) => other !== id))));
 
   if (ids.length < 2) {
     return (
       <>
-        <PageHeader title="Compare spectra" />
+        <PageHeader title="Compare runs" />
         <Empty>
           Pick 2 to {maxCompared} finished runs with the boxes in the{' '}
           <Link to="/runs" className="text-accent hover:underline">
             runs table
           </Link>{' '}
-          and press Compare.
+          and press Compare{ids.length === 1 ? '; one run is left in this selection' : ''}.
         </Empty>
       </>
     );
@@ -50,8 +60,8 @@ export function ComparePage() {
   return (
     <>
       <PageHeader
-        title="Compare spectra"
-        context={`${compared.length} runs overlaid${compared.length < runs.length ? `; ${runs.length - compared.length} without results left out` : ''}.`}
+        title="Compare runs"
+        context={`${compared.length} runs by spectrum and entropy${compared.length < runs.length ? `; ${runs.length - compared.length} without results left out` : ''}.`}
       />
       <div className="mb-10">
         <Caution />
@@ -86,6 +96,15 @@ export function ComparePage() {
           />
         )}
       </Section>
+      <Section title="Entropy">
+        <CompareEntropy runs={withResult} />
+      </Section>
+      <Section title="Settings that differ">
+        <CompareSettings runs={runs} />
+      </Section>
+      <Section title="Downloads">
+        <CompareDownloads runs={withResult} />
+      </Section>
       <Section title="Runs">
         <div className="overflow-x-auto">
           <table className="w-full border-collapse text-sm" aria-label="Compared runs">
@@ -96,7 +115,10 @@ export function ComparePage() {
               <th className="py-2 pr-4 text-right font-normal">N</th>
               <th className="py-2 pr-4 text-right font-normal">Cut λc</th>
               <th className="py-2 pr-4 text-right font-normal">Modes kept</th>
-              <th className="py-2 text-right font-normal">S</th>
+              <th className="py-2 pr-4 text-right font-normal">S</th>
+              <th className="py-2 font-normal">
+                <span className="sr-only">Leave out</span>
+              </th>
             </tr>
           </thead>
           <tbody>
@@ -114,13 +136,18 @@ export function ComparePage() {
                   <span className="figures">{run.result?.N ?? run.N ?? '—'}</span>
                 </td>
                 <td className="py-2 pr-4 text-right">
-                  <Figure value={run.result?.cutoff} whole={3} />
+                  <Figure value={run.result?.cutoff} whole={3} kind="cut" />
                 </td>
                 <td className="py-2 pr-4 text-right">
                   <span className="figures">{run.result?.modesKept ?? '—'}</span>
                 </td>
+                <td className="py-2 pr-4 text-right">
+                  <Figure value={run.result?.entropy?.S} whole={3} fraction={7} kind="entropy" />
+                </td>
                 <td className="py-2 text-right">
-                  <Figure value={run.result?.entropy?.S} whole={3} fraction={7} />
+                  <Button variant="quiet" className="text-xs" onClick={() => leaveOut(run.id)} aria-label={`Leave ${runLabel(run)} out of the comparison`}>
+                    Leave out
+                  </Button>
                 </td>
               </tr>
             ))}
