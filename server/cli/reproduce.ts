@@ -204,7 +204,7 @@ export async function reproduceBundle(path: string, options: { json: boolean }, 
     else {
       io.stdout(
         `${checked} entropies computed again from the bundle's points; largest relative difference ${maxRelDiff.toExponential(2)} ` +
-          `(tolerance ${REPRODUCE_RELATIVE_TOLERANCE} relative + ${ENTROPY_FLOOR} absolute): ${report.ok ? 'ok' : `${mismatches.length} differ`}\n`,
+          `(tolerance ${REPRODUCE_RELATIVE_TOLERANCE.toExponential(0)} relative + ${ENTROPY_FLOOR.toExponential(0)} absolute): ${report.ok ? 'ok' : `${mismatches.length} differ`}\n`,
       );
       for (const m of mismatches) io.stdout(`  entropy ${m.entry} (${manifest.entropies[m.entry]!.points}): ${m.quantity} stored ${m.stored}, computed ${m.recomputed}\n`);
     }
