@@ -215,6 +215,38 @@ export const runDetailSchema = runSummarySchema.extend({
 });
 export type RunDetail = z.infer<typeof runDetailSchema>;
 
+/**
+ * Where a run came from when it was opened from a cell of a scaling study: kept in the run's stored
+ * request as `origin`, so its page can say "from study …, cell …" and link back.
+ */
+export const runOriginSchema = z.object({
+  kind: z.literal('study-cell'),
+  studyId: z.string(),
+  studyTitle: z.string().nullable(),
+  cellId: z.string(),
+  N: z.number().int(),
+  seed: z.string(),
+  /** the subregion's key and label in the study */
+  subregion: z.string(),
+  subregionLabel: z.string(),
+  /** the cut rule's key in the study */
+  rule: z.string(),
+});
+export type RunOrigin = z.infer<typeof runOriginSchema>;
+
+/** The origin in a run's stored request (`RunDetail.request`), or null for a run made otherwise. */
+export function runOriginOf(request: unknown): RunOrigin | null {
+  const origin = request !== null && typeof request === 'object' ? (request as { origin?: unknown }).origin : undefined;
+  const parsed = runOriginSchema.safeParse(origin);
+  return parsed.success ? parsed.data : null;
+}
+
+/** The words of a run's origin: "from study Area law (3f2a19c0), cell N = 200, seed seed-2". */
+export function runOriginText(origin: RunOrigin): string {
+  const study = origin.studyTitle ? `${origin.studyTitle} (${origin.studyId.slice(0, 8)})` : origin.studyId.slice(0, 8);
+  return `from study ${study}, cell N = ${origin.N}, seed ${origin.seed}`;
+}
+
 /** GET /api/runs/:id/points — for the scatter plot. */
 export const runPointsSchema = z.object({
   dimension: z.union([z.literal(2), z.literal(4)]),

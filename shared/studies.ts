@@ -8,6 +8,7 @@ import {
   formatTruncationRule,
   prngSchema,
   regionSpecSchema,
+  regionKinds,
   renyiKey,
   renyiOrdersSchema,
   restrictedCutSchema,
@@ -151,9 +152,12 @@ const countsSchema = z
   .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' });
 
 const rulesSchema = z
+/** Cut rules one study compares side by side: each is a column of every table and a curve of every plot. */
+export const STUDY_MAX_RULES = 4;
+
   .array(studyRuleSchema)
   .min(1, { message: 'give at least one cut rule' })
-  .max(4, { message: 'at most 4 cut rules' })
+  .max(STUDY_MAX_RULES, { message: `a study compares at most ${STUDY_MAX_RULES} cut rules; remove one` })
   .refine((r) => new Set(r.map((x) => studyRuleKey(x))).size === r.length, {
     message: 'cut rules must differ',
   });
@@ -481,3 +485,102 @@ export const studyDetailSchema = studySummarySchema.extend({
   backends: z.array(z.string()),
 });
 export type StudyDetail = z.infer<typeof studyDetailSchema>;
+
+// ---- the daily loop: list filters, extending, retrying, a cell as a run ----
+
+/** A blank query parameter (`?status=`) means no filter, as an untouched select sends it. */
+const blankAsAbsent = (value: unknown) => (value === '' ? undefined : value);
+
+const dayText = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, { message: 'a date is written YYYY-MM-DD' })
+  .refine((d) => !Number.isNaN(Date.parse(`${d}T00:00:00Z`)) && new Date(`${d}T00:00:00Z`).toISOString().startsWith(d), { message: 'not a calendar date' });
+
+/** Query of GET /api/studies: every filter optional; dates are whole days (UTC), both ends included. */
+export const listStudiesQuerySchema = z
+  .strictObject({
+    /** words of the title (or the first characters of the id) */
+    search: z.preprocess(blankAsAbsent, z.string().trim().max(200, { message: 'search for at most 200 characters' }).optional()),
+    status: z.preprocess(blankAsAbsent, studyStatusSchema.optional()),
+    regionKind: z.preprocess(blankAsAbsent, z.enum([...regionKinds, 'imported'], { message: `the region kind is one of ${[...regionKinds, 'imported'].join(', ')}` }).optional()),
+    authorId: z.preprocess(blankAsAbsent, z.uuid({ message: 'not a user id' }).optional()),
+    createdFrom: z.preprocess(blankAsAbsent, dayText.optional()),
+    createdTo: z.preprocess(blankAsAbsent, dayText.optional()),
+  })
+  .refine((q) => !q.createdFrom || !q.createdTo || q.createdFrom <= q.createdTo, {
+    message: 'the first day comes after the last one',
+    path: ['createdTo'],
+  });
+export type ListStudiesQuery = z.infer<typeof listStudiesQuerySchema>;
+
+/** Seeds "<prefix>-1" … "<prefix>-k": readable in exports, distinct, reproducible (the study form's rule). */
+export function numberedSeeds(prefix: string, count: number, from = 1): string[] {
+  const base = prefix.trim() || 'seed';
+  return Array.from({ length: Math.max(0, Math.floor(count)) }, (_, k) => `${base}-${from + k}`);
+}
+
+/**
+ * The prefix and count of seeds that follow the numbered rule exactly (prefix-1 … prefix-k, in that
+ * order), or null for seeds named otherwise.
+ */
+export function numberedSeedRule(seeds: readonly string[]): { prefix: string; count: number } | null {
+  const first = /^(.*)-1$/.exec(seeds[0] ?? '');
+  if (!first) return null;
+  const prefix = first[1]!;
+  return seeds.every((s, k) => s === `${prefix}-${k + 1}`) ? { prefix, count: seeds.length } : null;
+}
+
+/**
+ * `count` more seeds for a study: by the numbered rule, continuing after the highest number of the
+ * prefix its seeds use (the last numbered seed's prefix; "seed" when none is numbered), skipping any
+ * name it already has.
+ */
+export function nextSeeds(existing: readonly string[], count: number): string[] {
+  const numbered = existing.map((s) => /^(.*)-(\d+)$/.exec(s)).filter((m): m is RegExpExecArray => m !== null);
+  const prefix = numbered.length > 0 ? numbered[numbered.length - 1]![1]! : 'seed';
+  let next = 1 + Math.max(0, ...numbered.filter((m) => m[1] === prefix).map((m) => Number(m[2])));
+  const taken = new Set(existing);
+  const out: string[] = [];
+  while (out.length < count) {
+    const seed = `${prefix}-${next++}`;
+    if (!taken.has(seed)) out.push(seed);
+  }
+  return out;
+}
+
+/**
+ * Body of POST /api/studies/:id/extend: more N values and/or more seeds for a study over sprinklings.
+ * Seeds are given by name (`seeds`) or by number (`seedCount`, named by nextSeeds). Every (N, seed) of
+ * the grown grid that the study lacks becomes a cell; existing cells stay as they are.
+ */
+export const extendStudyRequestSchema = z
+  .strictObject({
+    counts: z
+      .array(z.number().int().min(20, { message: 'N must be at least 20' }))
+      .max(12, { message: 'at most 12 values of N' })
+      .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' })
+      .default([]),
+    seeds: z
+      .array(seedSchema)
+      .max(64, { message: 'at most 64 seeds' })
+      .refine((s) => new Set(s).size === s.length, { message: 'seeds must differ' })
+      .optional(),
+    seedCount: z.number().int({ message: 'the number of seeds is a whole number' }).min(1, { message: 'add at least one seed' }).max(64, { message: 'at most 64 seeds' }).optional(),
+  })
+  .refine((r) => r.seeds === undefined || r.seedCount === undefined, { message: 'give the new seeds by name or by number, not both', path: ['seedCount'] })
+  .refine((r) => r.counts.length > 0 || (r.seeds?.length ?? 0) > 0 || r.seedCount !== undefined, {
+    message: 'give more N values or more seeds',
+    path: ['counts'],
+  });
+export type ExtendStudyRequest = z.infer<typeof extendStudyRequestSchema>;
+export type ExtendStudyRequestInput = z.input<typeof extendStudyRequestSchema>;
+
+/** Answer of extend and retry: the cells queued. */
+export const queuedCellsResponseSchema = z.object({ cellIds: z.array(z.string()) });
+
+/** Body of POST /api/studies/:id/cells/:cellId/run: which subregion and rule of the cell the run computes (their keys). */
+export const studyCellRunRequestSchema = z.strictObject({
+  subregion: z.string().min(1, { message: 'name the subregion by its key' }),
+  rule: z.string().min(1, { message: 'name the cut rule by its key' }),
+});
+export type StudyCellRunRequest = z.infer<typeof studyCellRunRequestSchema>;

@@ -53,6 +53,8 @@ export interface StudyCellRow {
   backend: string | null;
   startedAt: Date | null;
   finishedAt: Date | null;
+  /** when the cell was last queued (planned, added by an extension, or retried) */
+  queuedAt?: Date;
 }
 
 const id = { type: 'uuid', primary: true, generated: 'uuid' } as const;
@@ -99,6 +101,7 @@ export const StudyCellEntity = new EntitySchema<StudyCellRow>({
     backend: { type: 'text', nullable: true },
     startedAt: { type: 'timestamptz', name: 'started_at', nullable: true },
     finishedAt: { type: 'timestamptz', name: 'finished_at', nullable: true },
+    queuedAt: { type: 'timestamptz', name: 'queued_at', default: () => 'now()' },
   },
 });
 

@@ -327,3 +327,38 @@ export function cellSprinkling(request: Pick<SprinkledStudyRequest, 'region' | '
 export function ruleLabels(request: Pick<CreateStudyRequest, 'rules'>): Record<string, string> {
   return Object.fromEntries(request.rules.map((r) => [studyRuleKey(r), studyRuleLabel(r)]));
 }
+
+/** A study over sprinklings grown by more N values and seeds: its new request and the cells it lacks. */
+export interface PlannedExtension {
+  request: SprinkledStudyRequest;
+  /** the new cells only, positions after the existing ones, smallest N first and seeds round-robin */
+  cells: PlannedCell[];
+}
+
+/**
+ * Grows a sprinkled study by the seed rule of planCells: every (N, seed) of the grown grid of counts ×
+ * seeds that `existing` lacks becomes a cell, so no (N, seed) is planned twice and the cells already
+ * there keep their positions and results. Checks the grown grid as planCells and checkRulesFit do (a
+ * smaller N must still hold every subregion and serve every rule), and refuses an extension that adds
+ * nothing. Throws StudyPlanError naming the field.
+ */
+export function planExtension(
+  request: SprinkledStudyRequest,
+  subregions: ResolvedSubregion[],
+  existing: { position: number; count: number; seed: string }[],
+  added: { counts: number[]; seeds: string[] },
+): PlannedExtension {
+  const repeatedCount = added.counts.findIndex((c) => request.counts.includes(c));
+  if (repeatedCount >= 0) throw new StudyPlanError(`the study already has N = ${added.counts[repeatedCount]}`, `counts.${repeatedCount}`);
+  const repeatedSeed = added.seeds.findIndex((s) => request.seeds.includes(s));
+  if (repeatedSeed >= 0) throw new StudyPlanError(`the study already has the seed "${added.seeds[repeatedSeed]}"`, `seeds.${repeatedSeed}`);
+  const grown: SprinkledStudyRequest = { ...request, counts: [...request.counts, ...added.counts], seeds: [...request.seeds, ...added.seeds] };
+  const planned = planCells(grown, subregions);
+  const smallest = Math.min(...grown.counts);
+  checkRulesFit(grown.rules, grown.process === 'poisson' ? Math.ceil(smallest + 5 * Math.sqrt(smallest)) : smallest, grown.process !== 'poisson');
+  const have = new Set(existing.map((c) => `${c.count}\u0000${c.seed}`));
+  const after = Math.max(-1, ...existing.map((c) => c.position)) + 1;
+  const cells = planned.filter((c) => !have.has(`${c.count}\u0000${c.seed}`)).map((c, k) => ({ ...c, position: after + k }));
+  if (cells.length === 0) throw new StudyPlanError('the extension adds no sprinkling the study does not have', 'counts');
+  return { request: grown, cells };
+}

@@ -66,6 +66,14 @@ async function created(res: request.Response, status: number): Promise<string> {
 }
 const newRun = async () => postRun(ctx.app, owner.token, smallRun());
 const newStudy = async () => created(await request(ctx.app).post('/api/studies').set(asOwner()).send(smallStudy()), 202);
+const firstCellOf = async (studyId: string): Promise<string> => (await request(ctx.app).get(`/api/studies/${studyId}`).set(asOwner())).body.cells[0].id;
+/** A queued study whose one cell failed, as a lost job leaves it (no worker runs after setup). */
+const newStudyWithFailedCell = async () => {
+  const studyId = await newStudy();
+  const cellId = await firstCellOf(studyId);
+  await ctx.dataSource.query(`UPDATE study_cells SET status = 'failed', error = 'lost', finished_at = now() WHERE id = $1`, [cellId]);
+  return { studyId, cellId };
+};
 const newCausalSet = async () => {
   const req = request(ctx.app).post('/api/causal-sets').set(asOwner());
   for (const [k, v] of Object.entries(csvFields())) req.field(k, v);
@@ -208,6 +216,25 @@ const matrix: Record<string, MatrixCase> = {
   'GET /api/studies': { access: 'read', success: 200 },
   'GET /api/studies/:id': { access: 'read', success: 200, prepare: async () => ({ path: `/api/studies/${doneStudyId}` }) },
   'POST /api/studies/:id/cancel': { access: 'compute', success: 200, prepare: async () => ({ path: `/api/studies/${await newStudy()}/cancel` }) },
+  'POST /api/studies/:id/extend': { access: 'compute', success: 202, prepare: async () => ({ path: `/api/studies/${await newStudy()}/extend`, body: { seedCount: 1 } }) },
+  'POST /api/studies/:id/retry-failed': {
+    access: 'compute',
+    success: 202,
+    prepare: async () => ({ path: `/api/studies/${(await newStudyWithFailedCell()).studyId}/retry-failed` }),
+  },
+  'POST /api/studies/:id/cells/:cellId/retry': {
+    access: 'compute',
+    success: 202,
+    prepare: async () => {
+      const { studyId, cellId } = await newStudyWithFailedCell();
+      return { path: `/api/studies/${studyId}/cells/${cellId}/retry` };
+    },
+  },
+  'POST /api/studies/:id/cells/:cellId/run': {
+    access: 'compute',
+    success: 202,
+    prepare: async () => ({ path: `/api/studies/${doneStudyId}/cells/${await firstCellOf(doneStudyId)}/run`, body: { subregion: 'l/L=0.5', rule: 'sqrtN' } }),
+  },
   'DELETE /api/studies/:id': { access: 'compute', success: 204, prepare: async () => ({ path: `/api/studies/${await newStudy()}` }) },
   'GET /api/studies/:id/export': { access: 'read', success: 200, prepare: async () => ({ path: `/api/studies/${doneStudyId}/export?format=csv` }) },
 };

@@ -1,5 +1,6 @@
 import { Router } from 'express';
 import { studyExportQuerySchema } from '@shared/exports';
+import { listStudiesQuerySchema } from '@shared/studies';
 import { requireAuth, requireTeam } from '../context';
 import { sendExportFile } from '../exportResponse';
 import { authenticate, currentTeam, requirePermission } from '../middleware/auth';
@@ -18,7 +19,7 @@ export function studyRoutes(deps: { auth: AuthService; teams: TeamService; studi
   });
 
   router.get('/studies', requirePermission('read'), async (req, res) => {
-    res.json(await studies.list(requireTeam(req)));
+    res.json(await studies.list(requireTeam(req), listStudiesQuerySchema.parse(req.query)));
   });
 
   router.get('/studies/:id', requirePermission('read'), async (req, res) => {
@@ -27,6 +28,22 @@ export function studyRoutes(deps: { auth: AuthService; teams: TeamService; studi
 
   router.post('/studies/:id/cancel', requirePermission('compute'), async (req, res) => {
     res.json(await studies.cancel(requireTeam(req), req.params.id as string));
+  });
+
+  router.post('/studies/:id/extend', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await studies.extend(requireTeam(req), req.params.id as string, req.body));
+  });
+
+  router.post('/studies/:id/retry-failed', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await studies.retryFailedCells(requireTeam(req), req.params.id as string));
+  });
+
+  router.post('/studies/:id/cells/:cellId/retry', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await studies.retryCell(requireTeam(req), req.params.id as string, req.params.cellId as string));
+  });
+
+  router.post('/studies/:id/cells/:cellId/run', requirePermission('compute'), async (req, res) => {
+    res.status(202).json(await studies.cellAsRun(requireTeam(req), requireAuth(req).user, req.params.id as string, req.params.cellId as string, req.body));
   });
 
   router.delete('/studies/:id', requirePermission('compute'), async (req, res) => {

@@ -7,6 +7,7 @@ import {
   reanalyseRunRequestSchema,
   type ListRunsQuery,
   type RunDetail,
+  type RunOrigin,
   type RunPoints,
   type RunResult,
   type RunSummary,
@@ -268,7 +269,8 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
   }
 
   return {
-    async create(team: TeamContext, author: UserRow, body: unknown): Promise<{ id: string }> {
+    /** `origin`: set by the server when the run is opened from a study cell, stored beside the request. */
+    async create(team: TeamContext, author: UserRow, body: unknown, origin?: RunOrigin): Promise<{ id: string }> {
       const request = createRunRequestSchema.parse(body);
       if (request.causalSetId !== undefined) {
         const imported = await loadCausalSetRunInput(m, team.id, request.causalSetId);
@@ -283,7 +285,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
             teamId: team.id,
             authorId: author.id,
             title: request.title || null,
-            request: stored as unknown as Record<string, unknown>,
+            request: { ...stored, ...(origin ? { origin } : {}) } as unknown as Record<string, unknown>,
             dimension: imported.dimension,
             regionKind: 'imported',
             requestedN: imported.n,
@@ -308,7 +310,7 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
           teamId: team.id,
           authorId: author.id,
           title: request.title || null,
-          request: stored as unknown as Record<string, unknown>,
+          request: { ...stored, ...(origin ? { origin } : {}) } as unknown as Record<string, unknown>,
           dimension: region.dimension,
           regionKind: sprinkling.region.kind,
           requestedN: expectedN,

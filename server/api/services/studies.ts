@@ -4,7 +4,14 @@ import { In, type EntityManager } from 'typeorm';
 import { ZodError } from 'zod';
 import {
   createStudyRequestSchema,
+  extendStudyRequestSchema,
+  nextSeeds,
+  sprinkledStudyRequestSchema,
+  studyCellRunRequestSchema,
   studyRuleKey,
+  studyRuleLabel,
+  type ListStudiesQuery,
+  type SprinkledStudyRequest,
   type CreateStudyRequest,
   type ImportedStudyRequest,
   type StudyCausalSet,
@@ -28,7 +35,10 @@ import { studyCautions, type StudyExportInput } from '../../exports/studies';
 import {
   cellSprinkling,
   checkRulesFit,
+  engineSubregion,
+  pairSubregions,
   planCells,
+  planExtension,
   planImportedCells,
   resolveImportedSubregions,
   resolveSubregions,
@@ -37,6 +47,8 @@ import {
   type PlannedCausalSet,
 } from '../../studies/plan';
 import { discardJob, enqueueJobs, studyCellJobId } from '../../queue/jobs';
+import type { RunOrigin } from '@shared/runs';
+import { createRunService } from './runs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 import { readQueueSnapshot, studyTiming } from './queueStatus';
@@ -186,11 +198,59 @@ export type StudyService = ReturnType<typeof createStudyService>;
 export function createStudyService(deps: { dataSource: DataSource; computeQueue: Queue }) {
   const { dataSource, computeQueue } = deps;
   const m = dataSource.manager;
+  // a study cell opened as a run is an ordinary run, made by the runs' own rules
+  const runService = createRunService({ dataSource, computeQueue });
 
   async function findOrThrow(team: TeamContext, id: string): Promise<StudyWithAuthor> {
     const row = uuidPattern.test(id) ? await studies.findStudyInTeam(m, team.id, id.toLowerCase()) : null;
     if (!row) throw notFound('Study not found.');
     return row;
+  }
+
+  async function cellOrThrow(row: StudyWithAuthor, cellId: string): Promise<StudyCellRow> {
+    const cell = uuidPattern.test(cellId) ? await studies.findCellOfStudy(m, row.id, cellId.toLowerCase()) : null;
+    if (!cell) throw notFound('Cell not found in this study.');
+    return cell;
+  }
+
+  /**
+   * Queues cells again: each one's failed job leaves Redis first, since BullMQ adds no job under an id
+   * it still holds; one still there is held by a worker closing its last attempt. If the queue refuses
+   * the new jobs, the cells are failed again with the reason and nothing stays queued for ever.
+   */
+  async function requeue(row: StudyWithAuthor, failed: StudyCellRow[], only: string[] | null): Promise<{ cellIds: string[] }> {
+    for (const cell of failed) {
+      const jobId = studyCellJobId(cell.id);
+      await discardJob(computeQueue, jobId);
+      if (await computeQueue.getJob(jobId)) {
+        throw conflict('cell_busy', `The last attempt of the cell N = ${cell.requestedN}, seed ${cell.seed} is still being closed by a worker; try again in a moment.`);
+      }
+    }
+    const cellIds = await studies.requeueFailedCells(m, row.id, only);
+    await enqueueCells(row.id, cellIds);
+    return { cellIds };
+  }
+
+  async function enqueueCells(studyId: string, cellIds: string[]): Promise<void> {
+    if (cellIds.length === 0) return;
+    try {
+      await enqueueJobs(
+        computeQueue,
+        'study-cell',
+        cellIds.map((cellId) => ({ studyId, cellId })),
+      );
+    } catch (error) {
+      const reason = `The cells could not be queued: ${(error as Error).message}`;
+      for (const cellId of cellIds) await studies.failCell(m, cellId, reason);
+      await studies.finishStudyIfComplete(m, studyId);
+      throw new HttpError(503, 'queue_unavailable', `${reason}. They are stored as failed; retry them when the queue is back.`);
+    }
+  }
+
+  function requireOpenToMore(row: StudyWithAuthor): void {
+    if (row.cancelRequested || row.status === 'cancelled') {
+      throw conflict('study_cancelled', 'The study was cancelled; duplicate it to compute its cells again.');
+    }
   }
 
   async function removeQueuedJobs(cellIds: string[]): Promise<void> {
@@ -342,8 +402,8 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       return { id };
     },
 
-    async list(team: TeamContext): Promise<{ items: StudySummary[] }> {
-      const rows = await studies.listStudiesOfTeam(m, team.id);
+    async list(team: TeamContext, query: ListStudiesQuery = {}): Promise<{ items: StudySummary[] }> {
+      const rows = await studies.listStudiesOfTeam(m, team.id, query);
       const progress = await studies.progressOfStudies(m, rows.map((r) => r.id));
       const queue = await readQueueSnapshot(computeQueue);
       // only a queued or running study has a queue position or time left, so only those need their cells
@@ -394,6 +454,117 @@ export function createStudyService(deps: { dataSource: DataSource; computeQueue:
       if (queued === null) throw conflict('study_finished', `The study is already ${row.status}; only queued or running studies can be cancelled.`);
       await removeQueuedJobs(queued);
       return this.get(team, id);
+    },
+
+    /** Queues one failed cell again; the study runs until it has ended, then its aggregates and fits include it. */
+    async retryCell(team: TeamContext, id: string, cellId: string): Promise<{ cellIds: string[] }> {
+      const row = await findOrThrow(team, id);
+      const cell = await cellOrThrow(row, cellId);
+      requireOpenToMore(row);
+      if (cell.status !== 'failed') {
+        throw conflict('cell_not_failed', `The cell N = ${cell.requestedN}, seed ${cell.seed} is ${cell.status}; only a failed cell can be retried.`);
+      }
+      const queued = await requeue(row, [cell], [cell.id]);
+      if (queued.cellIds.length === 0) throw conflict('cell_not_failed', `The cell N = ${cell.requestedN}, seed ${cell.seed} is no longer failed; only a failed cell can be retried.`);
+      return queued;
+    },
+
+    /** Queues every failed cell of the study again. */
+    async retryFailedCells(team: TeamContext, id: string): Promise<{ cellIds: string[] }> {
+      const row = await findOrThrow(team, id);
+      requireOpenToMore(row);
+      const failed = (await studies.cellsOfStudy(m, row.id)).filter((c) => c.status === 'failed');
+      if (failed.length === 0) throw conflict('no_failed_cells', `The study is ${row.status} and has no failed cell to retry.`);
+      return requeue(row, failed, null);
+    },
+
+    /**
+     * More N values and/or seeds for a study over sprinklings: the grown request is checked like a new
+     * one (the same limits, the cell limit on the total), the missing (N, seed) cells are planned by
+     * server/studies/plan.ts and queued, and the study runs again until they have ended.
+     */
+    async extend(team: TeamContext, id: string, body: unknown): Promise<{ cellIds: string[] }> {
+      // another team's study answers 404 whatever the body says
+      const row = await findOrThrow(team, id);
+      const added = extendStudyRequestSchema.parse(body);
+      const request = storedRequest(row);
+      if (request.source !== 'sprinkled') {
+        throw conflict('study_imported', 'A study over imported causal sets has no N values or seeds to add; duplicate it and pick more causal sets.');
+      }
+      requireOpenToMore(row);
+      const seeds = added.seeds ?? (added.seedCount !== undefined ? nextSeeds(request.seeds, added.seedCount) : []);
+      const existing = (await studies.cellsOfStudy(m, row.id)).map((c) => ({ position: c.position, count: c.requestedN, seed: c.seed }));
+      let plan;
+      try {
+        plan = planExtension(request as SprinkledStudyRequest, row.subregions, existing, { counts: added.counts, seeds });
+      } catch (error) {
+        if (error instanceof StudyPlanError) throw planIssue(error);
+        throw error;
+      }
+      // the grown study within every limit of a new one (at most 12 N, 64 seeds, STUDY_MAX_CELLS cells)
+      const grown = sprinkledStudyRequestSchema.parse(plan.request);
+      for (const count of added.counts) {
+        engineCheck(`N = ${count}`, { source: { kind: 'sprinkling', sprinkling: cellSprinkling(grown, count, grown.seeds[0]!) }, mass: grown.mass });
+      }
+      const cellIds = await studies.addCellsToStudy(
+        m,
+        row.id,
+        plan.request as unknown as Record<string, unknown>,
+        plan.cells.map((c) => ({ position: c.position, requestedN: c.count, seed: c.seed })),
+      );
+      if (cellIds === null) throw conflict('study_cancelled', 'The study was cancelled; duplicate it to compute its cells again.');
+      await enqueueCells(row.id, cellIds);
+      return { cellIds };
+    },
+
+    /**
+     * A finished cell opened as a vacuum run: the cell's own sprinkling (or imported set), mass, one of
+     * its subregions and one of its rules, on the dense engine the cell ran on, so the run's S is the
+     * cell's and its page adds the diagnostics, spectrum and points. The run keeps its origin.
+     */
+    async cellAsRun(team: TeamContext, author: UserRow, id: string, cellId: string, body: unknown): Promise<{ id: string }> {
+      const row = await findOrThrow(team, id);
+      const cell = await cellOrThrow(row, cellId);
+      const asked = studyCellRunRequestSchema.parse(body);
+      if (cell.status !== 'done') {
+        throw conflict('cell_not_done', `The cell N = ${cell.requestedN}, seed ${cell.seed} is ${cell.status}; a cell opens as a run once it is done.`);
+      }
+      const request = storedRequest(row);
+      const subregion = row.subregions.find((s) => s.key === asked.subregion);
+      if (!subregion) {
+        const message = `the study has no subregion "${asked.subregion}"; it has ${row.subregions.map((s) => `"${s.key}"`).join(', ')}`;
+        throw new HttpError(422, 'invalid_request', message, [{ path: 'subregion', message }]);
+      }
+      const rule = request.rules.find((r) => studyRuleKey(r) === asked.rule);
+      if (!rule) {
+        const message = `the study has no cut rule "${asked.rule}"; it has ${request.rules.map((r) => `"${studyRuleKey(r)}"`).join(', ')}`;
+        throw new HttpError(422, 'invalid_request', message, [{ path: 'rule', message }]);
+      }
+      const pair = pairSubregions(subregion);
+      const name = row.title || `Study ${row.id.slice(0, 8)}`;
+      const runBody = {
+        title: `${name}: N = ${cell.requestedN}, seed ${cell.seed}, ${subregion.label}, ${studyRuleLabel(rule)}`.slice(0, 200),
+        ...(request.source === 'sprinkled' ? { sprinkling: cellSprinkling(request, cell.requestedN, cell.seed) } : { causalSetId: cell.seed }),
+        mass: request.mass,
+        truncation: rule.truncation,
+        doubleTruncation: rule.doubleTruncation,
+        ...(rule.restrictedCut ? { restrictedCut: rule.restrictedCut } : {}),
+        // the cell ran on the dense engine; auto could pick the structured one for a large N
+        engine: 'dense',
+        ...(pair ? { mutualInformation: pair } : { subregion: engineSubregion(subregion), ...(request.renyi ? { renyi: request.renyi } : {}) }),
+      };
+      const origin: RunOrigin = {
+        kind: 'study-cell',
+        studyId: row.id,
+        studyTitle: row.title,
+        cellId: cell.id,
+        N: cell.requestedN,
+        seed: cell.seed,
+        subregion: subregion.key,
+        subregionLabel: subregion.label,
+        rule: asked.rule,
+      };
+      return runService.create(team, author, runBody, origin);
     },
 
     async remove(team: TeamContext, id: string): Promise<void> {

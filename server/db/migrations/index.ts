@@ -7,6 +7,7 @@ import { NotifyDefaultOn1765065600000 } from './1765065600000-notify-default-on'
 import { ApiTokens1765152000000 } from './1765152000000-api-tokens';
 import { StudyCausalSets1765238400000 } from './1765238400000-study-causal-sets';
 import { NotifyStudyDone1765324800000 } from './1765324800000-notify-study-done';
+import { StudyCellQueuedAt1765418400000 } from './1765418400000-study-cell-queued-at';
 
 /**
  * Every migration, oldest first. Add new ones at the end; never edit one that has shipped.
@@ -22,4 +23,5 @@ export const migrations = [
   ApiTokens1765152000000,
   StudyCausalSets1765238400000,
   NotifyStudyDone1765324800000,
+  StudyCellQueuedAt1765418400000,
 ];

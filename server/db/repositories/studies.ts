@@ -65,8 +65,35 @@ export async function findStudyById(m: EntityManager, id: string): Promise<Study
   return (await withAuthorWhere(m, 's.id = $1', [id]))[0] ?? null;
 }
 
-export function listStudiesOfTeam(m: EntityManager, teamId: string): Promise<StudyWithAuthor[]> {
-  return withAuthorWhere(m, 's.team_id = $1', [teamId]);
+/** What the studies list may be narrowed by; dates are whole UTC days, `createdTo` included. */
+export interface StudyListFilters {
+  search?: string;
+  status?: StudyRow['status'];
+  regionKind?: string;
+  authorId?: string;
+  createdFrom?: string;
+  createdTo?: string;
+}
+
+const likePattern = (text: string) => `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+const startOfUtcDay = (day: string, plusDays = 0) => new Date(Date.parse(`${day}T00:00:00Z`) + plusDays * 86_400_000);
+
+/** The team's studies, newest first, narrowed by the filters given. */
+export function listStudiesOfTeam(m: EntityManager, teamId: string, filters: StudyListFilters = {}): Promise<StudyWithAuthor[]> {
+  const where = ['s.team_id = $1'];
+  const parameters: unknown[] = [teamId];
+  const add = (clause: (placeholder: string) => string, value: unknown) => {
+    parameters.push(value);
+    where.push(clause(`$${parameters.length}`));
+  };
+  // the title, or the id as the page shows it (its first characters)
+  if (filters.search) add((p) => `(s.title ILIKE ${p} OR s.id::text ILIKE ${p})`, likePattern(filters.search));
+  if (filters.status) add((p) => `s.status = ${p}`, filters.status);
+  if (filters.regionKind) add((p) => `s.region_kind = ${p}`, filters.regionKind);
+  if (filters.authorId) add((p) => `s.author_id = ${p}`, filters.authorId);
+  if (filters.createdFrom) add((p) => `s.created_at >= ${p}`, startOfUtcDay(filters.createdFrom));
+  if (filters.createdTo) add((p) => `s.created_at < ${p}`, startOfUtcDay(filters.createdTo, 1));
+  return withAuthorWhere(m, where.join(' AND '), parameters);
 }
 
 /** Cell counts per status (and the running cells' percent) for each study. */
@@ -143,11 +170,11 @@ export async function failStudy(m: EntityManager, id: string, message: string): 
 
 // ---- worker side ----
 
-/** Cells still queued or running of studies created more than `olderThanMs` ago (for the sweep of lost jobs). */
+/** Cells still queued or running that were queued more than `olderThanMs` ago (for the sweep of lost jobs). */
 export async function findUnfinishedCells(m: EntityManager, olderThanMs: number): Promise<{ studyId: string; cellId: string }[]> {
   const rows: { id: string; study_id: string }[] = await m.query(
     `SELECT c.id, c.study_id FROM study_cells c JOIN studies s ON s.id = c.study_id
-      WHERE c.status IN ('queued', 'running') AND s.created_at < now() - ($1 || ' milliseconds')::interval`,
+      WHERE c.status IN ('queued', 'running') AND c.queued_at < now() - ($1 || ' milliseconds')::interval`,
     [String(olderThanMs)],
   );
   return rows.map((r) => ({ studyId: r.study_id, cellId: r.id }));
@@ -177,7 +204,12 @@ export async function claimCell(m: EntityManager, cellId: string): Promise<{ cel
   if (!claimed) return null;
   const cell = await m.findOneBy(StudyCellEntity, { id: cellId });
   if (!cell) return null;
-  await m.query(`UPDATE studies SET status = 'running', started_at = COALESCE(started_at, now()) WHERE id = $1 AND status = 'queued'`, [cell.studyId]);
+  // a study closed while this cell was being added or retried opens again: it has a cell computing
+  await m.query(
+    `UPDATE studies SET status = 'running', started_at = COALESCE(started_at, now()), finished_at = NULL, error = NULL
+      WHERE id = $1 AND status IN ('queued', 'done', 'failed') AND NOT cancel_requested`,
+    [cell.studyId],
+  );
   const study = await m.findOneBy(StudyEntity, { id: cell.studyId });
   return study ? { cell, study } : null;
 }
@@ -256,4 +288,68 @@ export async function finishStudyIfComplete(m: EntityManager, studyId: string): 
   )) as unknown[];
   const list = (Array.isArray(rows[0]) ? rows[0] : rows) as { status: 'done' | 'failed' }[];
   return list[0]?.status ?? null;
+}
+
+// ---- the daily loop: retry, extend ----
+
+/** A closed study opens again for cells queued anew: queued if it never started, else running. */
+const reopenStudy = `UPDATE studies SET status = CASE WHEN started_at IS NULL THEN 'queued' ELSE 'running' END, finished_at = NULL, error = NULL
+  WHERE id = $1 AND NOT cancel_requested`;
+
+function returnedIds(rows: unknown): string[] {
+  // TypeORM answers UPDATE … RETURNING with [rows, count]
+  const list = (Array.isArray(rows) && Array.isArray(rows[0]) ? rows[0] : rows) as { id: string }[];
+  return list.map((r) => r.id);
+}
+
+/**
+ * Queues failed cells of a study again, as if never computed (results, error and times cleared), and
+ * opens the study; `cellIds` null takes every failed cell. Returns the ids queued; none when the study
+ * is cancelled or no such cell has failed.
+ */
+export async function requeueFailedCells(m: EntityManager, studyId: string, cellIds: string[] | null): Promise<string[]> {
+  return m.transaction(async (t) => {
+    const study: { cancel_requested: boolean }[] = await t.query(`SELECT cancel_requested FROM studies WHERE id = $1 FOR UPDATE`, [studyId]);
+    if (study.length === 0 || study[0]!.cancel_requested) return [];
+    const ids = returnedIds(
+      await t.query(
+        `UPDATE study_cells SET status = 'queued', percent = 0, error = NULL, n = NULL, result = NULL, eigenvalues = NULL,
+                engine_version = NULL, backend = NULL, started_at = NULL, finished_at = NULL, queued_at = now()
+          WHERE study_id = $1 AND status = 'failed' AND ($2::uuid[] IS NULL OR id = ANY($2::uuid[]))
+          RETURNING id`,
+        [studyId, cellIds],
+      ),
+    );
+    if (ids.length > 0) await t.query(reopenStudy, [studyId]);
+    return ids;
+  });
+}
+
+/**
+ * Adds planned cells to a study in one transaction with its grown request: the study row is locked, so
+ * a worker closing the study at the same moment waits and then sees the new cells. Returns the new
+ * cell ids, or null when the study is cancelled (or gone).
+ */
+export async function addCellsToStudy(
+  m: EntityManager,
+  studyId: string,
+  request: Record<string, unknown>,
+  cells: { position: number; requestedN: number; seed: string }[],
+): Promise<string[] | null> {
+  return m.transaction(async (t) => {
+    const study: { cancel_requested: boolean }[] = await t.query(`SELECT cancel_requested FROM studies WHERE id = $1 FOR UPDATE`, [studyId]);
+    if (study.length === 0 || study[0]!.cancel_requested) return null;
+    const saved = await t.save(
+      StudyCellEntity,
+      cells.map((c) => t.create(StudyCellEntity, { ...c, studyId, status: 'queued', percent: 0 })),
+    );
+    await t.query(`UPDATE studies SET request = $2, cells_total = cells_total + $3 WHERE id = $1`, [studyId, JSON.stringify(request), cells.length]);
+    await t.query(reopenStudy, [studyId]);
+    return saved.map((c) => c.id);
+  });
+}
+
+/** One cell of a study, or null. */
+export async function findCellOfStudy(m: EntityManager, studyId: string, cellId: string): Promise<StudyCellRow | null> {
+  return (await m.findOneBy(StudyCellEntity, { id: cellId, studyId })) ?? null;
 }
