@@ -7,8 +7,8 @@ import {
   formatRestrictedCut,
   formatTruncationRule,
   prngSchema,
-  regionSpecSchema,
   regionKinds,
+  regionSpecSchema,
   renyiKey,
   renyiOrdersSchema,
   restrictedCutSchema,
@@ -151,10 +151,10 @@ const countsSchema = z
   .max(12, { message: 'at most 12 values of N' })
   .refine((c) => new Set(c).size === c.length, { message: 'N values must differ' });
 
-const rulesSchema = z
 /** Cut rules one study compares side by side: each is a column of every table and a curve of every plot. */
 export const STUDY_MAX_RULES = 4;
 
+const rulesSchema = z
   .array(studyRuleSchema)
   .min(1, { message: 'give at least one cut rule' })
   .max(STUDY_MAX_RULES, { message: `a study compares at most ${STUDY_MAX_RULES} cut rules; remove one` })
