@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { formatWithError } from './precision';
 
 /**
  * Manifold-likeness of a causal set as the API, the pages and the command line show it (computed by
@@ -40,9 +41,7 @@ export function dimensionWarning(declared: number, report: Pick<ManifoldLikeness
 
 /** "2.03 ± 0.05": the estimate to the digit its error supports. */
 export function formatDimension(estimate: number, error: number | null): string {
-  if (error === null || !(error > 0)) return estimate.toFixed(2);
-  const digits = Math.max(0, Math.min(6, 1 - Math.floor(Math.log10(error))));
-  return `${estimate.toFixed(digits)} ± ${error.toFixed(digits)}`;
+  return formatWithError(estimate, error, 'text', 'fit');
 }
 
 /** The longest chain of a d-dimensional diamond is about m_d (ρV)^{1/d}: m_2 = 2; 1.77 ≤ m_d ≤ 2.72 for d > 2 (Brightwell–Gregory 1991, recalled from memory). */

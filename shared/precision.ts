@@ -26,8 +26,10 @@ export const quantityDigits = {
   residual: 2,
   /** an eigenvalue or other spectral value */
   spectral: 4,
-  /** a fit parameter without an error (slope, R²) */
+  /** a fit parameter or an estimator without an error (slope, R², a dimension estimate) */
   fit: 3,
+  /** a volume, a density, a ratio of counts: four digits, the sprinkling's own scatter is larger */
+  measure: 4,
   /** a count (elements, modes, pairs): exact */
   count: 0,
 } as const;

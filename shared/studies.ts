@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { computeTimingSchema } from './computeTiming';
+import { formatQuantity, formatWithError } from './precision';
 import {
   effectiveRestrictedCut,
   entropyRuleLabel,
@@ -401,8 +402,8 @@ const short = (v: number, digits = 3) => String(Number(v.toPrecision(digits)));
  * trend −0.87 over d/T ∈ [0.05, 0.2] (4 points)".
  */
 export function pairDecaySentence(fit: Pick<StudyFit, 'slope' | 'slopeError' | 'continuum' | 'points' | 'excluded'>): string {
-  const measured = `measured slope ${short(fit.slope)}${fit.slopeError !== null ? ` ± ${short(fit.slopeError, 2)}` : ''}`;
-  const trend = fit.continuum ? ` against continuum trend ${short(fit.continuum.slope)} over d/T ∈ [${short(fit.continuum.from)}, ${short(fit.continuum.to)}]` : '';
+  const measured = `measured slope ${formatWithError(fit.slope, fit.slopeError, 'text', 'fit')}`;
+  const trend = fit.continuum ? ` against continuum trend ${formatQuantity(fit.continuum.slope, 'fit')} over d/T ∈ [${short(fit.continuum.from)}, ${short(fit.continuum.to)}]` : '';
   const left = fit.excluded ? `; ${fit.excluded} separation${fit.excluded === 1 ? '' : 's'} with ⟨I⟩ ≤ 0 left out` : '';
   return `${measured}${trend} (${fit.points} points${left})`;
 }

@@ -37,7 +37,7 @@ export function ManifoldLikenessPanel({
               Midpoint-scaling dimension
               <span className="block text-xs text-ink-faint">log₂(N / N<sub>½</sub>), N<sub>½</sub> = {midpoint.halfSize} at the midpoint element</span>
             </th>
-            <td className="figures whitespace-nowrap py-2 text-right">{midpoint.estimate === null ? '—' : midpoint.estimate.toFixed(2)}</td>
+            <td className="figures whitespace-nowrap py-2 text-right">{midpoint.estimate === null ? '—' : formatDimension(midpoint.estimate, null)}</td>
           </tr>
           <tr className="border-b border-rule align-baseline">
             <th scope="row" className="py-2 pr-4 text-left font-normal text-ink-soft">
@@ -47,7 +47,7 @@ export function ManifoldLikenessPanel({
               </span>
             </th>
             <td className="whitespace-nowrap py-2 text-right">
-              <Figure value={chainRatio} digits={3} />
+              <Figure value={chainRatio} kind="fit" />
             </td>
           </tr>
         </tbody>

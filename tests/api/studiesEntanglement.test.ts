@@ -103,7 +103,7 @@ describe('a small pair study with Rényi orders', () => {
     const latex = await request(ctx.app).get(`/api/studies/${id}/export?format=latex`).set(bearer(researcher.token));
     expect(latex.text).toContain('mutual-information-fits');
     const methods = await request(ctx.app).get(`/api/studies/${id}/export?format=methods`).set(bearer(researcher.token));
-    expect(methods.text).toMatch(/measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
+    expect(methods.text).toMatch(/measured slope [−-]?[0-9.]+ ± [0-9.]+ against continuum trend [−-][0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
   }, 150_000);
 
   it('gives concentric sub-diamonds S_α beside S, with fits of each S_α against ln √n', async () => {

@@ -34,7 +34,7 @@ describe('a pair study for the mutual information in the browser', () => {
     await page.getByTestId('pair-table').waitFor();
     await page.getByTestId(`figure-tacet-study-${id8}-I-vs-d`).waitFor();
     const agreement = await page.getByTestId('pair-agreement').textContent();
-    expect(agreement).toMatch(/ℓ\/T = 0\.25, N = 300: measured slope -?[0-9.]+ ± [0-9.]+ against continuum trend -[0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
+    expect(agreement).toMatch(/ℓ\/T = 0\.25, N = 300: measured slope [−-]?[0-9.]+ ± [0-9.]+ against continuum trend [−-][0-9.]+ over d\/T ∈ \[0\.03, 0\.2\]/);
     expect(agreement).toMatch(/difference of large numbers/);
     expect(await page.getByTestId('pair-table').locator('tbody tr').count()).toBe(3);
     expect(await page.getByTestId('pair-fits-table').textContent()).toContain('untruncated');

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { StudyEntropy } from '@shared/studies';
 import { sprinkledStudyRequestSchema } from '@shared/studies';
+import { formatQuantity } from '@shared/precision';
 import { aggregateEntropies, fitAggregates, pairDecayFits } from '../../server/studies/aggregate';
 import { resolveSubregions } from '../../server/studies/plan';
 import { aggregatesCsv, latexTable, methodsParagraph, provenanceJson, tidyCsv, type StudyExportInput } from '../../server/exports/studies';
@@ -131,7 +132,7 @@ describe('exports of a pair study with Rényi orders', () => {
     expect(methods).toContain('its own restricted cut');
     expect(methods).toMatch(/S_α = Σ_\{μ>1\} ln\(μ\^α − \(μ−1\)\^α\)\/\(α − 1\)/);
     const slope = fits[0]!.continuum!.slope;
-    expect(methods).toContain(`measured slope -1 ± 0.1 against continuum trend ${Number(slope.toPrecision(3))} over d/T ∈ [0.05, 0.2] (3 points; 1 separation with ⟨I⟩ ≤ 0 left out)`);
+    expect(methods).toContain(`measured slope −1.00 ± 0.10 against continuum trend ${formatQuantity(slope, 'fit')} over d/T ∈ [0.05, 0.2] (3 points; 1 separation with ⟨I⟩ ≤ 0 left out)`);
     expect(methods).toContain('Casini and Huerta 2009');
     expect(provenanceJson(input).renyiOrders).toEqual(['2', 'inf']);
   });

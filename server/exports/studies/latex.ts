@@ -1,6 +1,7 @@
 import type { ResolvedSubregion, StudyAggregate, StudyCausalSet, StudyRule } from '@shared/studies';
 import { fitQuantity, pairDecaySentence, renyiQuantity, studyRenyiKeys, studyRuleKey, studyRuleLabel } from '@shared/studies';
 import { escapeLatex, formatWithUncertainty, regionText, studyCautions, type StudyExportInput } from './common';
+import { formatQuantity } from '@shared/precision';
 
 function latexRule(rule: string): string {
   if (rule === 'none') return 'untruncated';
@@ -106,7 +107,7 @@ export function latexTable(input: StudyExportInput): string {
     for (const f of logFits) {
       const linear = input.fits.find((g) => g.model === 'linear' && g.rule === f.rule && g.subregion === f.subregion);
       const where = f.subregion === null ? 'all' : (subregionName.get(f.subregion) ?? escapeLatex(f.subregion));
-      const r2 = f.rSquared === null ? '--' : f.rSquared.toFixed(3);
+      const r2 = f.rSquared === null ? '--' : formatQuantity(f.rSquared, 'fit', 'latex');
       const slope = linear ? `$${formatWithUncertainty(linear.slope, linear.slopeError)}$` : '--';
       lines.push(
         `    ${latexRule(f.rule)} & ${where} & ${f.points} & $${formatWithUncertainty(f.slope, f.slopeError)}$ & $${formatWithUncertainty(f.intercept, f.interceptError)}$ & ${r2} & ${slope} \\\\`,
@@ -206,7 +207,7 @@ function pairTables(input: StudyExportInput, id8: string): string[] {
     for (const f of fits) {
       const points = `${f.points}${f.excluded ? ` (${f.excluded} left out)` : ''}`;
       lines.push(
-        `    ${latexRule(f.rule)} & ${f.N} & ${f.size} & ${points} & $${formatWithUncertainty(f.slope, f.slopeError)}$ & $${f.continuum ? f.continuum.slope.toFixed(3) : '--'}$ & ${f.continuum ? `$[${f.continuum.from}, ${f.continuum.to}]$` : '--'} \\\\`,
+        `    ${latexRule(f.rule)} & ${f.N} & ${f.size} & ${points} & $${formatWithUncertainty(f.slope, f.slopeError)}$ & $${f.continuum ? formatQuantity(f.continuum.slope, 'fit', 'latex') : '--'}$ & ${f.continuum ? `$[${f.continuum.from}, ${f.continuum.to}]$` : '--'} \\\\`,
       );
     }
     lines.push('    \\bottomrule');

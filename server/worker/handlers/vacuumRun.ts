@@ -1,4 +1,5 @@
-import { formatEntropy, formatQuantity } from '@shared/precision';
+import { belowEntropyFloor, formatEntropy, formatQuantity, formatSignificantDigits } from '@shared/precision';
+import { sortRenyiKeys } from '@shared/studies';
 import { entropyRuleLabel, vacuumStages, type VacuumStage } from '@shared/vacuum';
 import { decodeFloat64, decodeRelationWords } from '../../db/codecs';
 import * as runs from '../../db/repositories/runs';
@@ -43,6 +44,18 @@ function doneDetail(result: VacuumResult): string {
   if (result.entropy) {
     const rule = entropyRuleLabel({ truncation: result.truncation, doubleTruncation: result.entropy.doubleTruncation, restrictedCut: result.entropy.restrictedCut });
     lines.push(`Entropy of the subregion (${result.entropy.n} elements, ${rule}): S = ${formatEntropy(result.entropy.S)}.`);
+    if (result.entropy.renyi) {
+      const orders = sortRenyiKeys(Object.keys(result.entropy.renyi));
+      lines.push(`Rényi entropies: ${orders.map((key) => `S_${key === 'inf' ? '∞' : key} = ${formatEntropy(result.entropy!.renyi![key])}`).join(', ')}.`);
+    }
+    if (result.complement) {
+      const difference = result.complement.difference;
+      lines.push(`Causal complement (${result.complement.n} elements): S = ${formatEntropy(result.complement.S)}, S_O′ − S_O = ${belowEntropyFloor(difference) ? formatEntropy(difference) : formatSignificantDigits(difference, 2)}.`);
+    }
+  }
+  if (result.mutualInformation) {
+    const mi = result.mutualInformation;
+    lines.push(`Mutual information: I(A:B) = ${formatQuantity(mi.I, 'entropy')} (S_A = ${formatEntropy(mi.a.S)}, S_B = ${formatEntropy(mi.b.S)}, S_A∪B = ${formatEntropy(mi.union.S)}).`);
   }
   for (const caution of result.cautions) lines.push(`Caution: ${caution}`);
   return lines.join('\n');

@@ -30,11 +30,11 @@ export function CausalSetStats({ set }: { set: CausalSetSummary }) {
           </Row>
           {set.region && (
             <Row label="Volume V" note={describeRegion(set.region)}>
-              <Figure value={set.volume} />
+              <Figure value={set.volume} kind="measure" />
             </Row>
           )}
           <Row label="Density ρ" note={set.density === null ? 'none given: massless 2D fields only' : set.region ? 'N / V' : 'as given'}>
-            <Figure value={set.density} />
+            <Figure value={set.density} kind="measure" />
           </Row>
           <Row label="Relations R" note="pairs i ≺ j, after transitive closure">
             <Figure value={s.relations} />
@@ -43,7 +43,7 @@ export function CausalSetStats({ set }: { set: CausalSetSummary }) {
             <Figure value={s.links} />
           </Row>
           <Row label="Ordering fraction" note="R / (N choose 2); near 1/2 for a 2D diamond, 1/10 in 4D">
-            <Figure value={s.orderingFraction} />
+            <Figure value={s.orderingFraction} kind="measure" />
           </Row>
           <Row label="Height" note="elements in a longest chain">
             <Figure value={s.height} />

@@ -1,4 +1,4 @@
-import { belowEntropyFloor, formatEntropy, formatQuantity } from '@shared/precision';
+import { belowEntropyFloor, formatCheckPair, formatEntropy, formatQuantity, formatSignificantDigits } from '@shared/precision';
 import { regionSettingsText, regionSpecSchema } from '@shared/regions';
 import type { EntropyPart, RunDetail, RunResult } from '@shared/runs';
 import { effectiveRestrictedCut, entropyRuleLabel, restrictedCutText, type RestrictedCut, type TruncationRule } from '@shared/vacuum';
@@ -108,7 +108,7 @@ export function RenyiTable({ entropy }: { entropy: Pick<NonNullable<RunResult['e
               <span className="ml-2 font-sans text-xs text-ink-faint">{row.order === 1 ? 'von Neumann S' : row.order === 'inf' ? 'min-entropy' : ''}</span>
             </th>
             <td className="py-1.5 text-right">
-              <Figure value={row.value} digits={6} />
+              <EntropyFigure value={row.value} />
             </td>
           </tr>
         ))}
@@ -139,8 +139,8 @@ export function MutualInformationPanel({ mutualInformation: mi }: { mutualInform
     ['A∪B', mi.union],
   ] as const;
   const rows: [string, (p: EntropyPart) => React.ReactNode][] = [
-    // narrow figures (five significant digits) so the three columns fit a phone's width
-    ['S', (p) => <Figure value={p.S} digits={5} whole={5} fraction={5} />],
+    // narrow figures so the three columns fit a phone's width
+    ['S', (p) => <EntropyFigure value={p.S} whole={5} fraction={5} />],
     ['n', (p) => <Figure value={p.n} whole={5} fraction={5} />],
     ['restricted cut', (p) => <PartCut part={p} />],
     ['modes kept', (p) => <Figure value={p.modesKept} whole={5} fraction={5} />],
@@ -178,7 +178,7 @@ export function MutualInformationPanel({ mutualInformation: mi }: { mutualInform
       <p className="flex items-baseline justify-between gap-4 border-b border-ink pb-1.5 text-sm">
         <span className="text-ink">I(A:B) = S_A + S_B − S_A∪B</span>
         <span data-testid="mutual-information-I" data-value={mi.I}>
-          <Figure value={mi.I} digits={6} />
+          <Figure value={mi.I} kind="entropy" />
         </span>
       </p>
       <aside className="max-w-xl border-l-2 border-reference py-1 pl-3 text-xs text-ink-soft" data-testid="mutual-information-caution">
@@ -222,7 +222,7 @@ export function ComplementTable({ entropy, complement }: { entropy: Pick<NonNull
       <p className="flex max-w-md items-baseline justify-between gap-4 border-b border-ink pb-1.5 text-sm">
         <span className="text-ink">Purity diagnostic S_O′ − S_O</span>
         <span data-testid="complement-difference" data-value={complement.difference}>
-          <Figure value={complement.difference} digits={6} />
+          <CheckDifference value={complement.difference} />
         </span>
       </p>
       <aside className="max-w-md border-l-2 border-reference py-1 pl-3 text-xs text-ink-soft">
@@ -240,10 +240,26 @@ const diagnosticLabels: Record<string, { label: string; note: string }> = {
   minEigenvalueW: { label: 'Smallest eigenvalue of W', note: '≥ 0 up to rounding for a state' },
   commutatorResidual: { label: 'Commutator residual', note: '‖W − W̄ − iΔ‖ / ‖Δ‖ on the kept modes' },
   positiveNegativeOverlap: { label: 'Orthogonality error', note: '‖W W̄‖ / ‖W‖²' },
-  trace: { label: 'Trace of W', note: 'equals the sum of the kept eigenvalues' },
-  positiveEigenvalueSum: { label: 'Sum of kept eigenvalues', note: 'what the trace must equal' },
   basisOrthonormalityError: { label: 'Basis orthonormality error', note: '‖VᵀV − 1‖ of the kept modes' },
 };
+
+/** The trace of W and the sum of the kept eigenvalues must agree: one row with both and their difference. */
+const traceCheckKeys = new Set(['trace', 'positiveEigenvalueSum']);
+
+function traceCheck(trace: number, keptSum: number) {
+  return formatCheckPair(trace, keptSum, 'spectral');
+}
+
+/** A formatted number whose ×10^k part is set as a superscript, as Figure sets it. */
+function WithExponent({ text }: { text: string }) {
+  const at = text.indexOf('×10^');
+  if (at === -1) return <>{text}</>;
+  return (
+    <>
+      {text.slice(0, at)}×10<sup>{text.slice(at + 4)}</sup>
+    </>
+  );
+}
 
 /** The engine's own names for the checks above, sent alongside; shown once under the labels above. */
 const engineAliases = new Set(['hermiticityError', 'smallestEigenvalue', 'commutatorError', 'orthogonalityError', 'probeCount']);
@@ -253,9 +269,11 @@ const engineAliases = new Set(['hermiticityError', 'smallestEigenvalue', 'commut
 export function DiagnosticsTable({ result }: { result: RunResult }) {
   const known = Object.keys(diagnosticLabels).filter((k) => typeof result.diagnostics[k] === 'number');
   const extra = Object.entries(result.diagnostics).filter(
-    ([k, v]) => !(k in diagnosticLabels) && !engineAliases.has(k) && typeof v === 'number',
+    ([k, v]) => !(k in diagnosticLabels) && !engineAliases.has(k) && !traceCheckKeys.has(k) && typeof v === 'number',
   ) as [string, number][];
   const method = result.diagnostics.smallestEigenvalueMethod;
+  const trace = result.diagnostics.trace;
+  const keptSum = result.diagnostics.positiveEigenvalueSum;
   const probes = probedCheckCount(result.diagnostics);
   return (
     <table className="w-full max-w-md border-collapse text-sm" aria-label="Diagnostics">
@@ -273,11 +291,13 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
         )}
         {result.density !== null && (
           <Row label="Density ρ">
-            <Figure value={result.density} />
+            <Figure value={result.density} kind="measure" />
           </Row>
         )}
         <Row label="Cut λc">
-          <Figure value={result.cutoff} kind="cut" />
+          <span data-testid="cut-lambda" data-value={result.cutoff}>
+            <Figure value={result.cutoff} kind="cut" />
+          </span>
         </Row>
         <Row label="Modes kept" note={`of ${result.eigenvalues.length} positive eigenvalues`}>
           <Figure value={result.modesKept} />
@@ -288,12 +308,21 @@ export function DiagnosticsTable({ result }: { result: RunResult }) {
             label={diagnosticLabels[key].label}
             note={diagnosticNote(key, diagnosticLabels[key].note, method, probes)}
           >
-            <Figure value={result.diagnostics[key] as number} digits={3} />
+            <Figure value={result.diagnostics[key] as number} kind="residual" />
           </Row>
         ))}
+        {typeof trace === 'number' && typeof keptSum === 'number' && (
+          <Row label="Trace of W" note="must equal the sum of the kept eigenvalues; the difference is the check">
+            <span className="figures inline-flex flex-col items-end text-xs leading-tight" data-testid="trace-check" data-difference={trace - keptSum}>
+              <span className="text-sm">{traceCheck(trace, keptSum).first}</span>
+              <span className="text-ink-soft">sum of kept eigenvalues {traceCheck(trace, keptSum).second}</span>
+              <span>difference <WithExponent text={traceCheck(trace, keptSum).difference} /></span>
+            </span>
+          </Row>
+        )}
         {extra.map(([key, value]) => (
           <Row key={key} label={key}>
-            <Figure value={value} digits={3} />
+            <Figure value={value} kind="residual" />
           </Row>
         ))}
       </tbody>
@@ -393,7 +422,16 @@ export function SettingsTable({ run }: { run: RunDetail }) {
 }
 
 /** An entropy by the precision rule: a pure state's rounding reads as zero below the floor, not as digits of noise. */
-function EntropyFigure({ value }: { value: number }) {
+function EntropyFigure({ value, whole, fraction }: { value: number; whole?: number; fraction?: number }) {
   if (belowEntropyFloor(value)) return <span className="figures text-xs" data-testid="entropy-floor">{formatEntropy(value)}</span>;
-  return <Figure value={value} kind="entropy" />;
+  return <Figure value={value} kind="entropy" whole={whole} fraction={fraction} />;
+}
+
+/**
+ * A difference of two entropies that should agree: two significant digits (its size is what it says),
+ * or the floor text when it is below the numerical floor of S itself.
+ */
+function CheckDifference({ value }: { value: number }) {
+  if (belowEntropyFloor(value)) return <span className="figures text-xs">{formatEntropy(value)}</span>;
+  return <span className="figures"><WithExponent text={formatSignificantDigits(value, 2)} /></span>;
 }

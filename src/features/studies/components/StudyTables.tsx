@@ -1,4 +1,4 @@
-import { splitWithError } from '@shared/precision';
+import { formatSignificantDigits, splitWithError } from '@shared/precision';
 import type { StudyAggregate, StudyFit } from '@shared/studies';
 import { fitQuantity, renyiQuantity, sortRenyiKeys } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
@@ -62,7 +62,7 @@ export function AggregateTable({
                     </td>,
                     <td key={`e${k}`} className={`${td} pl-1 text-ink-soft`}>
                       {c?.seS != null ? (
-                        <span className="figures text-xs">± {c.meanS != null ? splitWithError(c.meanS, c.seS).error : c.seS.toPrecision(2)}</span>
+                        <span className="figures text-xs">± {c.meanS != null ? splitWithError(c.meanS, c.seS).error : formatSignificantDigits(c.seS, 2)}</span>
                       ) : (
                         <span className="text-xs text-ink-faint">one seed</span>
                       )}
@@ -78,13 +78,18 @@ export function AggregateTable({
   );
 }
 
-/** ± SE beside a mean, or "one seed" when there is none. */
-function ErrorCell({ se }: { se: number | null | undefined }) {
+/** ± SE beside a mean, at the decimal place the mean is shown to (shared/precision.ts), or "one seed" when there is none. */
+function ErrorCell({ value, se }: { value: number | null | undefined; se: number | null | undefined }) {
   return (
     <td className={`${td} pl-1 text-ink-soft`}>
-      {se != null ? <span className="figures text-xs">± {se.toPrecision(2)}</span> : <span className="text-xs text-ink-faint">one seed</span>}
+      {se != null ? <span className="figures text-xs">± {errorText(value, se)}</span> : <span className="text-xs text-ink-faint">one seed</span>}
     </td>
   );
+}
+
+/** The error of a value as formatWithError writes it beside the value. */
+function errorText(value: number | null | undefined, error: number): string {
+  return value != null && error > 0 ? splitWithError(value, error).error : formatSignificantDigits(error, 2);
 }
 
 /**
@@ -133,14 +138,14 @@ export function RenyiTable({
               <td className={`${td} whitespace-nowrap font-mono text-xs`}>{subregionLabels[a.subregion] ?? a.subregion}</td>
               <td className={`${td} whitespace-nowrap text-xs`}>{ruleLabels[a.rule] ?? a.rule}</td>
               <td className={`${td} pr-0`}>
-                <Figure value={pairs ? a.pair!.meanI : a.meanS} digits={4} whole={4} fraction={5} />
+                <Figure value={pairs ? a.pair!.meanI : a.meanS} error={pairs ? a.pair!.seI : a.seS} digits={4} whole={4} fraction={5} />
               </td>
-              <ErrorCell se={pairs ? a.pair!.seI : a.seS} />
+              <ErrorCell value={pairs ? a.pair!.meanI : a.meanS} se={pairs ? a.pair!.seI : a.seS} />
               {keys.map((k) => [
                 <td key={`m${k}`} className={`${td} pr-0`}>
-                  <Figure value={valuesOf(a)![k]?.mean} digits={4} whole={4} fraction={5} />
+                  <Figure value={valuesOf(a)![k]?.mean} error={valuesOf(a)![k]?.se} digits={4} whole={4} fraction={5} />
                 </td>,
-                <ErrorCell key={`e${k}`} se={valuesOf(a)![k]?.se} />,
+                <ErrorCell key={`e${k}`} value={valuesOf(a)![k]?.mean} se={valuesOf(a)![k]?.se} />,
               ])}
             </tr>
           ))}
@@ -192,9 +197,9 @@ export function PairTable({ aggregates, rules, ruleLabels }: { aggregates: Study
                 </td>
                 {cells.map((c, k) => [
                   <td key={`m${k}`} className={`${td} pr-0`}>
-                    <Figure value={c?.pair!.meanI} digits={4} whole={3} fraction={5} />
+                    <Figure value={c?.pair!.meanI} error={c?.pair!.seI} digits={4} whole={3} fraction={5} />
                   </td>,
-                  <ErrorCell key={`e${k}`} se={c?.pair!.seI} />,
+                  <ErrorCell key={`e${k}`} value={c?.pair!.meanI} se={c?.pair!.seI} />,
                 ])}
               </tr>
             );
@@ -238,13 +243,13 @@ export function PairFitsTable({ fits, ruleLabels }: { fits: StudyFit[]; ruleLabe
                 {f.excluded ? <span className="ml-1 text-ink-faint">({f.excluded} with ⟨I⟩ ≤ 0 left out)</span> : null}
               </td>
               <td className={`${td} pr-0`}>
-                <Figure value={f.slope} digits={3} whole={2} fraction={4} />
+                <Figure value={f.slope} error={f.slopeError} kind="fit" whole={2} fraction={4} />
               </td>
               <td className={`${td} pl-1 text-ink-soft`}>
-                <span className="figures text-xs">{f.slopeError !== null ? `± ${f.slopeError.toPrecision(2)}` : ''}</span>
+                <span className="figures text-xs">{f.slopeError !== null ? `± ${errorText(f.slope, f.slopeError)}` : ''}</span>
               </td>
               <td className={td}>
-                <Figure value={f.continuum?.slope} digits={3} whole={2} fraction={4} />
+                <Figure value={f.continuum?.slope} kind="fit" whole={2} fraction={4} />
               </td>
               <td className={`${td} figures text-xs`}>{f.continuum ? `${f.continuum.from} – ${f.continuum.to}` : ''}</td>
             </tr>
@@ -302,32 +307,32 @@ export function FitsTable({
                   <Figure value={f.points} whole={3} fraction={0} />
                 </td>
                 <td className={`${td} pr-0`}>
-                  <Figure value={f.slope} digits={3} whole={3} fraction={5} />
+                  <Figure value={f.slope} error={f.slopeError} kind="fit" whole={3} fraction={5} />
                 </td>
                 <td className={`${td} pl-1 text-ink-soft`}>
-                  <span className="figures text-xs">{f.slopeError !== null ? `± ${f.slopeError.toPrecision(2)}` : ''}</span>
+                  <span className="figures text-xs">{f.slopeError !== null ? `± ${errorText(f.slope, f.slopeError)}` : ''}</span>
                 </td>
                 <td className={td}>
-                  <Figure value={f.intercept} error={f.interceptError} digits={3} whole={3} fraction={5} />
+                  <Figure value={f.intercept} error={f.interceptError} kind="fit" whole={3} fraction={5} />
                   {f.interceptError != null && <span className="figures text-xs text-ink-soft"> ± {splitWithError(f.intercept, f.interceptError).error}</span>}
                 </td>
                 <td className={td}>
-                  <Figure value={f.rSquared} digits={3} whole={2} fraction={5} />
+                  <Figure value={f.rSquared} kind="fit" whole={2} fraction={5} />
                 </td>
                 <td className={`${td} pr-0`}>
-                  <Figure value={linear?.slope} digits={3} whole={3} fraction={7} />
+                  <Figure value={linear?.slope} error={linear?.slopeError} kind="fit" whole={3} fraction={7} />
                 </td>
                 <td className={`${td} pl-1 text-ink-soft`}>
-                  <span className="figures text-xs">{linear?.slopeError != null ? `± ${linear.slopeError.toPrecision(2)}` : ''}</span>
+                  <span className="figures text-xs">{linear?.slopeError != null ? `± ${errorText(linear.slope, linear.slopeError)}` : ''}</span>
                 </td>
                 {renyiKeys.map((k) => {
                   const r = fits.find((g) => g.model === 'log' && g.rule === f.rule && g.subregion === f.subregion && fitQuantity(g) === renyiQuantity(k));
                   return [
                     <td key={`b${k}`} className={`${td} pr-0`}>
-                      <Figure value={r?.slope} digits={3} whole={3} fraction={5} />
+                      <Figure value={r?.slope} error={r?.slopeError} kind="fit" whole={3} fraction={5} />
                     </td>,
                     <td key={`e${k}`} className={`${td} pl-1 text-ink-soft`}>
-                      <span className="figures text-xs">{r?.slopeError != null ? `± ${r.slopeError.toPrecision(2)}` : ''}</span>
+                      <span className="figures text-xs">{r?.slopeError != null ? `± ${errorText(r.slope, r.slopeError)}` : ''}</span>
                     </td>,
                   ];
                 })}

@@ -1,4 +1,4 @@
-import { formatQuantity } from '@shared/precision';
+import { formatQuantity, formatWithError } from '@shared/precision';
 import type { StudyAggregate, StudyFit, StudySpectrum } from '@shared/studies';
 import { fitQuantity, renyiQuantity } from '@shared/studies';
 import { renyiLabel } from '@shared/vacuum';
@@ -65,7 +65,7 @@ export function scalingTraces({ aggregates, fits, rule, subregionLabels, model, 
     traces.push({
       type: 'scatter',
       mode: 'lines',
-      name: `fit${where}: ${slopeName} = ${fit.slope.toPrecision(3)}${fit.slopeError !== null ? ` ± ${fit.slopeError.toPrecision(2)}` : ''}`,
+      name: `fit${where}: ${slopeName} = ${formatWithError(fit.slope, fit.slopeError, 'text', 'fit')}`,
       x: ends,
       y: ends.map((v) => fit.slope * v + fit.intercept),
       line: { color: plotPalette.cut, width: 1.5, dash: ['dash', 'dot', 'dashdot', 'longdash'][k % 4] },
@@ -181,7 +181,7 @@ export function pairDecayTraces(aggregates: StudyAggregate[], fits: StudyFit[], 
     traces.push({
       type: 'scatter',
       mode: 'lines',
-      name: `fit (${name}): slope ${fit.slope.toPrecision(3)}${fit.slopeError !== null ? ` ± ${fit.slopeError.toPrecision(2)}` : ''}`,
+      name: `fit (${name}): slope ${formatWithError(fit.slope, fit.slopeError, 'text', 'fit')}`,
       x: ends,
       y: ends.map((d) => Math.exp(fit.intercept) * d ** fit.slope),
       line: { color: plotPalette.cut, width: 1.5, dash: ['dash', 'dot', 'dashdot', 'longdash'][k % 4] },
@@ -192,7 +192,7 @@ export function pairDecayTraces(aggregates: StudyAggregate[], fits: StudyFit[], 
     traces.push({
       type: 'scatter',
       mode: 'lines',
-      name: `continuum trend (${name}): slope ${fit.continuum.slope.toPrecision(3)}`,
+      name: `continuum trend (${name}): slope ${formatQuantity(fit.continuum.slope, 'fit')}`,
       x: ends,
       y: ends.map((d) => atMiddle * (d / middle) ** fit.continuum!.slope),
       line: { color: plotPalette.reference, width: 1.5, dash: ['solid', 'dot', 'dashdot', 'longdash'][k % 4] },
