@@ -63,7 +63,7 @@ describe('importing a causal set in the browser', () => {
     await page.getByRole('figure', { name: 'Elements' }).locator('.main-svg').first().waitFor();
     const summary = page.getByRole('table', { name: 'Summary' });
     await expect(summary.textContent()).resolves.toContain('300');
-    await page.getByRole('form', { name: 'Run on this causal set' }).waitFor();
+    await page.getByRole('link', { name: 'Start a run on this set' }).waitFor();
     await shot(page, '03-preview');
 
     // the original bytes come back under the original name
@@ -73,8 +73,11 @@ describe('importing a causal set in the browser', () => {
     expect(readFileSync(saved!).equals(readFileSync(fixture))).toBe(true);
 
     // a run on the set starts from its page and opens the run
-    await page.getByLabel('Subregion for the entropy (optional)').fill('diamond:-0.7071,0:0.7071,0');
-    await page.getByRole('button', { name: 'Start the run' }).click();
+    await page.getByRole('link', { name: 'Start a run on this set' }).click();
+    await page.waitForURL(/\/runs\/new\?causalSet=/);
+    await page.getByLabel('Compute the entanglement entropy of a subregion').check();
+    for (const [label, value] of [['past t', '-0.7071'], ['past x', '0'], ['future t', '0.7071'], ['future x', '0']]) await page.getByLabel(label, { exact: true }).fill(value);
+    await page.getByRole('button', { name: 'Start run' }).click();
     await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
     const runId = page.url().split('/').pop()!;
     const run = await running.context.dataSource.query('SELECT region_kind, requested_n, request FROM runs WHERE id = $1', [runId]);

@@ -81,7 +81,7 @@ describe('a run with Rényi orders, a pair and the complement check', () => {
     expect(pageErrors).toEqual([]);
   }, 180_000);
 
-  it('on an imported relation list: diamonds for A are refused beside A, element lists run', async () => {
+  it('on an imported relation list: the new-run form takes element lists only, refuses a label the set lacks beside A, and runs', async () => {
     const page = await signIn(running, researcher);
     const pageErrors: string[] = [];
     page.on('pageerror', (error) => pageErrors.push(error.message));
@@ -96,24 +96,29 @@ describe('a run with Rényi orders, a pair and the complement check', () => {
     await page.getByRole('button', { name: 'Import' }).click();
     await page.waitForURL(/\/causal-sets\/[0-9a-f-]{36}$/);
 
-    const form = page.getByRole('form', { name: 'Run on this causal set' });
+    // the set's page opens the one new-run form with the set picked
+    await page.getByRole('link', { name: 'Start a run on this set' }).click();
+    await page.waitForURL(/\/runs\/new\?causalSet=[0-9a-f-]{36}$/);
+    const form = page.getByRole('form', { name: 'New run' });
+    await form.getByLabel('Compute the entanglement entropy of a subregion').check();
+    // a relation list has no coordinates: tips cannot be chosen
+    await expect(form.locator('select[name="subregionBy"] option[value="tips"]').isDisabled()).resolves.toBe(true);
+    await form.getByLabel('Elements', { exact: true }).fill('0, 1, 2');
+    await form.getByLabel('Rényi orders α').fill('2');
     await form.getByLabel('Compute the mutual information of two subregions').check();
-    await form.getByLabel('Subregion A').fill('diamond:-0.5,0:0.5,0');
-    await form.getByLabel('Subregion B').fill('diamond:-0.5,0.6:0.5,0.6');
-    await form.getByRole('button', { name: 'Start the run' }).click();
-    // the server names mutualInformation.a; the form shows its message beside A
-    const fieldA = form.getByLabel('Subregion A');
-    await form.locator('input[name="pair-a"][aria-invalid="true"]').waitFor();
+    await form.getByLabel('A Elements').fill('0, 99');
+    await form.getByLabel('B Elements').fill('3, 4');
+    await form.getByRole('button', { name: 'Start run' }).click();
+    // element 99 does not exist in a set of 12: the message sits beside A, nothing is sent
+    const fieldA = form.getByLabel('A Elements');
+    await form.locator('input[name="a-elementList"][aria-invalid="true"]').waitFor();
     const describedBy = (await fieldA.getAttribute('aria-describedby'))!;
-    await expect(page.locator(`[id="${describedBy}"]`).textContent()).resolves.toMatch(/relation|element|coordinates/i);
-    expect(page.url()).toMatch(/\/causal-sets\/[0-9a-f-]{36}$/);
+    await expect(page.locator(`[id="${describedBy}"]`).textContent()).resolves.toMatch(/Element 99 does not exist/);
+    expect(page.url()).toMatch(/\/runs\/new/);
     await screenshot(page, 'entanglement-05-relation-list-refused');
 
-    await form.getByLabel('Subregion for the entropy (optional)').fill('elements:0,1,2');
-    await form.getByLabel('Rényi orders α').fill('2');
-    await form.getByLabel('Subregion A').fill('elements:0,1');
-    await form.getByLabel('Subregion B').fill('elements:3,4');
-    await form.getByRole('button', { name: 'Start the run' }).click();
+    await fieldA.fill('0, 1');
+    await form.getByRole('button', { name: 'Start run' }).click();
     await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
     await page.getByRole('table', { name: 'Mutual information' }).waitFor({ timeout: 60_000 });
     await page.getByRole('table', { name: 'Rényi entropies' }).waitFor();

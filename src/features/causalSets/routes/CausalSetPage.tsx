@@ -14,7 +14,6 @@ import { useCan } from '../../../lib/permissions';
 import { PlotFigure } from '../../../ui/PlotFigure';
 import { downloadOriginalFile, useCausalSet, useDeleteCausalSet } from '../api/causalSets';
 import { CausalSetStats } from '../components/CausalSetStats';
-import { RunOnCausalSet } from '../components/RunOnCausalSet';
 import { kindLabels } from './CausalSetsPage';
 
 /** Elements in the (x, t) plane — in 4D against the radius |x⃗| — with equal scales, so light rays run at 45°. */
@@ -173,8 +172,15 @@ export function CausalSetPage() {
       </div>
       {canCompute && (
         <Section title="Run the vacuum on it">
-          <div className="max-w-3xl">
-            <RunOnCausalSet set={data} />
+          <div className="flex max-w-3xl flex-col items-start gap-3">
+            <p className="text-sm text-ink-soft">
+              The new-run form with this set picked: the same settings as every run (cut rule, mass, engine, a subregion
+              by its tips{data.kind === 'relations' ? ' — here by its element labels, since a relation list has no coordinates' : ''} or
+              element labels, a pair, Rényi orders, the complement check), with double truncation on.
+            </p>
+            <Link to={`/runs/new?causalSet=${encodeURIComponent(data.id)}`} className="rounded-sm bg-accent px-4 py-1.5 text-sm font-medium text-paper hover:bg-accent-deep" data-testid="run-on-causal-set">
+              Start a run on this set
+            </Link>
           </div>
         </Section>
       )}

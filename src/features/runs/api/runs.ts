@@ -99,6 +99,24 @@ export function useReanalyseRun(runId: string) {
   });
 }
 
+/** Retry of a failed or cancelled run: a new run with the same settings. */
+export function useRetryRun(runId: string) {
+  const invalidate = useInvalidateRuns();
+  return useMutation({
+    mutationFn: () => api.post<{ id: string }>(runPath(runId, '/retry')),
+    onSuccess: () => invalidate(),
+  });
+}
+
+/** Same settings, new seed: a new run on a fresh sprinkling; the answer names the seed. */
+export function useReseedRun(runId: string) {
+  const invalidate = useInvalidateRuns();
+  return useMutation({
+    mutationFn: () => api.post<{ id: string; seed: string }>(runPath(runId, '/reseed')),
+    onSuccess: () => invalidate(),
+  });
+}
+
 export function useCancelRun(runId: string) {
   const queryClient = useQueryClient();
   const teamId = useCurrentTeamId() ?? 'none';

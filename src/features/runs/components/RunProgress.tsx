@@ -1,5 +1,6 @@
 import { vacuumStages, type VacuumStage } from '@shared/vacuum';
 import type { RunDetail } from '@shared/runs';
+import { ComputeTimingLine } from '../../../ui/ComputeTimingLine';
 
 export const stageLabels: Record<VacuumStage, string> = {
   sprinkle: 'Sprinkling',
@@ -48,6 +49,7 @@ export function RunProgress({ run }: { run: RunDetail }) {
       >
         <div className="h-1 bg-accent transition-[width] duration-700" style={{ width: `${percent}%` }} />
       </div>
+      <ComputeTimingLine status={run.status} timing={run.timing} className="text-sm text-ink-soft" />
       <ol className="flex flex-wrap gap-x-6 gap-y-1 text-xs">
         {stages.map((stage, index) => {
           const state = run.status === 'queued' || index > current ? 'todo' : index === current ? 'now' : 'done';

@@ -16,7 +16,16 @@ import {
   type RegionFieldValues,
   type RegionKind,
 } from '@shared/regions';
-import { defaultTruncationFor, type PrngName } from '@shared/vacuum';
+import {
+  defaultTruncationFor,
+  type PrngName,
+  type RenyiOrder,
+  type RestrictedCut,
+  type SprinklingSpec,
+  type SubregionPair,
+  type SubregionSpec,
+  type TruncationRule,
+} from '@shared/vacuum';
 import { renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 import type { z } from 'zod';
 import { parseNumber, type FieldErrors } from '../../../lib/forms';
@@ -24,6 +33,7 @@ import {
   defaultRestrictedCutForm,
   defaultTruncation,
   restrictedCutFromForm,
+  restrictedCutToForm,
   truncationFieldMessages,
   truncationFromForm,
   truncationToForm,
@@ -182,6 +192,106 @@ export function defaultRunForm(seed: string = newSeed()): RunFormValues {
     withPair: false,
     pairA: defaultPairSide(-1),
     pairB: defaultPairSide(1),
+  };
+}
+
+/**
+ * The settings a run keeps of its request (GET /api/runs/:id `request`), as far as the form reads them:
+ * a POST body, or what the server stored from one (an imported set by reference, a re-analysis with
+ * its parent's sprinkling beside `reusedPoints`).
+ */
+export interface StoredRunSettings {
+  title?: string;
+  mass?: number;
+  truncation?: TruncationRule;
+  subregion?: SubregionSpec;
+  doubleTruncation?: boolean;
+  restrictedCut?: RestrictedCut;
+  sprinkling?: SprinklingSpec;
+  causalSetId?: string;
+  causalSet?: { id: string };
+  engine?: EngineRequest;
+  renyi?: RenyiOrder[];
+  mutualInformation?: SubregionPair;
+  complement?: boolean;
+}
+
+const labelsText = (indices: readonly number[]) => indices.join(', ');
+
+function shapeFromSpec(spec: SubregionSpec, fallback: SubregionShapeValues): SubregionShapeValues {
+  return spec.kind === 'elements'
+    ? { ...fallback, elementList: labelsText(spec.indices) }
+    : { past: tipText(spec.past), future: tipText(spec.future), elementList: '' };
+}
+
+/**
+ * The new-run form holding a run's settings, for "Open in the new-run form": the inverse of
+ * `runRequestFromForm`, so a form read back from the request it made is the same form. Fields the
+ * request leaves out keep the defaults (the region's own sub-diamond and pair, a count of 500 beside a
+ * density, the seed of a run on an imported set fresh).
+ */
+export function runFormFromRequest(request: StoredRunSettings, seed: string = newSeed()): RunFormValues {
+  const base = defaultRunForm(seed);
+  const sprinkling = request.sprinkling;
+  const region = sprinkling?.region as (Record<string, unknown> & { kind: RegionKind }) | undefined;
+  const regionFields: RegionFieldValues = { regionKind: base.regionKind, ...regionFieldDefaults() };
+  if (region) {
+    regionFields.regionKind = region.kind;
+    for (const key of regionDescriptors[region.kind].fields) regionFields[key] = String(region[key]);
+  }
+  const tips = tipsForRegion(regionFields) ?? { past: base.past, future: base.future, pairA: base.pairA, pairB: base.pairB };
+  const subregion = request.subregion;
+  const pair = request.mutualInformation;
+  const byElements = subregion?.kind === 'elements' || pair?.a.kind === 'elements';
+  const form: RunFormValues = {
+    ...base,
+    ...regionFields,
+    ...tips,
+    title: request.title ?? '',
+    source: sprinkling ? 'sprinkle' : 'imported',
+    causalSetId: request.causalSetId ?? request.causalSet?.id ?? '',
+    mass: String(request.mass ?? 0),
+    truncation: request.truncation ? truncationToForm(request.truncation) : { ...defaultTruncation },
+    withSubregion: subregion !== undefined,
+    subregionBy: byElements ? 'elements' : 'tips',
+    elementList: subregion?.kind === 'elements' ? labelsText(subregion.indices) : '',
+    doubleTruncation: request.doubleTruncation ?? false,
+    restrictedCut: restrictedCutToForm(request.restrictedCut),
+    engine: request.engine ?? 'auto',
+    renyi: request.renyi ? request.renyi.map(String).join(', ') : '',
+    complement: request.complement ?? false,
+    withPair: pair !== undefined,
+    pairA: pair ? shapeFromSpec(pair.a, tips.pairA) : tips.pairA,
+    pairB: pair ? shapeFromSpec(pair.b, tips.pairB) : tips.pairB,
+  };
+  if (subregion?.kind === 'diamond') Object.assign(form, { past: tipText(subregion.past), future: tipText(subregion.future) });
+  if (sprinkling) {
+    Object.assign(form, {
+      process: sprinkling.process,
+      sizeBy: sprinkling.count !== undefined ? 'count' : 'density',
+      count: sprinkling.count !== undefined ? String(sprinkling.count) : base.count,
+      density: sprinkling.density !== undefined ? String(sprinkling.density) : '',
+      seed: sprinkling.seed,
+      prng: sprinkling.prng,
+    });
+  }
+  return form;
+}
+
+/**
+ * The form for a run on one imported set, as the set's page opens it: the set picked and named, its dimension's
+ * default cut (√N/(4π) is a 2D rule, so a 4D set starts from the knee) and double truncation on
+ * (Sorkin–Yazdi 2018: without the second cut a subregion's entropy on a causal set follows its volume).
+ */
+export function runFormForCausalSet(set: Pick<PickedCausalSet, 'id' | 'dimension'> & { name?: string }, seed: string = newSeed()): RunFormValues {
+  return {
+    ...defaultRunForm(seed),
+    // the run is named after its set, as the runs table lists it
+    title: set.name ?? '',
+    source: 'imported',
+    causalSetId: set.id,
+    truncation: truncationToForm(defaultTruncationFor(set.dimension)),
+    doubleTruncation: true,
   };
 }
 

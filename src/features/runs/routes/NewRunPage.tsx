@@ -1,11 +1,13 @@
 import { useState, type FormEvent, type ReactNode } from 'react';
-import { Link, useNavigate } from 'react-router';
+import { Link, useNavigate, useSearchParams } from 'react-router';
+import type { RunDetail } from '@shared/runs';
+import { isApiError } from '../../../lib/apiClient';
 import { useFormErrors } from '../../../lib/forms';
 import { Button } from '../../../ui/Button';
 import { FormError, SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
 import { RegionFields } from '../../../ui/RegionFields';
-import { Empty } from '../../../ui/States';
+import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { useCausalSets } from '../../causalSets/api/causalSets';
 import { CausalSetPicker } from '../../../ui/CausalSetPicker';
@@ -13,7 +15,7 @@ import { useCutRules } from '../../cutRules/api/cutRules';
 import { TruncationRuleFields } from '../../../ui/TruncationRuleFields';
 import { STRUCTURED_MAX_N_2D } from '@shared/engineChoice';
 import { useEngineLimits } from '../api/limits';
-import { useCreateRun } from '../api/runs';
+import { useCreateRun, useRun } from '../api/runs';
 import { EngineFields } from '../components/EngineFields';
 import { DoubleTruncationFields, PairFields, SubregionFields } from '../components/SubregionFields';
 import { denseLimitN, denseLimits, engineNote, sizeHint } from '../lib/engineNotes';
@@ -23,7 +25,10 @@ import {
   masslessOnlyReason,
   newSeed,
   regionDimension,
+  runFormForCausalSet,
+  runFormFromRequest,
   runRequestFromForm,
+  type StoredRunSettings,
   tipsForRegion,
   truncationForRegionChange,
   type PickedCausalSet,
@@ -58,11 +63,68 @@ export function NewRunPage() {
       </>
     );
   }
-  return <NewRunForm />;
+  return <NewRunStart />;
 }
 
-function NewRunForm() {
-  const [values, setValues] = useState<RunFormValues>(() => defaultRunForm());
+/**
+ * Where the form starts: empty; a run's settings (`?from=<runId>`, "Open in the new-run form"); or one
+ * imported causal set picked (`?causalSet=<id>`, from the set's page).
+ */
+function NewRunStart() {
+  const [params] = useSearchParams();
+  const from = params.get('from');
+  const causalSetId = params.get('causalSet');
+  if (from) return <NewRunFromRun key={from} runId={from} />;
+  if (causalSetId) return <NewRunOnCausalSet key={causalSetId} causalSetId={causalSetId} />;
+  return <NewRunForm initial={defaultRunForm()} />;
+}
+
+function NewRunFromRun({ runId }: { runId: string }) {
+  const run = useRun(runId);
+  if (run.isPending) return <Loading label="Loading the run’s settings" />;
+  if (run.isError) {
+    if (!isApiError(run.error, 404)) return <ErrorState error={run.error} onRetry={() => run.refetch()} />;
+    return (
+      <>
+        <PageHeader title="New run" />
+        <Empty>
+          No run {runId.slice(0, 8)} in the current team to take the settings from.{' '}
+          <Link to="/runs/new" className="text-accent hover:underline">
+            Start from the defaults
+          </Link>
+        </Empty>
+      </>
+    );
+  }
+  return <NewRunForm initial={runFormFromRequest(run.data.request as StoredRunSettings)} from={run.data} />;
+}
+
+function NewRunOnCausalSet({ causalSetId }: { causalSetId: string }) {
+  const causalSets = useCausalSets();
+  if (causalSets.isPending) return <Loading label="Loading the imported causal sets" />;
+  if (causalSets.isError) return <ErrorState error={causalSets.error} onRetry={() => causalSets.refetch()} />;
+  const set = causalSets.data.items.find((c) => c.id === causalSetId);
+  // a set that is gone leaves the picker empty, with its message at submit
+  return <NewRunForm initial={set ? runFormForCausalSet(set) : { ...defaultRunForm(), source: 'imported' }} />;
+}
+
+/** What the form says when it holds another run's settings. */
+function FromRunNote({ run }: { run: RunDetail }) {
+  const reanalysis = Boolean((run.request as { reusedPoints?: unknown } | null)?.reusedPoints);
+  return (
+    <p className="mb-6 max-w-4xl border-l-2 border-accent pl-3 text-sm text-ink-soft" data-testid="from-run-note">
+      Every setting of{' '}
+      <Link to={`/runs/${run.id}`} className="text-accent hover:underline">
+        run {run.title ? `${run.title} (${run.id.slice(0, 8)})` : run.id.slice(0, 8)}
+      </Link>
+      {reanalysis ? ', on the sprinkling its parent was made from (the same seed gives the same points)' : ''}. Change what you like, then start it
+      as a new run.
+    </p>
+  );
+}
+
+function NewRunForm({ initial, from }: { initial: RunFormValues; from?: RunDetail }) {
+  const [values, setValues] = useState<RunFormValues>(initial);
   const [presetId, setPresetId] = useState<string | null>(null);
   const errors = useFormErrors();
   const createRun = useCreateRun();
@@ -105,6 +167,7 @@ function NewRunForm() {
         title="New run"
         context="Sprinkle a causal set or take an imported one, build its SJ state and, if asked, the entropy of a subregion. Units: c = 1."
       />
+      {from && <FromRunNote run={from} />}
       <form onSubmit={submit} noValidate aria-label="New run" className="max-w-4xl">
         <FormSection title="Causal set" note="Ours, sprinkled from a seed, or one the team imported.">
           <fieldset className="flex flex-wrap gap-x-6 gap-y-2 text-sm">

@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { Link, useNavigate, useParams } from 'react-router';
+import { Link, useLocation, useNavigate, useParams } from 'react-router';
 import type { RunDetail } from '@shared/runs';
 import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
@@ -17,6 +17,7 @@ import { ComplementTable, DiagnosticsTable, EntropyTable, MutualInformationPanel
 import { PointsPlot, RenyiPlot, SpectrumPlot } from '../components/RunPlots';
 import { structuredSpectrumNote } from '../lib/engineText';
 import { RunProgress } from '../components/RunProgress';
+import { isReseededState, RunDailyLoopActions } from '../components/RunDailyLoopActions';
 import { StatusLabel } from '../../../ui/StatusLabel';
 import { runLabel } from '../lib/runIds';
 import { RunLatexCopy } from '../components/RunLatexCopy';
@@ -83,6 +84,17 @@ function RunView({ run }: { run: RunDetail }) {
             <span aria-hidden>·</span>
             <span className="figures">{formatDateTime(run.createdAt)}</span>
             <ImportedSetLink run={run} />
+            {run.retryOfRunId && (
+              <>
+                <span aria-hidden>·</span>
+                <span>
+                  retry of{' '}
+                  <Link to={`/runs/${run.retryOfRunId}`} className="text-accent hover:underline">
+                    run {run.retryOfRunId.slice(0, 8)}
+                  </Link>
+                </span>
+              </>
+            )}
             {run.parentRunId && (
               <>
                 <span aria-hidden>·</span>
@@ -98,6 +110,8 @@ function RunView({ run }: { run: RunDetail }) {
         }
         actions={canCompute && <RunActions run={run} />}
       />
+
+      <ReseededNote run={run} />
 
       {isActive(run.status) && (
         <Section title="Progress">
@@ -207,6 +221,22 @@ function RunView({ run }: { run: RunDetail }) {
   );
 }
 
+/** On the run a "Same settings, new seed" started: which run it copies and the seed it drew. */
+function ReseededNote({ run }: { run: RunDetail }) {
+  const state: unknown = useLocation().state;
+  if (!isReseededState(state)) return null;
+  return (
+    <p className="mb-8 border-l-2 border-accent pl-3 text-sm text-ink-soft" data-testid="reseeded-note">
+      The settings of{' '}
+      <Link to={`/runs/${state.reseededFrom}`} className="text-accent hover:underline">
+        run {state.reseededFrom.slice(0, 8)}
+      </Link>{' '}
+      on a new sprinkling, seed <span className="font-mono text-ink">{state.seed}</span>
+      {run.status === 'done' ? '.' : '; it is queued like any other run.'}
+    </p>
+  );
+}
+
 function RunActions({ run }: { run: RunDetail }) {
   const cancel = useCancelRun(run.id);
   const remove = useDeleteRun();
@@ -216,7 +246,8 @@ function RunActions({ run }: { run: RunDetail }) {
 
   return (
     <div className="flex flex-col items-end gap-1">
-      <div className="flex items-baseline gap-3">
+      <div className="flex flex-wrap items-baseline justify-end gap-x-4 gap-y-2">
+        <RunDailyLoopActions run={run} />
         {isActive(run.status) && (
           <Button variant="quiet" busy={cancel.isPending} disabled={run.cancelRequested} onClick={() => cancel.mutate()}>
             {run.cancelRequested ? 'Cancelling' : 'Cancel run'}

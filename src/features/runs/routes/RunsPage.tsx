@@ -8,10 +8,11 @@ import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { describeRestrictedCutText, describeTruncationText } from '../../../lib/truncationForm';
-import { useRuns, type RunFilters } from '../api/runs';
+import { isActive, useRuns, type RunFilters } from '../api/runs';
 import { Checkbox } from '../../../ui/Checkbox';
 import { Figure } from '../../../ui/Figure';
 import { StatusLabel, statusLabels } from '../../../ui/StatusLabel';
+import { ComputeTimingLine } from '../../../ui/ComputeTimingLine';
 import { regionLabels } from '../lib/runForm';
 import { maxCompared, runLabel } from '../lib/runIds';
 
@@ -181,6 +182,7 @@ export function RunsPage() {
                   </td>
                   <td className="py-2.5 pr-4">
                     <StatusLabel status={run.status} percent={run.percent} />
+                    {isActive(run.status) && <ComputeTimingLine status={run.status} timing={run.timing} className="block text-xs text-ink-faint" />}
                   </td>
                   <td className="py-2.5 pr-4 text-ink-soft">{regionLabels[run.regionKind] ?? run.regionKind}</td>
                   <td className="py-2.5 pr-4 text-right">

@@ -1,4 +1,5 @@
 import type { StudyDetail } from '@shared/studies';
+import { ComputeTimingLine } from '../../../ui/ComputeTimingLine';
 import { StatusLabel } from '../../../ui/StatusLabel';
 
 /** Overall progress (k of n sprinklings) and one mark per cell, so a stuck or failed cell is visible. */
@@ -26,6 +27,7 @@ export function StudyProgress({ study }: { study: StudyDetail }) {
       <div role="progressbar" aria-label="Study progress" aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(percent)} aria-valuetext={label} className="h-1 w-full bg-rule">
         <div className="h-1 bg-accent transition-[width] duration-700" style={{ width: `${percent}%` }} />
       </div>
+      <ComputeTimingLine status={study.status} timing={study.timing} className="text-sm text-ink-soft" />
       <table className="text-xs">
         <tbody>
           {counts.map((N) => (

@@ -4,6 +4,7 @@ import { PageHeader } from '../../../ui/Page';
 import { Empty, ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { StatusLabel } from '../../../ui/StatusLabel';
+import { ComputeTimingLine } from '../../../ui/ComputeTimingLine';
 import { useStudies } from '../api/studies';
 
 const th = 'border-b border-ink-faint px-2 py-1.5 text-left text-xs font-medium text-ink-soft';
@@ -63,6 +64,7 @@ export function StudiesPage() {
                   </td>
                   <td className={td}>
                     <StatusLabel status={s.status} />
+                    {(s.status === 'queued' || s.status === 'running') && <ComputeTimingLine status={s.status} timing={s.timing} className="block text-xs text-ink-faint" />}
                   </td>
                   <td className={`${td} figures text-xs`}>
                     {s.progress.done} of {s.progress.total}
