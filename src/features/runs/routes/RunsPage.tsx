@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { Link, useNavigate, useSearchParams } from 'react-router';
 import { runStatuses, type RunStatus, type RunSummary } from '@shared/runs';
 import { formatDateTime } from '../../../lib/format';
+import { BundleDownload } from '../../../ui/BundleDownload';
 import { Button } from '../../../ui/Button';
 import { SelectField, TextField } from '../../../ui/Field';
 import { PageHeader } from '../../../ui/Page';
@@ -95,6 +96,9 @@ export function RunsPage() {
       <p className="-mt-2 mb-4 text-sm text-ink-soft" data-testid="compare-explanation">
         Compare: tick 2 to 6 finished runs in the list below to see their spectra and entropies side by side.
       </p>
+      <div className="-mt-5 mb-4">
+        <BundleDownload target={{ kind: 'runs', ids: selected }} disabled={selected.length === 0} disabledReason="Tick finished runs in the list to bundle them" testId="runs-bundle" />
+      </div>
 
       <form
         className="mb-6 grid grid-cols-1 items-end gap-6 sm:grid-cols-[1fr_10rem_12rem]"

@@ -1,6 +1,7 @@
 import { Link, useNavigate, useParams } from 'react-router';
 import { formatDateTime } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
+import { BundleDownload } from '../../../ui/BundleDownload';
 import { ExportDownloads } from '../../../ui/ExportDownloads';
 import { PageHeader, Section } from '../../../ui/Page';
 import { ErrorState, Loading } from '../../../ui/States';
@@ -165,3 +166,4 @@ export function StudyPage() {
     </>
   );
 }
+        <BundleDownload target={{ kind: 'study', id: s.id }} disabled={s.progress.done === 0} disabledReason="The bundle becomes available when the first sprinkling has finished." testId="study-bundle" />
