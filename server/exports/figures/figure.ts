@@ -44,7 +44,8 @@ export interface Scene {
 
 export const figureColours = { ink: '#1d1b22', inkSoft: '#4a4753', inkFaint: '#8a8693', rule: '#d9d3c7', accent: '#4b3fb0', reference: '#7d9a86' };
 /** Data series after the first are told apart by shade and marker as well as by legend. */
-const dataShades = [figureColours.ink, figureColours.accent, figureColours.inkFaint, '#362b8c', figureColours.inkSoft];
+// the accent is for cuts, the green for the continuum: data stay in shades of ink
+const dataShades = [figureColours.ink, figureColours.inkFaint, figureColours.inkSoft];
 const markerShapes = ['circle', 'square', 'diamond'] as const;
 
 const WIDTH = 640;
