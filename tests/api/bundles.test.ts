@@ -6,6 +6,10 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bundleFileCountHeader, bundleManifestSchema, type BundleManifest } from '@shared/bundles';
 import { reproduceBundle } from '../../server/cli/reproduce';
+import { subregionElements } from '../../server/engine/entropy';
+import { causalMatrix } from '../../server/engine/order';
+import { sprinkle } from '../../server/engine/sprinkle';
+import { coordinatesCsv } from '../../server/exports/bundle/files';
 import { createTestContext, signUp, startTestWorker, type SignedUpUser, type TestContext } from '../support/app';
 import { runPython } from '../support/python';
 import { bearer, diamondRun, parseCsv, postRun, waitForRun, waitUntil } from '../worker/runHelpers';
@@ -179,6 +183,50 @@ describe('supplementary bundles', () => {
     // S of the subregion; S_{A∪B}, S_A and S_B of the pair
     expect(report).toMatchObject({ checked: 4, ok: true });
   }, 60_000);
+
+  it('bundles imported causal sets: a relation list as its i,j rows and a coordinates file as points, both computed again', async () => {
+    const drawn = sprinkle({ region: { kind: 'diamond2d', properTime: 2 }, process: 'fixed', count: 110, seed: 'imported-bundle', prng: 'arc4' });
+    const rows = ['i,j'];
+    causalMatrix(drawn.points, 2).forEach((i, j) => rows.push(`${i},${j}`));
+    const upload = async (file: string, fileName: string, fields: Record<string, string>) => {
+      const req = request(ctx.app).post('/api/causal-sets').set(bearer(researcher.token));
+      for (const [k, v] of Object.entries(fields)) req.field(k, v);
+      const res = await req.attach('file', Buffer.from(file), fileName);
+      expect(res.status, JSON.stringify(res.body)).toBe(201);
+      return res.body.id as string;
+    };
+    const relationsId = await upload(rows.join('\n') + '\n', 'order.csv', { name: 'order only', kind: 'relations', count: '110', dimension: '2' });
+    const coordinatesId = await upload(coordinatesCsv(drawn.points, 2), 'points.csv', { name: 'with coordinates', kind: 'coordinates', region: JSON.stringify({ kind: 'diamond2d', properTime: 2 }) });
+    const indices = Array.from(subregionElements({ kind: 'diamond', past: { t: -0.5, x: 0 }, future: { t: 0.5, x: 0 } }, drawn.points, 2));
+    const posted = await request(ctx.app)
+      .post('/api/studies')
+      .set(bearer(researcher.token))
+      .send({ title: 'imported bundle', source: 'imported', causalSetIds: [relationsId, coordinatesId], subregions: { kind: 'elements', lists: [{ label: 'centre', indices }] }, rules: [{ truncation: { rule: 'sqrtN' }, doubleTruncation: true }] });
+    expect(posted.status, JSON.stringify(posted.body)).toBe(202);
+    const relationRun = await postRun(ctx.app, researcher.token, { causalSetId: relationsId, truncation: { rule: 'sqrtN' }, subregion: { kind: 'elements', indices }, doubleTruncation: true });
+    await waitUntil(async () => (await request(ctx.app).get(`/api/studies/${posted.body.id}`).set(bearer(researcher.token))).body.status as string, (status) => status === 'done', 60_000);
+    await waitForRun(ctx.app, researcher.token, relationRun, (run) => run.status === 'done');
+
+    const studyZip = join(scratch, 'imported.zip');
+    writeFileSync(studyZip, (await binary(request(ctx.app).get(`/api/studies/${posted.body.id}/bundle`).set(bearer(researcher.token)))).body as Buffer);
+    const manifest = checkHashes(readWithPython(studyZip));
+    expect(manifest.entropies.map((e) => [e.format, e.seed, e.subregion])).toEqual([
+      ['relations', null, { elements: indices }],
+      ['coordinates', null, { elements: indices }],
+    ]);
+    expect(manifest.entropies[0]!.points).toMatch(/^relations\/cell-001_N-110_order_only\.csv$/);
+    // the same elements, by their order alone or with their coordinates, give the same S
+    expect(manifest.entropies[0]!.S).toBeCloseTo(manifest.entropies[1]!.S, 9);
+    const quiet = { stdout: () => undefined, stderr: () => undefined, progress: false };
+    await expect(reproduceBundle(studyZip, { json: true }, quiet)).resolves.toMatchObject({ checked: 2, ok: true });
+
+    const runZip = join(scratch, 'relation-run.zip');
+    writeFileSync(runZip, (await binary(request(ctx.app).post('/api/bundles').set(bearer(researcher.token)).send({ runIds: [relationRun, runId] }))).body as Buffer);
+    const runManifest = checkHashes(readWithPython(runZip));
+    expect(runManifest.entropies.map((e) => e.points)).toEqual([`relations/run-${relationRun.slice(0, 8)}.csv`, `points/run-${runId.slice(0, 8)}.csv`, `points/run-${runId.slice(0, 8)}.csv`]);
+    expect(runManifest.entropies[0]!.S).toBeCloseTo(manifest.entropies[0]!.S, 9);
+    await expect(reproduceBundle(runZip, { json: true }, quiet)).resolves.toMatchObject({ checked: 5, ok: true });
+  }, 120_000);
 
   it("answers 404 for another team's study and runs, without telling them apart from missing ones", async () => {
     const study = await request(ctx.app).get(`/api/studies/${studyId}/bundle`).set(bearer(stranger.token));
