@@ -64,6 +64,22 @@ describe('the daily loop of runs', () => {
     await expect(page.getByTestId(`run-${first}`).getByTestId('compute-timing').textContent()).resolves.toBe('queued · next in line');
     await screenshot(page, 'daily-loop-03-runs-list');
 
+    // a study queued behind them: its first cell waits third, on its page and in the studies list
+    const studyId = await page.evaluate(async () => {
+      const csrf = decodeURIComponent(document.cookie.split('; ').find((c) => c.startsWith('tacet_csrf='))!.split('=')[1]!);
+      const res = await fetch('/api/studies', {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', 'x-tacet-csrf': csrf },
+        body: JSON.stringify({ title: 'Loop study', counts: [40], seeds: ['s-1', 's-2'], subregions: { kind: 'concentric', fractions: [0.5] }, rules: [{ truncation: { rule: 'sqrtN' } }] }),
+      });
+      return ((await res.json()) as { id: string }).id;
+    });
+    await page.goto(`${running.baseUrl}/studies/${studyId}`);
+    await expect(page.getByTestId('study-progress').getByTestId('compute-timing').textContent()).resolves.toBe('queued · 3rd in line');
+    await screenshot(page, 'daily-loop-03b-study-queued');
+    await page.goto(`${running.baseUrl}/studies`);
+    await expect(page.getByRole('row', { name: /Loop study/ }).getByTestId('compute-timing').textContent()).resolves.toBe('queued · 3rd in line');
+
     // cancel the second, retry it: a new run that says which it retries, and the cancelled one stays
     await page.goto(`${running.baseUrl}/runs/${second}`);
     await page.getByRole('button', { name: 'Cancel run' }).click();
