@@ -1,4 +1,4 @@
-import type { CreateStudyRequestInput } from '@shared/studies';
+import { numberedSeedRule, numberedSeeds, STUDY_MAX_RULES, type CreateStudyRequest, type CreateStudyRequestInput, type StudyRule } from '@shared/studies';
 import {
   defaultRegionKind,
   regionDefaultSubDiamond,
@@ -16,8 +16,16 @@ import {
   type RegionKind,
   type RegionSpec,
 } from '@shared/regions';
-import { defaultTruncationFor } from '@shared/vacuum';
-import { defaultRestrictedCutForm, restrictedCutFromForm, type RestrictedCutFormValues } from '../../../lib/truncationForm';
+import { defaultTruncationFor, renyiKey } from '@shared/vacuum';
+import {
+  defaultRestrictedCutForm,
+  restrictedCutFromForm,
+  restrictedCutToForm,
+  truncationFromForm,
+  truncationToForm,
+  type RestrictedCutFormValues,
+  type TruncationFormValues,
+} from '../../../lib/truncationForm';
 import { renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
 
 /** Whether concentric sub-diamonds (ℓ/T) or pairs on the central slice can be asked for on a kind: it needs a diamond of its own. */
@@ -47,6 +55,31 @@ export const studyMasslessOnlyReason = (kind: RegionKind): string | null => regi
 /** The sub-diamond tips the form starts from, per dimension. */
 export const defaultTips = { 2: tipsOfDimension(2), 4: tipsOfDimension(4) } as const;
 
+/** One cut rule of the study as the form edits it. */
+export interface StudyRuleFormValues {
+  /** the whole-region cut; null: the dimension's usual one (√N/4π in 2D, the knee in 4D), following the region */
+  truncation: TruncationFormValues | null;
+  doubleTruncation: boolean;
+  /** the second cut, with double truncation */
+  restrictedCut: RestrictedCutFormValues;
+  /** the saved cut rule the truncation was copied from, while unchanged */
+  presetId: string | null;
+}
+
+/** At most this many rules (the shared schema's limit). */
+export const studyFormMaxRules = STUDY_MAX_RULES;
+
+export const untruncatedRuleForm: StudyRuleFormValues = { truncation: { kind: 'none', value: '' }, doubleTruncation: false, restrictedCut: { ...defaultRestrictedCutForm }, presetId: null };
+/** Sorkin–Yazdi double truncation at the dimension's usual whole-region cut. */
+export const doubleTruncatedRuleForm: StudyRuleFormValues = { truncation: null, doubleTruncation: true, restrictedCut: { ...defaultRestrictedCutForm }, presetId: null };
+
+/** The rule a row describes, unvalidated (the shared schema names a bad number at `rules.k.…`). */
+export function studyRuleFromForm(rule: StudyRuleFormValues, dimension: 2 | 4): CreateStudyRequestInput['rules'][number] {
+  const truncation = (rule.truncation ? truncationFromForm(rule.truncation) : defaultTruncationFor(dimension)) as StudyRule['truncation'];
+  const restrictedCut = restrictedCutFromForm(rule.doubleTruncation, rule.restrictedCut) as StudyRule['restrictedCut'];
+  return { truncation, doubleTruncation: rule.doubleTruncation, ...(restrictedCut ? { restrictedCut } : {}) };
+}
+
 /** What the study form edits, as text where people type lists. */
 export interface StudyFormValues extends RegionFieldValues {
   title: string;
@@ -57,8 +90,12 @@ export interface StudyFormValues extends RegionFieldValues {
   process: 'fixed' | 'poisson';
   prng: 'arc4' | 'alea' | 'xor4096';
   counts: string;
+  /** seeds numbered "<prefix>-1" … "<prefix>-k", or listed one by one (a study made through the API or extended by name) */
+  seedMode: 'numbered' | 'listed';
   seedCount: string;
   seedPrefix: string;
+  /** the listed seeds, comma- or line-separated */
+  seedList: string;
   subregionKind: 'concentric' | 'pairs' | 'tips' | 'elements';
   fractions: string;
   /** pairs for the mutual information: ℓ/T of each of the two sub-diamonds, and the gaps d/T */
@@ -70,10 +107,8 @@ export interface StudyFormValues extends RegionFieldValues {
   elementLists: string;
   /** one sub-diamond per line: "t0,x0 t1,x1" */
   tips: string;
-  untruncated: boolean;
-  doubleTruncated: boolean;
-  /** the second cut of the double-truncated rule */
-  restrictedCut: RestrictedCutFormValues;
+  /** the cut rules compared, one to four */
+  rules: StudyRuleFormValues[];
   mass: string;
 }
 
@@ -91,8 +126,10 @@ export const defaultStudyForm: StudyFormValues = {
   process: 'fixed',
   prng: 'arc4',
   counts: '200, 400, 800',
+  seedMode: 'numbered',
   seedCount: '4',
   seedPrefix: 'seed',
+  seedList: '',
   subregionKind: 'concentric',
   fractions: '0.4, 0.5, 0.6',
   pairSizes: '0.2',
@@ -100,21 +137,9 @@ export const defaultStudyForm: StudyFormValues = {
   renyi: '',
   elementLists: '',
   tips: defaultTips[2],
-  untruncated: true,
-  doubleTruncated: true,
-  restrictedCut: { ...defaultRestrictedCutForm },
+  rules: [untruncatedRuleForm, doubleTruncatedRuleForm],
   mass: '0',
 };
-
-/**
- * The whole-region cut of the double-truncated rule: √N/(4π) in 2D (Sorkin–Yazdi 2018), the knee in 4D,
- * where √N/(4π) is not derived (shared/vacuum.ts ruleCautions).
- */
-export function doubleTruncatedRuleLabel(dimension: 2 | 4, restrictedCut: RestrictedCutFormValues): string {
-  const whole = dimension === 4 ? 'knee' : '√N/4π';
-  const second = restrictedCut.kind === 'sqrtN' ? '√n/4π' : `λ = ${restrictedCut.value.trim() || '…'}`;
-  return `Double-truncated (${whole}, then ${second})`;
-}
 
 /** "200, 400 800" → [200, 400, 800]; anything unreadable becomes NaN so the schema names the field. */
 export function parseNumberList(text: string): number[] {
@@ -126,8 +151,20 @@ export function parseNumberList(text: string): number[] {
 
 /** Seeds "<prefix>-1" … "<prefix>-k": readable in exports, distinct, reproducible. */
 export function seedsFrom(prefix: string, count: number): string[] {
-  const base = prefix.trim() || 'seed';
-  return Array.from({ length: Math.max(0, Math.floor(count)) }, (_, k) => `${base}-${k + 1}`);
+  return numberedSeeds(prefix, count);
+}
+
+/** "a, b\nc" → ["a", "b", "c"]: listed seeds, one per comma or line. */
+export function parseSeedList(text: string): string[] {
+  return text
+    .split(/[\n,]/)
+    .map((s) => s.trim())
+    .filter((s) => s !== '');
+}
+
+/** The seeds the form's values name. */
+export function seedsOfForm(values: Pick<StudyFormValues, 'seedMode' | 'seedPrefix' | 'seedCount' | 'seedList'>): string[] {
+  return values.seedMode === 'listed' ? parseSeedList(values.seedList) : seedsFrom(values.seedPrefix, Number(values.seedCount));
 }
 
 function parseTips(text: string) {
@@ -170,12 +207,7 @@ function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subre
  */
 export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 | 4 = 2): CreateStudyRequestInput {
   const dimension = values.source === 'imported' ? importedDimension : regionDimension(values.regionKind);
-  const rules: CreateStudyRequestInput['rules'] = [];
-  if (values.untruncated) rules.push({ truncation: { rule: 'none' }, doubleTruncation: false });
-  if (values.doubleTruncated) {
-    const restrictedCut = restrictedCutFromForm(true, values.restrictedCut) as CreateStudyRequestInput['rules'][number]['restrictedCut'];
-    rules.push({ truncation: defaultTruncationFor(dimension), doubleTruncation: true, ...(restrictedCut ? { restrictedCut } : {}) });
-  }
+  const rules = values.rules.map((rule) => studyRuleFromForm(rule, dimension));
   const title = values.title.trim() ? { title: values.title.trim() } : {};
   const { orders } = renyiOrdersFromText(values.renyi);
   const renyi = orders ? { renyi: orders } : {};
@@ -189,7 +221,7 @@ export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 |
     process: values.process,
     prng: values.prng,
     counts: parseNumberList(values.counts),
-    seeds: seedsFrom(values.seedPrefix, Number(values.seedCount)),
+    seeds: seedsOfForm(values),
     subregions: subregionsFrom(values),
     rules,
     mass: Number(values.mass),
@@ -198,19 +230,20 @@ export function studyRequestFrom(values: StudyFormValues, importedDimension: 2 |
 }
 
 /** Which form field a request path belongs to, for showing server and schema messages in place. */
-export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
+export function formFieldOf(path: string): keyof StudyFormValues | 'form' | `rules.${number}` {
   if (path.startsWith('counts')) return 'counts';
   if (path.startsWith('causalSetIds')) return 'causalSetIds';
   if (path.startsWith('subregions.lists')) return 'elementLists';
   if (path.startsWith('seeds')) return 'seedCount';
+  const rule = /^rules\.(\d+)/.exec(path);
+  if (rule) return `rules.${Number(rule[1])}`;
   if (path.startsWith('subregions.fractions')) return 'fractions';
   if (path.startsWith('subregions.sizes')) return 'pairSizes';
   if (path.startsWith('subregions.separations')) return 'separations';
   if (path.startsWith('renyi')) return 'renyi';
   if (path.startsWith('subregions.diamonds')) return 'tips';
   if (path.startsWith('subregions')) return 'subregionKind';
-  if (/^rules\.\d+\.restrictedCut/.test(path)) return 'restrictedCut';
-  if (path.startsWith('rules')) return 'untruncated';
+  if (path.startsWith('rules')) return 'rules';
   // the slab's four ranges share one message, beside the first
   if (path.startsWith('region.t') || path.startsWith('region.x')) return 'tMin';
   const field = /^region\.(\w+)/.exec(path)?.[1];
@@ -219,4 +252,52 @@ export function formFieldOf(path: string): keyof StudyFormValues | 'form' {
   if (path.startsWith('mass')) return 'mass';
   if (path.startsWith('title')) return 'title';
   return 'form';
+}
+
+const numberText = (v: number) => String(v);
+
+/**
+ * The form's values for a stored study request, so "Duplicate" opens the form with every setting of
+ * the study: studyRequestFrom of the result is the request again (tests/client/studyFormFromRequest.test.ts).
+ * The region fields of an imported study, which has none, keep the form's defaults.
+ */
+export function studyFormFromRequest(request: CreateStudyRequest): StudyFormValues {
+  const base: StudyFormValues = { ...defaultStudyForm, title: request.title ?? '', mass: numberText(request.mass), renyi: (request.renyi ?? []).map(renyiKey).join(', ') };
+  const rules = request.rules.map(
+    (rule): StudyRuleFormValues => ({
+      truncation: truncationToForm(rule.truncation),
+      doubleTruncation: rule.doubleTruncation,
+      restrictedCut: restrictedCutToForm(rule.restrictedCut),
+      presetId: null,
+    }),
+  );
+  const subregions = request.subregions;
+  const subregionValues: Partial<StudyFormValues> =
+    subregions.kind === 'concentric'
+      ? { subregionKind: 'concentric', fractions: subregions.fractions.map(numberText).join(', ') }
+      : subregions.kind === 'pairs'
+        ? { subregionKind: 'pairs', pairSizes: subregions.sizes.map(numberText).join(', '), separations: subregions.separations.map(numberText).join(', ') }
+        : subregions.kind === 'tips'
+          ? { subregionKind: 'tips', tips: subregions.diamonds.map(tipsLine).join('\n') }
+          : { subregionKind: 'elements', elementLists: subregions.lists.map((l) => l.indices.join(', ')).join('\n') };
+  if (request.source === 'imported') {
+    return { ...base, ...subregionValues, rules, source: 'imported', causalSetIds: [...request.causalSetIds] };
+  }
+  const region = request.region as RegionSpec & Record<string, number>;
+  const regionFields = Object.fromEntries(regionDescriptors[region.kind].fields.map((key) => [key, numberText(region[key]!)]));
+  const numbered = numberedSeedRule(request.seeds);
+  return {
+    ...base,
+    ...subregionValues,
+    rules,
+    source: 'sprinkled',
+    regionKind: region.kind,
+    ...regionFields,
+    process: request.process,
+    prng: request.prng,
+    counts: request.counts.map(numberText).join(', '),
+    ...(numbered
+      ? { seedMode: 'numbered' as const, seedPrefix: numbered.prefix, seedCount: String(numbered.count), seedList: '' }
+      : { seedMode: 'listed' as const, seedList: request.seeds.join(', ') }),
+  };
 }

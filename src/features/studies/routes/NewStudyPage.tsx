@@ -1,5 +1,5 @@
-import { useState, type FormEvent } from 'react';
-import { Link, useNavigate } from 'react-router';
+import { useEffect, useState, type FormEvent } from 'react';
+import { Link, useNavigate, useSearchParams } from 'react-router';
 import { createStudyRequestSchema, STUDY_MAX_CELLS, STUDY_MIN_SUBREGION_ELEMENTS } from '@shared/studies';
 import { isApiError } from '../../../lib/apiClient';
 import { validate } from '../../../lib/forms';
@@ -9,19 +9,20 @@ import { PageHeader, Section } from '../../../ui/Page';
 import { useCan } from '../../../lib/permissions';
 import { CausalSetPicker } from '../../../ui/CausalSetPicker';
 import { useCausalSets } from '../../causalSets/api/causalSets';
-import { Checkbox } from '../../../ui/Checkbox';
-import { RestrictedCutFields } from '../../../ui/RestrictedCutFields';
+import { useCutRules } from '../../cutRules/api/cutRules';
 import { regionDescriptors, regionDimension, regionLabels, type RegionFieldWording, type RegionKind } from '@shared/regions';
 import { RegionFields } from '../../../ui/RegionFields';
 import { RenyiOrdersField, renyiOrdersFromText } from '../../../ui/RenyiOrdersField';
-import { useCreateStudy } from '../api/studies';
+import { useCreateStudy, useStudy } from '../api/studies';
+import { StudyRuleRows } from '../components/StudyRuleRows';
 import {
   defaultStudyForm,
   defaultTips,
-  doubleTruncatedRuleLabel,
   formFieldOf,
   offersConcentric,
   parseNumberList,
+  seedsOfForm,
+  studyFormFromRequest,
   studyMasslessOnlyReason,
   studyRequestFrom,
   tipsForStudyRegion,
@@ -41,6 +42,12 @@ const studyRegionWording: RegionFieldWording = {
  */
 export function NewStudyPage() {
   const [values, setValues] = useState<StudyFormValues>(defaultStudyForm);
+  // "Duplicate" on a study page opens /studies/new?from=<id>: every setting of that study, to change and start anew
+  const [searchParams] = useSearchParams();
+  const fromId = searchParams.get('from') ?? '';
+  const source = useStudy(fromId, { enabled: fromId !== '' });
+  const [copiedFrom, setCopiedFrom] = useState<string | null>(null);
+  const cutRules = useCutRules();
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [formError, setFormError] = useState<string | null>(null);
   const create = useCreateStudy();
@@ -62,8 +69,17 @@ export function NewStudyPage() {
       ...(studyMasslessOnlyReason(regionKind) ? { mass: '0' } : {}),
     }));
 
+  useEffect(() => {
+    if (!source.data || copiedFrom === source.data.id) return;
+    const parsed = createStudyRequestSchema.safeParse(source.data.request);
+    if (parsed.success) {
+      setValues(studyFormFromRequest(parsed.data));
+      setCopiedFrom(source.data.id);
+    }
+  }, [source.data, copiedFrom]);
+
   const counts = parseNumberList(values.counts).filter(Number.isFinite);
-  const seedCount = Math.max(0, Math.floor(Number(values.seedCount) || 0));
+  const seedCount = values.seedMode === 'listed' ? seedsOfForm(values).length : Math.max(0, Math.floor(Number(values.seedCount) || 0));
   const cells = values.source === 'imported' ? values.causalSetIds.length : counts.length * seedCount;
 
   function place(issues: { path: string; message: string }[]) {
@@ -120,6 +136,15 @@ export function NewStudyPage() {
           </Link>
         }
       />
+      {fromId !== '' && (
+        <p className="mb-6 max-w-3xl text-sm text-ink-soft" data-testid="copied-from">
+          {source.isError
+            ? 'The study to copy could not be loaded; the form starts from its defaults.'
+            : copiedFrom
+              ? <>Every setting is copied from <Link to={`/studies/${copiedFrom}`} className="text-accent hover:underline">{source.data?.title || `study ${copiedFrom.slice(0, 8)}`}</Link>; change what you like and start it as a new study.</>
+              : 'Copying the settings of the study…'}
+        </p>
+      )}
       <form onSubmit={submit} noValidate className="flex max-w-3xl flex-col">
         <Section title="Study">
           <TextField label="Title" name="title" value={values.title} onChange={(e) => set('title', e.target.value)} error={errors.title} placeholder="e.g. area law in the 2D diamond" />
@@ -167,8 +192,16 @@ export function NewStudyPage() {
               <option value="xor4096">seedrandom xor4096</option>
             </SelectField>
             <TextField label="N values" name="counts" className="font-mono" value={values.counts} onChange={(e) => set('counts', e.target.value)} error={errors.counts} hint="comma-separated, at least 20 each" />
-            <TextField label="Seeds per N" name="seedCount" inputMode="numeric" value={values.seedCount} onChange={(e) => set('seedCount', e.target.value)} error={errors.seedCount} hint="ensemble size; 3 or more give error bars" />
-            <TextField label="Seed prefix" name="seedPrefix" className="font-mono" value={values.seedPrefix} onChange={(e) => set('seedPrefix', e.target.value)} hint={`each N is sprinkled with the seeds ${values.seedPrefix || 'seed'}-1, ${values.seedPrefix || 'seed'}-2, … ${values.seedPrefix || 'seed'}-${seedCount || 'k'}`} />
+            {values.seedMode === 'listed' ? (
+              <div className="sm:col-span-2">
+                <TextField label="Seeds" name="seedList" className="font-mono" value={values.seedList} onChange={(e) => set('seedList', e.target.value)} error={errors.seedCount} hint={<>each N is sprinkled with each seed listed (comma-separated).{' '}<button type="button" className="text-accent hover:underline" onClick={() => setValues((v) => ({ ...v, seedMode: 'numbered', seedCount: String(seedsOfForm(v).length || 4) }))}>Number them instead</button></>} />
+              </div>
+            ) : (
+              <>
+                <TextField label="Seeds per N" name="seedCount" inputMode="numeric" value={values.seedCount} onChange={(e) => set('seedCount', e.target.value)} error={errors.seedCount} hint="ensemble size; 3 or more give error bars" />
+                <TextField label="Seed prefix" name="seedPrefix" className="font-mono" value={values.seedPrefix} onChange={(e) => set('seedPrefix', e.target.value)} hint={`each N is sprinkled with the seeds ${values.seedPrefix || 'seed'}-1, ${values.seedPrefix || 'seed'}-2, … ${values.seedPrefix || 'seed'}-${seedCount || 'k'}`} />
+              </>
+            )}
           </div>
           <p className="mt-3 text-xs text-ink-soft">
             <span className="figures">{cells}</span> sprinkling{cells === 1 ? '' : 's'} (at most {STUDY_MAX_CELLS}). Each costs one dense eigendecomposition of N × N.
@@ -219,22 +252,8 @@ export function NewStudyPage() {
         </Section>
 
         <Section title="Cut rules and field">
-          <div className="grid grid-cols-1 gap-6 sm:grid-cols-[1fr_12rem]">
-            <div className="flex flex-col gap-3">
-              <Checkbox label="Untruncated" hint="only the numerical kernel of the restricted iΔ is dropped; expect a volume law" checked={values.untruncated} onChange={(v) => set('untruncated', v)} />
-              <Checkbox
-                label={doubleTruncatedRuleLabel(dimension, values.restrictedCut)}
-                hint={
-                  dimension === 4
-                    ? 'Sorkin–Yazdi 2018; in 4D the state is cut at the knee, since √N/4π is a 2D rule'
-                    : 'Sorkin–Yazdi 2018; expect S ≈ b ln √n + c with b near 1/3'
-                }
-                checked={values.doubleTruncated}
-                onChange={(v) => set('doubleTruncated', v)}
-              />
-              {values.doubleTruncated && <RestrictedCutFields value={values.restrictedCut} onChange={(v) => set('restrictedCut', v)} error={errors.restrictedCut} />}
-              {errors.untruncated && <p className="text-xs text-danger" role="alert">{errors.untruncated}</p>}
-            </div>
+          <StudyRuleRows rules={values.rules} onChange={(rules) => set('rules', rules)} dimension={dimension} presets={cutRules.data ?? []} errors={errors} />
+          <div className="mt-6 grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
             <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} disabled={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) !== null} hint={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) ? `Massless only here: ${studyMasslessOnlyReason(values.regionKind)}` : '0 for the massless field'} />
           </div>
           <div className="mt-6 max-w-md">

@@ -8,7 +8,9 @@ import { ErrorState, Loading } from '../../../ui/States';
 import { useCan } from '../../../lib/permissions';
 import { StatusLabel } from '../../../ui/StatusLabel';
 import { findRegionDescriptor } from '@shared/regions';
-import { isStudyActive, useCancelStudy, useDeleteStudy, useStudy } from '../api/studies';
+import { isStudyActive, useCancelStudy, useDeleteStudy, useRetryFailedCells, useStudy } from '../api/studies';
+import { ExtendStudyForm } from '../components/ExtendStudyForm';
+import { StudyCells } from '../components/StudyCells';
 import { StudyCaution, StudyProgress } from '../components/StudyProgress';
 import { RuleCautions } from '../../../ui/Caution';
 import { StudyPlots } from '../components/StudyPlots';
@@ -21,6 +23,7 @@ export function StudyPage() {
   const canCompute = useCan('compute');
   const cancel = useCancelStudy(studyId);
   const remove = useDeleteStudy(studyId);
+  const retryFailed = useRetryFailedCells(studyId);
   const navigate = useNavigate();
 
   if (study.isPending) return <Loading label="Loading the study" />;
@@ -63,6 +66,16 @@ export function StudyPage() {
             <Link to="/studies" className="text-sm text-accent hover:underline">
               All studies
             </Link>
+            {canCompute && (
+              <Link to={`/studies/new?from=${s.id}`} className="text-sm text-accent hover:underline">
+                Duplicate
+              </Link>
+            )}
+            {canCompute && s.progress.failed > 0 && s.status !== 'cancelled' && (
+              <Button variant="quiet" busy={retryFailed.isPending} onClick={() => retryFailed.mutate()}>
+                Retry failed cells
+              </Button>
+            )}
             {canCompute && isStudyActive(s.status) && (
               <Button variant="quiet" busy={cancel.isPending} onClick={() => cancel.mutate()}>
                 Cancel
@@ -86,6 +99,11 @@ export function StudyPage() {
       />
       <Section title="Progress">
         <StudyProgress study={s} />
+        {retryFailed.isError && (
+          <p role="alert" className="mt-3 text-sm text-danger">
+            {retryFailed.error.message}
+          </p>
+        )}
       </Section>
       {s.causalSets.length > 0 && (
         <Section title="Imported causal sets" aside="each stands for one sprinkling">
@@ -157,13 +175,21 @@ export function StudyPage() {
           </Section>
         </>
       )}
+      <Section title="Cells" aside="one sprinkling each">
+        <StudyCells study={s} canCompute={canCompute} />
+      </Section>
+      {canCompute && s.source === 'sprinkled' && s.status !== 'cancelled' && (
+        <Section title="Extend" aside="more N values or seeds">
+          <ExtendStudyForm study={s} />
+        </Section>
+      )}
       <Section title="Downloads">
         <ExportDownloads kind="study" id={s.id} disabled={s.progress.done === 0} testId="study-downloads">
           {s.progress.done > 0 ? 'Exports cover the sprinklings finished so far.' : 'Exports become available when the first sprinkling has finished.'} Each
           figure has its own PNG and SVG download beneath it.
         </ExportDownloads>
+        <BundleDownload target={{ kind: 'study', id: s.id }} disabled={s.progress.done === 0} disabledReason="The bundle becomes available when the first sprinkling has finished." testId="study-bundle" />
       </Section>
     </>
   );
 }
-        <BundleDownload target={{ kind: 'study', id: s.id }} disabled={s.progress.done === 0} disabledReason="The bundle becomes available when the first sprinkling has finished." testId="study-bundle" />
