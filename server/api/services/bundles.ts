@@ -53,11 +53,14 @@ const figureFiles = (name: string, what: string) => [
   { path: `figures/${name}.pdf`, what: `${what} (PDF)` },
 ];
 
-/** A TrueType font with λ, ℓ, √ and the subscripts, for the PDF figures; null falls back to spelled-out symbols. */
+/**
+ * A TrueType font with λ, ℓ, √, ⟨⟩ and the subscripts, for the PDF figures (DejaVu Sans has them all; its
+ * serif lacks ℓ); null falls back to spelled-out symbols.
+ */
 let figureFont: Buffer | null | undefined;
 function loadFigureFont(): Buffer | null {
   if (figureFont === undefined) {
-    const path = ['/usr/share/fonts/truetype/dejavu/DejaVuSerif.ttf', '/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf'].find((p) => existsSync(p));
+    const path = ['/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf'].find((p) => existsSync(p));
     figureFont = path ? readFileSync(path) : null;
   }
   return figureFont;

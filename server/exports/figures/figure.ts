@@ -66,8 +66,12 @@ export function linearTicks(low: number, high: number): number[] {
 
 /** Decades of a log axis inside [low, high] (positive). */
 export function logTicks(low: number, high: number): number[] {
+  const first = Math.ceil(Math.log10(low) - 1e-9);
+  const last = Math.floor(Math.log10(high) + 1e-9);
+  // at most about seven labelled decades
+  const step = Math.max(1, Math.ceil((last - first + 1) / 7));
   const ticks: number[] = [];
-  for (let e = Math.ceil(Math.log10(low) - 1e-9); e <= Math.floor(Math.log10(high) + 1e-9); e++) ticks.push(10 ** e);
+  for (let e = first; e <= last; e += step) ticks.push(10 ** e);
   return ticks.length ? ticks : [low, high];
 }
 
@@ -98,7 +102,10 @@ function extent(values: number[], log: boolean): [number, number] {
 /** Lays a figure out 640 wide: frame, ticks, labels, series, and the legend below the plot. */
 export function layoutFigure(spec: FigureSpec): Scene {
   const primitives: Primitive[] = [];
-  const legendRows = Math.ceil(spec.series.filter((s) => s.points.length > 0).length / 2);
+  const shown = spec.series.filter((s) => s.points.length > 0);
+  // two legend entries a row while the longest label (about 0.55 em a character) fits half the width
+  const legendColumns = Math.max(0, ...shown.map((s) => s.label.length)) * 10 * 0.55 + 28 <= 280 ? 2 : 1;
+  const legendRows = Math.ceil(shown.length / legendColumns);
   const HEIGHT = frame.top + PLOT_HEIGHT + 60 + legendRows * 16 + 10;
   const xs = spec.series.flatMap((s) => s.points.map((p) => p.x));
   const ys = spec.series.flatMap((s) => s.points.flatMap((p) => (p.error ? [p.y - p.error, p.y + p.error] : [p.y])));
@@ -161,10 +168,10 @@ export function layoutFigure(spec: FigureSpec): Scene {
     legend.push({ label: series.label, sample: (x, y) => [{ type: 'line', points: [[x, y], [x + 20, y]], ...style }] });
   }
 
-  // the legend in rows below the axis label, two entries a row
+  // the legend in rows below the axis label
   legend.forEach((entry, k) => {
-    const x = plot.left + (k % 2) * 280;
-    const y = plot.bottom + 62 + Math.floor(k / 2) * 16;
+    const x = plot.left + (k % legendColumns) * 280;
+    const y = plot.bottom + 62 + Math.floor(k / legendColumns) * 16;
     primitives.push(...entry.sample(x, y));
     primitives.push({ type: 'text', x: x + 28, y: y + 3.5, text: entry.label, size: 10, colour: figureColours.ink, anchor: 'start' });
   });

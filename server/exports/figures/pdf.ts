@@ -14,7 +14,7 @@ const latin = (text: string) => text.replace(/[^\u0000-\u00ff]/g, (c) => latinSp
 /** The figure as a one-page PDF of the scene's size (points), drawn by pdfkit; `font` is a TrueType font with the symbols. */
 export function pdfFigure(spec: FigureSpec, options: { font?: Buffer | null } = {}): Promise<Buffer> {
   const scene = layoutFigure(spec);
-  const doc = new PDFDocument({ size: [scene.width, scene.height], margin: 0, info: { Title: latin(spec.title), Producer: 'Tacet', Creator: 'Tacet' } });
+  const doc = new PDFDocument({ size: [scene.width, scene.height], margin: 0, info: { Title: spec.title, Producer: 'Tacet', Creator: 'Tacet' } });
   const chunks: Buffer[] = [];
   const done = new Promise<Buffer>((resolve, reject) => {
     doc.on('data', (chunk: Buffer) => chunks.push(chunk));
@@ -23,7 +23,7 @@ export function pdfFigure(spec: FigureSpec, options: { font?: Buffer | null } = 
   });
   const unicode = Boolean(options.font);
   if (options.font) doc.registerFont('figure', options.font);
-  doc.font(unicode ? 'figure' : 'Times-Roman');
+  doc.font(unicode ? 'figure' : 'Helvetica');
   const text = (t: string) => (unicode ? t : latin(t));
   for (const p of scene.primitives) draw(doc, p, text);
   doc.end();

@@ -34,16 +34,23 @@ export interface SpectrumCurve {
   cuts: { label: string; cutoff: number }[];
 }
 
+/**
+ * Eigenvalues below this fraction of the largest are the numerical kernel of iΔ (rounding, not modes),
+ * and on a log axis they would squeeze the spectrum into its top; the figure leaves them out and says so.
+ */
+export const SPECTRUM_FIGURE_FLOOR = 1e-6;
+
 /** λₖ against k on log–log axes, each sprinkling in ink, the continuum in green, each cut a dashed line. */
 export function spectrumFigure(title: string, curves: SpectrumCurve[]): FigureSpec {
   const series: FigureSeries[] = [];
   for (const curve of curves) {
     const eigenvalues = Array.from(curve.eigenvalues);
-    series.push({ label: curve.label, role: 'data', points: eigenvalues.map((y, k) => ({ x: k + 1, y })) });
+    const floor = SPECTRUM_FIGURE_FLOOR * Math.max(0, ...eigenvalues);
+    series.push({ label: curve.label, role: 'data', points: eigenvalues.map((y, k) => ({ x: k + 1, y })).filter((p) => p.y >= floor) });
     if (curve.continuum) series.push({ label: `${curve.label}: continuum`, role: 'reference', points: Array.from(curve.continuum, (y, k) => ({ x: k + 1, y })) });
     for (const cut of curve.cuts) {
       series.push({ label: `${curve.label}: cut ${cut.label}, λ = ${short(cut.cutoff)}`, role: 'cut', points: [{ x: 1, y: cut.cutoff }, { x: Math.max(eigenvalues.length, 2), y: cut.cutoff }] });
     }
   }
-  return { title, xLabel: 'rank k', yLabel: 'λₖ  (positive eigenvalues of iΔ)', xLog: true, yLog: true, series };
+  return { title, xLabel: 'rank k', yLabel: 'λₖ  (positive eigenvalues of iΔ, those ≥ 10⁻⁶ λ₁)', xLog: true, yLog: true, series };
 }

@@ -18,12 +18,12 @@ function paint(p: Primitive): string {
   }
 }
 
-/** The figure as a standalone SVG document (a serif font, white ground, for a paper's pages). */
+/** The figure as a standalone SVG document (white ground, for a paper's pages; the PDF's font first). */
 export function svgFigure(spec: FigureSpec): string {
   const scene = layoutFigure(spec);
   return [
     `<?xml version="1.0" encoding="UTF-8"?>`,
-    `<svg xmlns="http://www.w3.org/2000/svg" width="${scene.width}" height="${scene.height}" viewBox="0 0 ${scene.width} ${scene.height}" font-family="'DejaVu Serif', 'Times New Roman', serif">`,
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${scene.width}" height="${scene.height}" viewBox="0 0 ${scene.width} ${scene.height}" font-family="'DejaVu Sans', 'Helvetica Neue', Arial, sans-serif">`,
     `<title>${escapeXml(spec.title)}</title>`,
     `<rect width="100%" height="100%" fill="#ffffff"/>`,
     ...scene.primitives.map(paint),
