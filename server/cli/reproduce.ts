@@ -13,8 +13,12 @@ import {
   type ReproduceReport,
 } from '@shared/bundles';
 import { ENTROPY_FLOOR } from '@shared/precision';
+import type { Event } from '@shared/regions';
+import { studyRuleKey, type ResolvedSubregion, type StudyRule } from '@shared/studies';
 import type { SubregionSpec } from '@shared/vacuum';
 import { computeVacuum, type VacuumRequest } from '../engine/index';
+import { makeRegion } from '../engine/regions';
+import { computeStudyCell, type ImportedCellSource } from '../studies/cell';
 import { coordinatesFromCsv, relationWordsFromCsv } from '../exports/bundle/files';
 
 /** A bundle that cannot be trusted or read: named, refused, exit code 1. */
@@ -116,7 +120,7 @@ type BundlePart = Extract<BundleSubregion, { elements: number[] }> | Extract<Bun
 const subregionSpec = (s: BundlePart): SubregionSpec => ('elements' in s ? { kind: 'elements', indices: s.elements } : { kind: 'diamond', past: s.past, future: s.future });
 
 /** The engine request that computes an entry again: its elements, placement, field, rule, subregion and engine. */
-export function requestOfEntry(entry: BundleEntropy, elements: { points: Float64Array } | { words: Uint32Array }): VacuumRequest {
+export function requestOfEntry(entry: BundleEntropy, elements: Elements): VacuumRequest {
   const source: VacuumRequest['source'] =
     'words' in elements
       ? { kind: 'order', causal: elements.words, count: entry.N, dimension: entry.dimension, ...(entry.density !== null ? { density: entry.density } : {}) }
@@ -140,22 +144,84 @@ export function requestOfEntry(entry: BundleEntropy, elements: { points: Float64
   };
 }
 
-/** Each quantity an entry states, beside the engine's value for it now. */
-async function recompute(entry: BundleEntropy, elements: { points: Float64Array } | { words: Uint32Array }): Promise<{ quantity: string; stored: number; recomputed: number }[]> {
+type Elements = { points: Float64Array } | { words: Uint32Array };
+type Value = { quantity: string; stored: number; recomputed: number };
+
+/** What an entry states, beside the engine's value for it now; `parts` are A, B and A∪B of a pair, else the subregion's own. */
+function valuesOf(entry: BundleEntropy, found: { n: number; S: number; SA?: number; SB?: number }): Value[] {
+  return [
+    { quantity: 'n', stored: entry.n, recomputed: found.n },
+    { quantity: 'S', stored: entry.S, recomputed: found.S },
+    ...(entry.pair && found.SA !== undefined && found.SB !== undefined
+      ? [{ quantity: 'S_A', stored: entry.pair.SA, recomputed: found.SA }, { quantity: 'S_B', stored: entry.pair.SB, recomputed: found.SB }]
+      : []),
+  ];
+}
+
+/** One entry through computeVacuum: a run's path (either engine), one spectrum per entry. */
+async function recomputeAlone(entry: BundleEntropy, elements: Elements): Promise<Value[]> {
   const result = await computeVacuum(requestOfEntry(entry, elements));
   if ('pair' in entry.subregion) {
     const pair = result.mutualInformation!;
-    return [
-      { quantity: 'n', stored: entry.n, recomputed: pair.union.n },
-      { quantity: 'S', stored: entry.S, recomputed: pair.union.S },
-      ...(entry.pair ? [{ quantity: 'S_A', stored: entry.pair.SA, recomputed: pair.a.S }, { quantity: 'S_B', stored: entry.pair.SB, recomputed: pair.b.S }] : []),
-    ];
+    return valuesOf(entry, { n: pair.union.n, S: pair.union.S, SA: pair.a.S, SB: pair.b.S });
   }
-  const entropy = result.entropy!;
-  return [
-    { quantity: 'n', stored: entry.n, recomputed: entropy.n },
-    { quantity: 'S', stored: entry.S, recomputed: entropy.S },
-  ];
+  return valuesOf(entry, { n: result.entropy!.n, S: result.entropy!.S });
+}
+
+/**
+ * How the study-cell path places the elements of a group, or null when it cannot say it exactly: it takes
+ * either the region (then ρ = N/V) or a density, so a region is kept when ρ is N/V or when only its
+ * periodic x matters and it has none (a Poisson sprinkling's ρ is its expected count over V).
+ */
+function cellPlacement(entry: BundleEntropy, elements: Elements): ImportedCellSource | null {
+  if ('words' in elements) return { kind: 'order', causal: elements.words, count: entry.N, dimension: entry.dimension, density: entry.density };
+  const { points } = elements;
+  if (!entry.region) return { kind: 'points', points, dimension: entry.dimension, region: null, density: entry.density };
+  const region = makeRegion(entry.region);
+  const ratio = entry.N / region.volume;
+  if (entry.density === null || Math.abs(entry.density - ratio) <= 1e-12 * ratio) return { kind: 'points', points, dimension: entry.dimension, region: entry.region, density: null };
+  if (region.periodX === undefined) return { kind: 'points', points, dimension: entry.dimension, region: null, density: entry.density };
+  return null;
+}
+
+const isTips = (part: object): part is { past: Event; future: Event } => 'past' in part;
+
+/**
+ * Every dense entry on one causal set with one placement and field, through the study-cell engine path
+ * (server/studies/cell.ts): one spectrum for all their subregions and rules, as a study computed them.
+ * Null when the group needs the run path (a pair of element lists, a placement the cell cannot state).
+ */
+async function recomputeAsCell(group: { k: number; entry: BundleEntropy }[], elements: Elements): Promise<Map<number, Value[]> | null> {
+  const first = group[0]!.entry;
+  const imported = cellPlacement(first, elements);
+  if (!imported || group.some(({ entry }) => 'pair' in entry.subregion && !(isTips(entry.subregion.pair.a) && isTips(entry.subregion.pair.b)))) return null;
+  const subregions = new Map<string, ResolvedSubregion>();
+  const rules = new Map<string, StudyRule>();
+  const keys = group.map(({ entry }) => {
+    const text = JSON.stringify(entry.subregion);
+    if (!subregions.has(text)) {
+      const key = `subregion ${subregions.size + 1}`;
+      const s = entry.subregion;
+      subregions.set(
+        text,
+        'pair' in s
+          ? { key, label: key, fraction: null, past: null, future: null, pair: { size: 0, separation: 0, a: s.pair.a as { past: Event; future: Event }, b: s.pair.b as { past: Event; future: Event } } }
+          : 'elements' in s
+            ? { key, label: key, fraction: null, past: null, future: null, elements: s.elements }
+            : { key, label: key, fraction: null, past: s.past, future: s.future },
+      );
+    }
+    const rule: StudyRule = { truncation: entry.rule.truncation, doubleTruncation: entry.rule.doubleTruncation, ...(entry.rule.restrictedCut ? { restrictedCut: entry.rule.restrictedCut } : {}) };
+    rules.set(studyRuleKey(rule), rule);
+    return { subregion: subregions.get(text)!.key, rule: studyRuleKey(rule) };
+  });
+  const result = await computeStudyCell({ imported, mass: first.mass, subregions: [...subregions.values()], rules: [...rules.values()] });
+  const values = new Map<number, Value[]>();
+  group.forEach(({ k, entry }, g) => {
+    const found = result.entropies.find((e) => e.subregion === keys[g]!.subregion && e.rule === keys[g]!.rule)!;
+    values.set(k, valuesOf(entry, { n: found.n, S: found.S, ...(found.pair ? { SA: found.pair.SA, SB: found.pair.SB } : {}) }));
+  });
+  return values;
 }
 
 /**
@@ -180,14 +246,14 @@ export async function reproduceBundle(path: string, options: { json: boolean }, 
     for (const [file, indices] of byFile) {
       const first = manifest.entropies[indices[0]!]!;
       const text = await textOf(zip, entries.get(file)!);
-      let elements: { points: Float64Array } | { words: Uint32Array };
+      let elements: Elements;
       try {
         elements = first.format === 'relations' ? { words: relationWordsFromCsv(text, first.N) } : { points: coordinatesFromCsv(text).points };
       } catch (error) {
         throw new BundleRefusedError(`${file}: ${(error as Error).message}`);
       }
-      for (const k of indices) {
-        for (const value of await recompute(manifest.entropies[k]!, elements)) {
+      const record = (k: number, values: Value[]) => {
+        for (const value of values) {
           checked += value.quantity === 'n' ? 0 : 1;
           const agrees = value.quantity === 'n' ? value.stored === value.recomputed : entropiesAgree(value.stored, value.recomputed);
           if (value.quantity !== 'n') maxRelDiff = Math.max(maxRelDiff, relativeDifference(value.stored, value.recomputed));
@@ -196,7 +262,28 @@ export async function reproduceBundle(path: string, options: { json: boolean }, 
         done++;
         const line = `reproduce: ${done}/${manifest.entropies.length} entropies (${file})`;
         io.stderr(io.progress ? `\r${line}` : `${line}\n`);
+      };
+      // entries on the same elements, placement and field share one spectrum (the dense engine's); the rest go one by one
+      const groups = new Map<string, { k: number; entry: BundleEntropy }[]>();
+      const alone: number[] = [];
+      for (const k of indices) {
+        const e = manifest.entropies[k]!;
+        if (e.engine !== 'dense') {
+          alone.push(k);
+          continue;
+        }
+        const key = JSON.stringify([e.format, e.dimension, e.N, e.region, e.density, e.mass]);
+        groups.set(key, [...(groups.get(key) ?? []), { k, entry: e }]);
       }
+      for (const group of groups.values()) {
+        const values = await recomputeAsCell(group, elements);
+        if (!values) {
+          alone.push(...group.map((g) => g.k));
+          continue;
+        }
+        for (const { k } of group) record(k, values.get(k)!);
+      }
+      for (const k of alone.sort((a, b) => a - b)) record(k, await recomputeAlone(manifest.entropies[k]!, elements));
     }
     if (io.progress) io.stderr('\n');
     const report: ReproduceReport = { checked, maxRelDiff, ok: mismatches.length === 0, mismatches };

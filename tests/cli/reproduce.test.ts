@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { reproduceReportSchema, type BundleEntropy } from '@shared/bundles';
 import { studyRuleKey, studyRuleSchema } from '@shared/studies';
 import { sprinklingSpecSchema } from '@shared/vacuum';
-import { ENGINE_VERSION } from '../../server/engine/index';
+import { computeVacuum, ENGINE_VERSION } from '../../server/engine/index';
 import { sprinkle } from '../../server/engine/sprinkle';
 import { BundleWriter } from '../../server/exports/bundle/writer';
 import { coordinatesCsv } from '../../server/exports/bundle/files';
@@ -90,6 +90,11 @@ beforeAll(async () => {
       S: e.S,
     };
   });
+  // a run's path as well: the structured engine, which only computeVacuum runs (one entry alone)
+  const tips = { past: { t: -0.4, x: 0 }, future: { t: 0.4, x: 0 } };
+  const run = await computeVacuum({ source: { kind: 'sprinkling', sprinkling }, truncation: { rule: 'sqrtN' }, subregion: { kind: 'diamond', ...tips }, doubleTruncation: true, engine: 'structured' });
+  expect(run.engine).toBe('structured');
+  entropies.push({ ...entropies[0]!, source: { kind: 'run', id: 'structured' }, engine: 'structured', ruleKey: 'sqrtN+double', rule: { truncation: { rule: 'sqrtN' }, doubleTruncation: true }, subregion: tips, subregionKey: 'run', n: run.entropy!.n, S: run.entropy!.S });
   storedS = entropies.map((e) => e.S);
   await writer.finish({ format: 'tacet-bundle/1', kind: 'study', ids: ['test'], createdAt: new Date().toISOString(), engineVersion: ENGINE_VERSION, entropies });
   await finished(output);
@@ -98,21 +103,21 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('tacet reproduce', () => {
   it('computes every entropy of a bundle again and agrees with the stored S (--json)', () => {
-    // 2 sub-diamonds × 2 rules, none of them a pure state
-    expect(storedS).toHaveLength(4);
+    // 2 sub-diamonds × 2 rules through the study-cell path, one structured run alone; none a pure state
+    expect(storedS).toHaveLength(5);
     expect(storedS.every((s) => s > 0.01)).toBe(true);
     const r = tacet('reproduce', good, '--json');
-    expect(r.stderr).toMatch(/4\/4 entropies/);
+    expect(r.stderr).toMatch(/5\/5 entropies/);
     expect(r.code, r.stderr).toBe(0);
     const report = reproduceReportSchema.strict().parse(JSON.parse(r.stdout));
-    expect(report).toEqual({ checked: 4, maxRelDiff: report.maxRelDiff, ok: true, mismatches: [] });
+    expect(report).toEqual({ checked: 5, maxRelDiff: report.maxRelDiff, ok: true, mismatches: [] });
     expect(report.maxRelDiff).toBeLessThan(1e-9);
   }, 120_000);
 
   it('prints one readable line without --json', () => {
     const r = tacet('reproduce', good);
     expect(r.code, r.stderr).toBe(0);
-    expect(r.stdout).toMatch(/^4 entropies computed again from the bundle's points; largest relative difference \S+ \(tolerance 1e-6 relative \+ 1e-6 absolute\): ok\n$/);
+    expect(r.stdout).toMatch(/^5 entropies computed again from the bundle's points; largest relative difference \S+ \(tolerance 1e-6 relative \+ 1e-6 absolute\): ok\n$/);
   }, 120_000);
 
   it('refuses a bundle with one byte of a points file altered, naming the file', () => {
