@@ -20,7 +20,9 @@ async function streamBundle(res: Response, bundle: PreparedBundle): Promise<void
   try {
     await bundle.write(res);
   } catch (error) {
-    console.error(`bundle ${bundle.filename} failed while streaming: ${(error as Error).stack ?? String(error)}`);
+    // a reader that went away is normal; anything else is a fault worth its stack
+    if (res.destroyed && !res.writableFinished) console.warn(`bundle ${bundle.filename}: ${(error as Error).message}`);
+    else console.error(`bundle ${bundle.filename} failed while streaming: ${(error as Error).stack ?? String(error)}`);
     res.destroy();
   }
 }
