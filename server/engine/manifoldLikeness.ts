@@ -386,7 +386,9 @@ interface CellGrid {
 
 function cellGrid(u: Float64Array, v: Float64Array, byU: Int32Array): CellGrid {
   const n = u.length;
-  const side = Math.max(1, Math.ceil(Math.sqrt(n / 8)));
+  // cells of about two elements: the scans of the column and of the row of each element then meet the
+  // fewest elements outside the future of interest (measured at N = 100 000)
+  const side = Math.max(1, Math.ceil(Math.sqrt(n / 2)));
   let uMin = Infinity;
   let uMax = -Infinity;
   let vMin = Infinity;
@@ -439,23 +441,18 @@ function gapAbundances(u: Float64Array, v: Float64Array, grid: CellGrid, maxGap:
     for (let column = columnOf(ui); column < grid.columns; column++) {
       const lastRow = held === keep ? rowOf(smallest[keep - 1]) : grid.rows - 1;
       let count = 0;
+      let cellsWithCandidates = 0;
       for (let row = firstRow; row <= lastRow; row++) {
         const cell = column * grid.rows + row;
-        const first = count === 0;
+        const before = count;
         for (let k = grid.start[cell]; k < grid.start[cell + 1]; k++) {
-          const uk = cu[k];
-          if (!(uk > ui && cv[k] > vi)) continue;
-          // each cell is in u order: merge it into the candidates by insertion (a few elements each)
-          let at = count++;
-          if (!first) {
-            while (at > 0 && cu[candidates[at - 1]] > uk) {
-              candidates[at] = candidates[at - 1];
-              at--;
-            }
-          }
-          candidates[at] = k;
+          if (cu[k] > ui && cv[k] > vi) candidates[count++] = k;
         }
+        if (count > before) cellsWithCandidates++;
       }
+      // each cell is in u order; several cells of the column are merged by one sort (merging them by
+      // insertion cost the square of the column's candidates, hundreds in the column of i itself)
+      if (cellsWithCandidates > 1) sortByKey(candidates, count, cu);
       for (let s = 0; s < count; ) {
         let e = s + 1;
         while (e < count && cu[candidates[e]] === cu[candidates[s]]) e++;
@@ -482,6 +479,11 @@ function gapAbundances(u: Float64Array, v: Float64Array, grid: CellGrid, maxGap:
     }
   }
   return abundances;
+}
+
+/** Sorts the first `count` entries of `positions` by key[position] (stable order is not needed). */
+function sortByKey(positions: Int32Array, count: number, key: Float64Array): void {
+  positions.subarray(0, count).sort((a, b) => key[a] - key[b]);
 }
 
 /** Random intervals of at least N/8 elements and the relations inside each (a Fenwick sweep per interval). */

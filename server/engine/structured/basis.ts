@@ -1,31 +1,56 @@
 import type { LinearAlgebraBackend } from '../linalg/backend';
 import { combineColumns } from './kernels';
+import { structuredKernelsFor, type StructuredKernels } from './nativeKernels';
 
 export const ROW_BLOCK = 8192;
+
+/** How the basis vectors are stored; every sum over them is accumulated in float64 either way. */
+export type BasisPrecision = 'float32' | 'float64';
+
+type Storage = Float32Array | Float64Array;
 
 /**
  * Lanczos vectors stored in row blocks: block r holds rows [r·ROW_BLOCK, …) of every column, column-major
  * with room for `capacity` columns, so the first `count` columns of a row block are one contiguous
- * matrix and block Gram–Schmidt is two matrix–matrix products per row block (BLAS dgemm when native,
- * flat JavaScript loops otherwise).
+ * matrix and block Gram–Schmidt is two matrix–matrix products per row block (the native kernels of
+ * native/src/structured.cc, else BLAS dgemm, else flat JavaScript loops).
+ *
+ * With `float32` the vectors are stored rounded to single precision (half the memory and half the
+ * memory traffic of the reorthogonalisation, which reads the whole basis twice per block step) while the
+ * products, the block being orthogonalised and the two newest blocks stay float64; why that keeps the
+ * spectrum and the entropy is in server/engine/README.md §12.
  */
 export class Basis {
   count = 0;
   private capacity: number;
-  private blocks: Float64Array[];
+  private blocks: Storage[];
   private readonly starts: number[] = [];
+  private readonly kernels: StructuredKernels | null;
 
   constructor(
     readonly size: number,
     initialCapacity: number,
     private readonly backend: LinearAlgebraBackend | null,
+    readonly precision: BasisPrecision = 'float64',
   ) {
     this.capacity = Math.max(4, Math.min(size, initialCapacity));
+    this.kernels = structuredKernelsFor(backend);
     this.blocks = [];
     for (let r = 0; r < size; r += ROW_BLOCK) {
       this.starts.push(r);
-      this.blocks.push(new Float64Array(Math.min(ROW_BLOCK, size - r) * this.capacity));
+      this.blocks.push(this.allocate(Math.min(ROW_BLOCK, size - r) * this.capacity));
     }
+  }
+
+  private allocate(length: number): Storage {
+    return this.precision === 'float32' ? new Float32Array(length) : new Float64Array(length);
+  }
+
+  /** bytes held by the stored vectors */
+  get storedBytes(): number {
+    let total = 0;
+    for (const block of this.blocks) total += block.byteLength;
+    return total;
   }
 
   private rows(b: number): number {
@@ -41,8 +66,12 @@ export class Basis {
       const rows = this.rows(b);
       const start = this.starts[b];
       const block = this.blocks[b];
+      if (this.kernels) {
+        this.kernels.basisProject(rows, m, width, block, w, this.size, start, c);
+        continue;
+      }
       const slice = gatherRows(w, this.size, width, start, rows);
-      if (this.backend) {
+      if (this.backend && block instanceof Float64Array) {
         const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows, cols: width, data: slice }, { transposeA: true }).data;
         for (let i = 0; i < part.length; i++) c[i] += part[i];
       } else {
@@ -74,7 +103,11 @@ export class Basis {
       const rows = this.rows(b);
       const start = this.starts[b];
       const block = this.blocks[b];
-      if (this.backend) {
+      if (this.kernels) {
+        this.kernels.basisUpdate(rows, m, width, block, c, w, this.size, start, -1, 1);
+        continue;
+      }
+      if (this.backend && block instanceof Float64Array) {
         const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows: m, cols: width, data: c }).data;
         for (let lane = 0; lane < width; lane++) {
           const target = lane * this.size + start;
@@ -111,7 +144,7 @@ export class Basis {
   private grow(): void {
     const capacity = Math.min(this.size, Math.ceil(this.capacity * 1.5) + 16);
     this.blocks = this.blocks.map((block, b) => {
-      const bigger = new Float64Array(this.rows(b) * capacity);
+      const bigger = this.allocate(this.rows(b) * capacity);
       bigger.set(block);
       return bigger;
     });
@@ -120,16 +153,20 @@ export class Basis {
 
   /**
    * out[c] = Σ_j V[:, j] coefficients[j + c·count] for c < outputs, one row block at a time, each row
-   * block of the basis released once used so that the outputs and the basis never both peak.
+   * block of the basis released once used so that the outputs and the basis never both peak. The
+   * outputs are columns of one column-major size × outputs matrix (see asOneMatrix).
    */
   combineAndRelease(coefficients: Float64Array, outputs: number): Float64Array[] {
-    const out = Array.from({ length: outputs }, () => new Float64Array(this.size));
+    const matrix = new Float64Array(this.size * outputs);
+    const out = Array.from({ length: outputs }, (_, c) => matrix.subarray(c * this.size, (c + 1) * this.size));
     const m = this.count;
     for (let b = 0; b < this.blocks.length; b++) {
       const rows = this.rows(b);
       const start = this.starts[b];
       const block = this.blocks[b];
-      if (this.backend) {
+      if (this.kernels) {
+        this.kernels.basisCombine(rows, m, outputs, block, coefficients, matrix, this.size, start);
+      } else if (this.backend && block instanceof Float64Array) {
         const part = this.backend.multiply({ rows, cols: m, data: block.subarray(0, rows * m) }, { rows: m, cols: outputs, data: coefficients }).data;
         for (let c = 0; c < outputs; c++) out[c].set(part.subarray(c * rows, (c + 1) * rows), start);
       } else {
@@ -137,7 +174,7 @@ export class Basis {
         const targets = out.map((o) => o.subarray(start, start + rows));
         combineColumns(columns, Int32Array.from({ length: m }, (_, j) => j), coefficients, outputs, targets, 0, rows);
       }
-      this.blocks[b] = new Float64Array(0);
+      this.blocks[b] = this.allocate(0);
     }
     this.count = 0;
     return out;
@@ -149,5 +186,20 @@ function gatherRows(w: Float64Array, size: number, width: number, start: number,
   if (width === 1) return w.subarray(start, start + rows);
   const out = new Float64Array(rows * width);
   for (let lane = 0; lane < width; lane++) out.set(w.subarray(lane * size + start, lane * size + start + rows), lane * rows);
+  return out;
+}
+
+/**
+ * The column-major size × columns.length matrix whose columns are `columns`, without a copy when they
+ * are consecutive views of one buffer (as combineAndRelease returns them), else copied into one.
+ */
+export function asOneMatrix(columns: Float64Array[], size: number): Float64Array {
+  const first = columns[0];
+  if (!first) return new Float64Array(0);
+  const buffer = first.buffer;
+  const consecutive = columns.every((c, i) => c.buffer === buffer && c.length === size && c.byteOffset === first.byteOffset + i * size * 8);
+  if (consecutive) return new Float64Array(buffer, first.byteOffset, size * columns.length);
+  const out = new Float64Array(size * columns.length);
+  columns.forEach((c, i) => out.set(c, i * size));
   return out;
 }

@@ -1,5 +1,6 @@
 import type { LinearAlgebraBackend } from '../linalg/backend';
 import type { Basis } from './basis';
+import { structuredKernelsFor } from './nativeKernels';
 
 /** a second Gram–Schmidt pass when a pass removed more than this share of a column's norm (DGKS, common practice) */
 const REORTHOGONALISE_BELOW = Math.SQRT1_2;
@@ -52,6 +53,12 @@ export function orthogonaliseBlock(basis: Basis, w: Float64Array, width: number,
 
 /** Aᵀ W for column-major n × ca A and n × width W */
 function denseProject(a: Float64Array, ca: number, w: Float64Array, width: number, n: number, backend: LinearAlgebraBackend | null): Float64Array {
+  const kernels = structuredKernelsFor(backend);
+  if (kernels) {
+    const out = new Float64Array(ca * width);
+    kernels.basisProject(n, ca, width, a, w, n, 0, out);
+    return out;
+  }
   if (backend) return backend.multiply({ rows: n, cols: ca, data: a }, { rows: n, cols: width, data: w }, { transposeA: true }).data;
   const c = new Float64Array(ca * width);
   for (let lane = 0; lane < width; lane++) {
@@ -66,6 +73,11 @@ function denseProject(a: Float64Array, ca: number, w: Float64Array, width: numbe
 
 /** W −= A C */
 function denseSubtract(a: Float64Array, ca: number, c: Float64Array, w: Float64Array, width: number, n: number, backend: LinearAlgebraBackend | null): void {
+  const kernels = structuredKernelsFor(backend);
+  if (kernels) {
+    kernels.basisUpdate(n, ca, width, a, c, w, n, 0, -1, 1);
+    return;
+  }
   if (backend) {
     const part = backend.multiply({ rows: n, cols: ca, data: a }, { rows: ca, cols: width, data: c }).data;
     for (let i = 0; i < part.length; i++) w[i] -= part[i];

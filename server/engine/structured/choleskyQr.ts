@@ -1,5 +1,6 @@
 import type { LinearAlgebraBackend } from '../linalg/backend';
 import type { Basis } from './basis';
+import { structuredKernelsFor } from './nativeKernels';
 
 /** a column of the new block below this share of ‖Δ‖ means the Krylov space is invariant in that direction */
 export const INVARIANT_RELATIVE = 1e-13;
@@ -33,7 +34,9 @@ export function blockQr(
       replaced = rc.replaced;
       return { g: multiplyUpper(rc.r, g, width), invariant: replaced === width };
     }
-    solveUpperFromRight(w, n, width, r);
+    const kernels = structuredKernelsFor(backend);
+    if (kernels) kernels.solveUpperRight(n, width, w, r);
+    else solveUpperFromRight(w, n, width, r);
     const combined = multiplyUpper(r, g, width);
     g.set(combined);
   }

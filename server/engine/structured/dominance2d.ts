@@ -1,3 +1,7 @@
+import { getBackend } from '../linalg';
+import type { LinearAlgebraBackend } from '../linalg/backend';
+import { structuredKernelsFor, type StructuredKernels } from './nativeKernels';
+
 /**
  * The 2D Pauli–Jordan operator applied to vectors without ever forming a matrix.
  *
@@ -149,6 +153,11 @@ export interface PauliJordan2DOptions {
   mass?: number;
   /** sprinkling density ρ; required when mass > 0 */
   density?: number;
+  /**
+   * the linear-algebra backend the run uses: when native, blocks of vectors go through the addon's
+   * sweep (native/src/structured.cc); null or ml-matrix keeps the JavaScript sweep (default: the best available)
+   */
+  backend?: LinearAlgebraBackend | null;
 }
 
 /**
@@ -163,6 +172,7 @@ export class PauliJordan2D implements SkewOperator {
   private readonly past: Float64Array;
   private readonly futureSums: Float64Array;
   private readonly tree: Float64Array;
+  private readonly kernels: StructuredKernels | null;
 
   constructor(
     readonly sweep: LightConeSweep,
@@ -178,6 +188,7 @@ export class PauliJordan2D implements SkewOperator {
     this.past = new Float64Array(this.size);
     this.futureSums = new Float64Array(this.size);
     this.tree = new Float64Array(sweep.vRanks + 1);
+    this.kernels = structuredKernelsFor(options.backend === undefined ? getBackend() : options.backend);
   }
 
   /** output = K·input (the retarded Green function applied to a vector) */
@@ -197,6 +208,10 @@ export class PauliJordan2D implements SkewOperator {
       throw new Error(`a block of ${width} vectors needs ${n * width} entries`);
     }
     const { byU } = this.sweep;
+    if (this.kernels) {
+      this.kernels.structuredApplyBlock(byU, this.sortedRanks(), this.sweep.groupStart, this.sweep.vRanks, this.substitution, width, input, output);
+      return;
+    }
     const sorted = new Float64Array(n * width);
     for (let lane = 0; lane < width; lane++) {
       const offset = lane * n;

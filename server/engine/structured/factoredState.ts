@@ -2,6 +2,7 @@ import type { DenseMatrix, LinearAlgebraBackend } from '../linalg/backend';
 import { denseMatrix, getBackend } from '../linalg';
 import type { SjDiagnostics } from '../sjDiagnostics';
 import type { SjState } from '../sjState';
+import { asOneMatrix } from './basis';
 import type { SkewPairs } from './lanczos';
 
 /**
@@ -108,12 +109,11 @@ export function factoredDiagnostics(state: FactoredSjState, relativeResiduals: F
   const n = state.size;
   const k = state.sigma.length;
   const width = 2 * k;
-  const f = denseMatrix(n, width);
-  for (let i = 0; i < k; i++) {
-    f.data.set(state.a[i], 2 * i * n);
-    f.data.set(state.b[i], (2 * i + 1) * n);
-  }
-  const h = backend.gram(f).data;
+  // F = [a_1, b_1, a_2, b_2, …]: the Lanczos pairs come as consecutive columns of one buffer, so this is
+  // no copy of the N × 2k factors (1 GB at N = 100 000)
+  const columns: Float64Array[] = [];
+  for (let i = 0; i < k; i++) columns.push(state.a[i], state.b[i]);
+  const h = backend.gram({ rows: n, cols: width, data: asOneMatrix(columns, n) }).data;
   const at = (r: number, c: number) => h[r + c * width];
   let offIdentity = 0;
   let trace = 0;

@@ -12,7 +12,7 @@ const ROW_BLOCK = 256;
  * columns are accumulated), so the basis is streamed from memory about once per four outputs.
  */
 export function combineColumns(
-  basis: Float64Array[],
+  basis: (Float32Array | Float64Array)[],
   columns: Int32Array,
   coefficients: Float64Array,
   outputs: number,

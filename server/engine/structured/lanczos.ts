@@ -2,7 +2,7 @@ import seedrandom from 'seedrandom';
 import type { SkewOperator } from './dominance2d';
 import type { LinearAlgebraBackend } from '../linalg/backend';
 import { getBackend } from '../linalg';
-import { Basis } from './basis';
+import { Basis, type BasisPrecision } from './basis';
 import { orthogonaliseBlock } from './blockGramSchmidt';
 import { blockQr } from './choleskyQr';
 
@@ -47,6 +47,9 @@ export interface SkewPairs {
   blockSize: number;
   /** wall seconds spent in: Δ products, Gram–Schmidt and QR, Ritz eigensolves, forming the vectors */
   seconds: { products: number; orthogonalisation: number; ritz: number; vectors: number };
+  /** how the basis was stored, and its size at the end in bytes */
+  basisPrecision: BasisPrecision;
+  basisBytes: number;
 }
 
 export interface LanczosProgress {
@@ -80,7 +83,16 @@ export interface TopPairsOptions {
   backend?: LinearAlgebraBackend | null;
   /** a guess of the number of pairs that will be kept, to size the basis storage up front */
   expectedPairs?: number;
+  /** storage of the Lanczos basis (default: float32 from FLOAT32_BASIS_FROM elements, float64 below) */
+  basisPrecision?: BasisPrecision;
 }
+
+/**
+ * From this size the Lanczos basis is stored in float32 (server/engine/README.md §12): at N = 100 000
+ * it is 2700 vectors, 2.2 GB in float64, and the reorthogonalisation reads it twice per block step.
+ * Below, memory is no concern and float64 keeps the vectors to full precision.
+ */
+export const FLOAT32_BASIS_FROM = 20_000;
 
 const DEFAULT_TOLERANCE = 1e-10;
 const DEFAULT_GUARD = 3;
@@ -98,26 +110,60 @@ class SkewBlockTridiagonal {
     return this.diagonal.length * this.width;
   }
 
-  /** dense column-major T of the first `blocks` block rows */
-  dense(): Float64Array {
+  /**
+   * TᵀT as a dense symmetric matrix, from the blocks: block column j of T has rows in block rows j − 1 … j + 1
+   * only, so (TᵀT)[i, j] is a sum of at most three b × b products and TᵀT is block pentadiagonal;
+   * O(m b²) work instead of the O(m³) of a dense Gram product of T.
+   */
+  gram(): { rows: number; cols: number; data: Float64Array } {
     const b = this.width;
-    const m = this.dimension;
-    const t = new Float64Array(m * m);
-    for (let i = 0; i < this.diagonal.length; i++) {
-      const h = this.diagonal[i];
-      for (let c = 0; c < b; c++) for (let r = 0; r < b; r++) t[i * b + r + (i * b + c) * m] = h[r + c * b];
-      if (i + 1 < this.diagonal.length) {
-        const g = this.subdiagonal[i];
-        // T[i+1, i] = G_i, T[i, i+1] = −G_iᵀ
+    const blocks = this.diagonal.length;
+    const m = blocks * b;
+    const out = new Float64Array(m * m);
+    // T block (r, c), column-major b × b, or null when zero
+    const block = (r: number, c: number): Float64Array | null => {
+      if (r === c) return this.diagonal[r];
+      if (r === c + 1) return this.subdiagonal[c] ?? null;
+      if (c === r + 1) {
+        const g = this.subdiagonal[r];
+        if (!g) return null;
+        const minusTransposed = new Float64Array(b * b);
+        for (let x = 0; x < b; x++) for (let y = 0; y < b; y++) minusTransposed[x + y * b] = -g[y + x * b];
+        return minusTransposed;
+      }
+      return null;
+    };
+    const cache = new Map<number, Float64Array | null>();
+    const cached = (r: number, c: number) => {
+      const key = r * blocks + c;
+      if (!cache.has(key)) cache.set(key, r >= 0 && c >= 0 && r < blocks && c < blocks ? block(r, c) : null);
+      return cache.get(key)!;
+    };
+    for (let j = 0; j < blocks; j++) {
+      for (let i = Math.max(0, j - 2); i <= j; i++) {
+        // (TᵀT)[i, j] = Σ_k T[k, i]ᵀ T[k, j]
+        const sum = new Float64Array(b * b);
+        for (let k = j - 1; k <= i + 1; k++) {
+          const left = cached(k, i);
+          const right = cached(k, j);
+          if (!left || !right) continue;
+          for (let c = 0; c < b; c++) {
+            for (let r = 0; r < b; r++) {
+              let s = 0;
+              for (let q = 0; q < b; q++) s += left[q + r * b] * right[q + c * b];
+              sum[r + c * b] += s;
+            }
+          }
+        }
         for (let c = 0; c < b; c++) {
           for (let r = 0; r < b; r++) {
-            t[(i + 1) * b + r + (i * b + c) * m] = g[r + c * b];
-            t[i * b + c + ((i + 1) * b + r) * m] = -g[r + c * b];
+            out[i * b + r + (j * b + c) * m] = sum[r + c * b];
+            out[j * b + c + (i * b + r) * m] = sum[r + c * b];
           }
         }
       }
     }
-    return t;
+    return { rows: m, cols: m, data: out };
   }
 
   /** T s for a vector of length dimension, through the blocks (O(dimension · width)) */
@@ -160,8 +206,7 @@ interface RitzPairs {
 function ritzPairs(t: SkewBlockTridiagonal, lastG: Float64Array, floor: number, backend: LinearAlgebraBackend): RitzPairs {
   const m = t.dimension;
   const b = t.width;
-  const dense = t.dense();
-  const gram = backend.gram({ rows: m, cols: m, data: dense });
+  const gram = t.gram();
   const eig = backend.symmetricEigen(gram, floor > 0 ? { above: floor } : {});
   const values = eig.values;
   const vec = (eig.vectors as { data: Float64Array }).data;
@@ -216,7 +261,8 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
   // 4.25 dimensions per pair were needed at N = 100 000 (2688 for 632 pairs): room for that up front, since
   // growing the basis copies it and briefly holds both (the 4254 MB peak measured with 4 per pair)
   const initialColumns = options.expectedPairs !== undefined ? Math.ceil(4.6 * options.expectedPairs) + 4 * width : 16 * width;
-  const basis = new Basis(n, initialColumns, blas);
+  const precision = options.basisPrecision ?? (n >= FLOAT32_BASIS_FROM ? 'float32' : 'float64');
+  const basis = new Basis(n, initialColumns, blas, precision);
   const t = new SkewBlockTridiagonal(width);
   const applyBlock = (input: Float64Array, output: Float64Array) => {
     if (op.applyBlock) op.applyBlock(input, output, width);
@@ -307,9 +353,10 @@ export function topSkewPairs(op: SkewOperator, options: TopPairsOptions): SkewPa
   const keep = count ?? wantedOf(final);
   if (keep > final.theta.length) throw new Error(`only ${final.theta.length} nonzero pairs exist; asked for ${keep}`);
   const clock = performance.now();
+  const basisBytes = basis.storedBytes;
   const pairs = formPairs(basis, t, final, keep);
   seconds.vectors = (performance.now() - clock) / 1000;
-  return { size: n, ...pairs, steps, products, dimension: t.dimension, blockSize: width, seconds };
+  return { size: n, ...pairs, steps, products, dimension: t.dimension, blockSize: width, seconds, basisPrecision: precision, basisBytes };
 }
 
 /** a = V s_1, b = V s_2 with s_2 = T s_1 / θ and θ = ‖T s_1‖ (see the note on SkewPairs). */

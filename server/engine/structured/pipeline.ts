@@ -54,7 +54,7 @@ export async function structuredVacuum(input: {
     return { sweep, relations, sets };
   });
 
-  const operator = await stage('green', () => new PauliJordan2D(sweep, { mass, density: density ?? undefined }));
+  const operator = await stage('green', () => new PauliJordan2D(sweep, { mass, density: density ?? undefined, backend }));
 
   const pairs = await stage('spectrum', () => {
     const options =
