@@ -4,7 +4,7 @@
   "targets": [
     {
       "target_name": "tacet_linalg",
-      "sources": ["src/addon.cc"],
+      "sources": ["src/addon.cc", "src/structured.cc"],
       "include_dirs": ["<!(node -p \"require('node-addon-api').include_dir\")"],
       "defines": ["NAPI_VERSION=8", "NAPI_CPP_EXCEPTIONS"],
       "cflags_cc!": ["-fno-exceptions"],

@@ -12,6 +12,9 @@
  * - gram: BLAS dsyrk, C = AᵀA (half the flops of a general product), mirrored to both triangles.
  * - solveTriangular: BLAS dtrsm, T X = B or Tᵀ X = B by substitution.
  * - cholesky: LAPACK dpotrf, A = L Lᵀ (null when A is not positive definite).
+ * - skewSpectrum: an antisymmetric A of even order reduced to antisymmetric tridiagonal form by our own
+ *   blocked Householder reduction, whose odd/even halves are one bidiagonal matrix (dbdsdc), with the
+ *   same blocked back-transformation; no Gram product, and each σ to about ε‖A‖ (addon.cc SkewSpectrum).
  *
  * Threads: OpenBLAS splits every call over all cores, and its threads wait for each other at every
  * step of the tridiagonal reduction; when other processes keep the cores busy that costs far more than
@@ -59,6 +62,7 @@ interface TacetLinalgAddon {
     transpose: boolean,
   ): Float64Array;
   cholesky(n: number, a: Float64Array): Float64Array | null;
+  skewSpectrum(n: number, a: Float64Array, overwrite: boolean): { sigma: Float64Array; vectors: Float64Array };
   info(): { blasConfig: string; threads: number };
   setThreads(threads: number): number;
 }
@@ -72,6 +76,8 @@ export interface NativeLoadResult {
   /** OpenBLAS worker threads (all cores unless OPENBLAS_NUM_THREADS says otherwise), when it loaded */
   blasThreads: number | null;
   addonPath: string;
+  /** every export of the addon when it loaded, for the structured engine's own kernels (native/src/structured.cc) */
+  exports?: Readonly<Record<string, unknown>>;
 }
 
 const repositoryRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
@@ -235,6 +241,16 @@ export function backendFromAddon(addon: TacetLinalgAddon): LinearAlgebraBackend 
       return { rows: b.rows, cols: b.cols, data };
     },
 
+    skewSpectrum(a, options = {}) {
+      checkData('skewSpectrum', a);
+      if (a.rows !== a.cols) throw new RangeError(`skewSpectrum needs a square matrix, got ${a.rows}×${a.cols}`);
+      if (a.rows % 2 !== 0) throw new RangeError(`skewSpectrum needs an even order, got ${a.rows}`);
+      const n = a.rows;
+      beforeLargeCall(n * n * n);
+      const r = addon.skewSpectrum(n, a.data, options.overwriteInput === true);
+      return { sigma: r.sigma, vectors: { rows: n, cols: n, data: r.vectors } };
+    },
+
     cholesky(a) {
       checkData('cholesky', a);
       if (a.rows !== a.cols) throw new RangeError(`cholesky needs a square matrix, got ${a.rows}×${a.cols}`);
@@ -260,7 +276,7 @@ export function loadNativeBackend(addonPath: string = defaultAddonPath): NativeL
     const addon = createRequire(import.meta.url)(addonPath) as TacetLinalgAddon;
     const backend = backendFromAddon(addon);
     const { blasConfig, threads } = addon.info();
-    return { backend, reason: null, blasConfig, blasThreads: threads, addonPath };
+    return { backend, reason: null, blasConfig, blasThreads: threads, addonPath, exports: addon as unknown as Record<string, unknown> };
   } catch (error) {
     const message = error instanceof Error ? error.message.split('\n')[0] : String(error);
     return { backend: null, reason: `native addon failed to load: ${message}`, blasConfig: null, blasThreads: null, addonPath };
