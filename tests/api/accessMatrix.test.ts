@@ -237,6 +237,8 @@ const matrix: Record<string, MatrixCase> = {
   },
   'DELETE /api/studies/:id': { access: 'compute', success: 204, prepare: async () => ({ path: `/api/studies/${await newStudy()}` }) },
   'GET /api/studies/:id/export': { access: 'read', success: 200, prepare: async () => ({ path: `/api/studies/${doneStudyId}/export?format=csv` }) },
+  'GET /api/studies/:id/bundle': { access: 'read', success: 200, prepare: async () => ({ path: `/api/studies/${doneStudyId}/bundle` }) },
+  'POST /api/bundles': { access: 'read', success: 200, prepare: async () => ({ body: { runIds: [doneRunId] } }) },
 };
 
 function expectedStatus(entry: MatrixCase, actor: Actor): number {
