@@ -57,6 +57,11 @@ export interface PauliJordanSpectrum {
   gramVectors: DenseMatrix | null;
   /** the ⌊N/2⌋ positive eigenvalues of iΔ, descending */
   positive: Float64Array;
+  /**
+   * true when the σ came from Δ itself (the skew route: column pairs 2k, 2k + 1 with Δa = σb, σ to about
+   * ε‖Δ‖), false when they are square roots of the eigenvalues of ΔᵀΔ
+   */
+  sigmaExact?: boolean;
 }
 
 /**
@@ -80,18 +85,30 @@ export function pairedSingularValues(ascendingGramValues: Float64Array): Float64
  * eigenvalues ±σ where σ² are the eigenvalues of the real symmetric positive semidefinite ΔᵀΔ = −Δ², so
  * one symmetric eigendecomposition gives both the spectrum and, through its eigenvectors, the SJ state.
  * Accuracy: σ comes out to about ε‖Δ‖²/σ, excellent above the knee, poor for near-zero modes.
+ * When the backend reduces an antisymmetric matrix itself (`skewSpectrum`, native, N even) and vectors
+ * are wanted, Δ goes there instead (`route: 'skew'`, the default where it applies): the same eigenvectors
+ * of ΔᵀΔ, paired so that Δa = σb and Δb = −σa, without the Gram product, and each σ to about ε‖Δ‖.
+ * `route: 'gram'` forces ΔᵀΔ.
  */
 export function pauliJordanSpectrum(
   delta: DenseMatrix,
-  options: { vectors?: boolean; backend?: LinearAlgebraBackend } = {},
+  options: { vectors?: boolean; backend?: LinearAlgebraBackend; route?: 'skew' | 'gram' } = {},
 ): PauliJordanSpectrum {
   const backend = options.backend ?? getBackend();
+  const vectors = options.vectors !== false;
+  const n = delta.rows;
+  if (vectors && options.route !== 'gram' && backend.skewSpectrum && n >= 2 && n % 2 === 0) {
+    const { sigma, vectors: pairs } = backend.skewSpectrum(delta);
+    const gramValues = new Float64Array(n);
+    for (let k = 0; k < sigma.length; k++) gramValues[2 * k] = gramValues[2 * k + 1] = sigma[k] * sigma[k];
+    return { size: n, gramValues, gramVectors: pairs, positive: sigma, sigmaExact: true };
+  }
   const gram = backend.gram(delta);
-  const eig = backend.symmetricEigen(gram, { vectors: options.vectors !== false, overwriteInput: true });
+  const eig = backend.symmetricEigen(gram, { vectors, overwriteInput: true });
   const positive = pairedSingularValues(eig.values);
   eig.values.reverse();
   if (eig.vectors) reverseColumns(eig.vectors);
-  return { size: delta.rows, gramValues: eig.values, gramVectors: eig.vectors, positive };
+  return { size: n, gramValues: eig.values, gramVectors: eig.vectors, positive, sigmaExact: false };
 }
 
 /** Reverses the column order of a column-major matrix in place. */

@@ -65,7 +65,8 @@ export function sjState(
   const sigma = new Float64Array(r);
   const top = Math.sqrt(Math.max(spectrum.gramValues[0] ?? 0, 0));
   for (let c = 0; c < r; c++) {
-    const value = Math.sqrt(Math.max(spectrum.gramValues[c], 0));
+    // the skew route gives σ itself (column pair 2k, 2k + 1 belongs to positive[k]); no square root to round
+    const value = spectrum.sigmaExact ? spectrum.positive[c >> 1] : Math.sqrt(Math.max(spectrum.gramValues[c], 0));
     // through ΔᵀΔ a true zero comes out near √ε‖Δ‖: below the resolution the mode is the kernel, σ = 0
     sigma[c] = value > KERNEL_RESOLUTION * top ? value : 0;
   }

@@ -43,6 +43,17 @@ export interface TriangularSolveOptions {
   transpose?: boolean;
 }
 
+/**
+ * The normal form of a real antisymmetric A of even order n: A a_k = σ_k b_k and A b_k = −σ_k a_k with
+ * orthonormal a_k, b_k, so both are eigenvectors of AᵀA for σ_k².
+ */
+export interface SkewSpectrumResult {
+  /** the n/2 singular values σ_k of A (each is one twice), descending */
+  sigma: Float64Array;
+  /** n × n, column 2k is a_k and column 2k + 1 is b_k */
+  vectors: DenseMatrix;
+}
+
 export type BackendName = 'native' | 'ml-matrix';
 
 export interface LinearAlgebraBackend {
@@ -60,4 +71,10 @@ export interface LinearAlgebraBackend {
    * when A is not positive definite to working precision. Only the lower triangle is read.
    */
   cholesky(a: DenseMatrix): DenseMatrix | null;
+  /**
+   * Optional (native only): the normal form of a real antisymmetric A of even order, straight from A
+   * (only its strict lower triangle is read) instead of the eigendecomposition of AᵀA. With
+   * `overwriteInput` A's storage may be used as workspace and is left undefined.
+   */
+  skewSpectrum?(a: DenseMatrix, options?: { overwriteInput?: boolean }): SkewSpectrumResult;
 }
