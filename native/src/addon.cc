@@ -65,6 +65,9 @@ void dbdsdc_(const char* uplo, const char* compq, const int* n, double* d, doubl
              size_t compq_len);
 }
 
+// the structured engine's kernels, in structured.cc
+void RegisterStructuredKernels(Napi::Env env, Napi::Object exports);
+
 namespace {
 
 // Largest dimension accepted: LAPACK's LP64 integers index n*n elements, which must stay below 2^31.
@@ -749,6 +752,7 @@ Napi::Object Init(Napi::Env env, Napi::Object exports) {
   exports.Set("cholesky", Napi::Function::New(env, Guarded<Cholesky>));
   exports.Set("skewSpectrum", Napi::Function::New(env, Guarded<SkewSpectrum>));
   exports.Set("info", Napi::Function::New(env, Guarded<Info>));
+  RegisterStructuredKernels(env, exports);
   return exports;
 }
 

@@ -76,6 +76,8 @@ export interface NativeLoadResult {
   /** OpenBLAS worker threads (all cores unless OPENBLAS_NUM_THREADS says otherwise), when it loaded */
   blasThreads: number | null;
   addonPath: string;
+  /** every export of the addon when it loaded, for the structured engine's own kernels (native/src/structured.cc) */
+  exports?: Readonly<Record<string, unknown>>;
 }
 
 const repositoryRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
@@ -274,7 +276,7 @@ export function loadNativeBackend(addonPath: string = defaultAddonPath): NativeL
     const addon = createRequire(import.meta.url)(addonPath) as TacetLinalgAddon;
     const backend = backendFromAddon(addon);
     const { blasConfig, threads } = addon.info();
-    return { backend, reason: null, blasConfig, blasThreads: threads, addonPath };
+    return { backend, reason: null, blasConfig, blasThreads: threads, addonPath, exports: addon as unknown as Record<string, unknown> };
   } catch (error) {
     const message = error instanceof Error ? error.message.split('\n')[0] : String(error);
     return { backend: null, reason: `native addon failed to load: ${message}`, blasConfig: null, blasThreads: null, addonPath };
