@@ -13,6 +13,8 @@ export function CompareEntropy({ runs }: { runs: RunDetail[] }) {
   const withPair = rows.some((r) => r.I !== null);
   const withComplement = rows.some((r) => r.SOprime !== null);
   const anyEntropy = rows.some((r) => r.S !== null || r.I !== null);
+  const traces = entropyCompareTraces(rows, plotPalette);
+  const categories = new Set(traces.flatMap((t) => t.x)).size;
   return (
     <div className="flex flex-col gap-6">
       <div className="overflow-x-auto">
@@ -58,9 +60,10 @@ export function CompareEntropy({ runs }: { runs: RunDetail[] }) {
           title="Compared entropies"
           fileName={`${compareFileStem(runs)}-entropy`}
           height={360}
-          data={entropyCompareTraces(rows, plotPalette)}
+          data={traces}
           layout={{
-            xaxis: { type: 'category', title: { text: 'run' }, tickfont: tickFont, automargin: true },
+            // half a category of room on each side, so the first and last run's points sit clear of the axes
+            xaxis: { type: 'category', title: { text: 'run' }, tickfont: tickFont, automargin: true, range: [-0.5, categories - 0.5] },
             yaxis: { title: { text: 'entropy' }, tickfont: tickFont, gridcolor: plotPalette.grid, rangemode: 'tozero' },
             legend: { orientation: 'h', x: 0, y: -0.3, yanchor: 'top', bgcolor: 'rgba(0,0,0,0)' },
           }}

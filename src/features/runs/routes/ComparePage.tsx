@@ -106,7 +106,8 @@ export function ComparePage() {
         <CompareDownloads runs={withResult} />
       </Section>
       <Section title="Runs">
-        <div className="overflow-x-auto">
+        {/* relative: the screen-reader header of the last column is positioned, and must scroll with the table instead of widening the page */}
+        <div className="relative overflow-x-auto">
           <table className="w-full border-collapse text-sm" aria-label="Compared runs">
           <thead>
             <tr className="border-b border-ink/70 text-left text-xs text-ink-faint">
