@@ -4,7 +4,8 @@
  *
  * One fixed-N sprinkling of the 2D diamond with tips t = ±1 per N; the subregion is the half-size
  * diamond (tips t = ±½, about N/4 elements). Tasks, in the order a run does them:
- * - spectrum: causal order, K = ½Cᵀ, Δ, ΔᵀΔ and its full eigendecomposition;
+ * - spectrum: causal order, K = ½Cᵀ, Δ and its whole spectrum with vectors (native: Δ's normal form,
+ *   pauliJordanSpectrum's skew route; ml-matrix: the eigendecomposition of ΔᵀΔ);
  * - W: the untruncated SJ state and its checks;
  * - ssee-untruncated: S of the subregion from the untruncated state;
  * - ssee-double-truncated: the √N/(4π)-truncated state, its checks and S with double truncation;
@@ -60,6 +61,9 @@ export interface NumpyComparisonRow {
   seconds: number;
   numpySeconds: number;
   numpyStages: { spectrum: number; state: number; entropy: number };
+  /** CPU seconds (all threads) of the engine's three tasks and of numpy's run: how much each got of the cores */
+  cpuSeconds: number;
+  numpyCpuSeconds: number;
   /** numpySeconds / seconds */
   ratio: number;
   target: 4;
@@ -104,7 +108,7 @@ import numpy as np
 d = json.load(sys.stdin)
 pts = np.array(d['points']).reshape(-1, 2); t, x = pts[:, 0], pts[:, 1]; N = len(t)
 sub = np.array(d['elements'])
-start = time.perf_counter()
+start = time.perf_counter(); cpuStart = time.process_time()
 C = ((t[None, :] - t[:, None]) > np.abs(x[None, :] - x[:, None])).astype(float)
 D = 0.5 * C.T - 0.5 * C
 ev, V = np.linalg.eigh(1j * D)
@@ -126,7 +130,7 @@ keep = np.abs(e) > 1e-6 * np.abs(e).max(); U = U[:, keep]
 mu = np.linalg.eigvals(np.diag(1 / e[keep]) @ U.conj().T @ Wo @ U).real
 S = float(np.sum(mu * np.log(np.abs(mu))))
 end = time.perf_counter()
-print(json.dumps({'S': S, 'checks': checks, 'spectrum': spectrum - start, 'state': state - spectrum, 'entropy': end - state}))
+print(json.dumps({'S': S, 'checks': checks, 'spectrum': spectrum - start, 'state': state - spectrum, 'entropy': end - state, 'cpu': time.process_time() - cpuStart}))
 `;
 
 interface NumpyRun {
@@ -134,6 +138,7 @@ interface NumpyRun {
   spectrum: number;
   state: number;
   entropy: number;
+  cpu: number;
 }
 
 async function numpyRun(N: number): Promise<NumpyRun> {
@@ -157,6 +162,8 @@ function numpyComparison(N: number, engineRows: BenchRow[], numpy: NumpyRun): Nu
     seconds,
     numpySeconds,
     numpyStages: { spectrum: Number(numpy.spectrum.toFixed(3)), state: Number(numpy.state.toFixed(3)), entropy: Number(numpy.entropy.toFixed(3)) },
+    cpuSeconds: Number(picked.reduce((sum, r) => sum + r.cpuSeconds, 0).toFixed(3)),
+    numpyCpuSeconds: Number(numpy.cpu.toFixed(3)),
     ratio,
     target: 4,
     met: ratio >= 4,
