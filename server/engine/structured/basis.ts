@@ -17,8 +17,13 @@ type Storage = Float32Array | Float64Array;
  *
  * With `float32` the vectors are stored rounded to single precision (half the memory and half the
  * memory traffic of the reorthogonalisation, which reads the whole basis twice per block step) while the
- * products, the block being orthogonalised and the two newest blocks stay float64; why that keeps the
- * spectrum and the entropy is in server/engine/README.md §12.
+ * products, the block being orthogonalised and the two newest blocks stay float64. The three-term
+ * relation, and with it T and the σ, is then built from float64 vectors only; the rounded copies serve
+ * the full reorthogonalisation, which removes rounding-sized components, so the basis stays orthogonal
+ * to about 2⁻²⁴/√N — the semi-orthogonality under which Lanczos keeps its Ritz values to working
+ * accuracy (Simon 1984, common practice) — and the Ritz vectors formed from it carry a relative
+ * rounding of about 2⁻²⁴. tests/engine/structuredFloat32Basis.test.ts measures what that leaves: σ
+ * within 4e-10 and the double-truncated S within 2e-9 of a float64 basis at N = 2000.
  */
 export class Basis {
   count = 0;

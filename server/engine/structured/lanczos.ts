@@ -88,7 +88,7 @@ export interface TopPairsOptions {
 }
 
 /**
- * From this size the Lanczos basis is stored in float32 (server/engine/README.md §12): at N = 100 000
+ * From this size the Lanczos basis is stored in float32 (see the note on Basis in basis.ts): at N = 100 000
  * it is 2700 vectors, 2.2 GB in float64, and the reorthogonalisation reads it twice per block step.
  * Below, memory is no concern and float64 keeps the vectors to full precision.
  */
