@@ -8,7 +8,7 @@ import { StatusLabel } from '../../../ui/StatusLabel';
 import { useOpenCellAsRun, useRetryCell } from '../api/studies';
 
 const th = 'border-b border-ink-faint px-2 py-1.5 text-left text-xs font-medium text-ink-soft';
-const td = 'border-b border-rule px-2 py-1.5 align-baseline';
+const td = 'border-b border-rule px-2 py-1.5 align-baseline whitespace-nowrap';
 
 /**
  * Every cell of the study, one row each: a failed cell can be queued again, a finished one opened as a
@@ -59,8 +59,9 @@ export function StudyCells({ study, canCompute }: { study: StudyDetail; canCompu
           {message}
         </p>
       )}
-      <div className="max-h-[28rem] overflow-auto">
-        <table className="w-full border-collapse text-sm">
+      {/* relative: the sr-only header is absolutely placed and would escape an unpositioned scroll box */}
+      <div className="relative max-h-[28rem] overflow-auto">
+        <table className="w-full min-w-[34rem] border-collapse text-sm">
           <thead>
             <tr>
               <th className={th}>N</th>
@@ -78,7 +79,7 @@ export function StudyCells({ study, canCompute }: { study: StudyDetail; canCompu
                 <td className={`${td} ${setNames.has(c.seed) ? '' : 'font-mono text-xs'}`}>{setNames.get(c.seed) ?? c.seed}</td>
                 <td className={td}>
                   <StatusLabel status={c.status} percent={c.percent} />
-                  {c.error && <span className="block max-w-md text-xs text-danger">{c.error}</span>}
+                  {c.error && <span className="block max-w-md whitespace-normal text-xs text-danger">{c.error}</span>}
                 </td>
                 <td className={`${td} figures text-xs`}>{c.elements ?? '—'}</td>
                 <td className={`${td} figures text-xs text-ink-soft`}>{c.seconds !== null ? `${c.seconds.toFixed(1)} s` : '—'}</td>

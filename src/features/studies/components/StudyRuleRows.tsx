@@ -9,7 +9,8 @@ import { doubleTruncatedRuleForm, studyFormMaxRules, untruncatedRuleForm, type S
 
 interface StudyRuleRowsProps {
   rules: StudyRuleFormValues[];
-  onChange(rules: StudyRuleFormValues[]): void;
+  /** an update of the rules as they are by then (a saved rule sets its id and its fields in two calls) */
+  onChange(update: (rules: StudyRuleFormValues[]) => StudyRuleFormValues[]): void;
   dimension: 2 | 4;
   /** the team's saved cut rules, offered in every row */
   presets: CutRule[];
@@ -19,7 +20,7 @@ interface StudyRuleRowsProps {
 
 /** Up to four cut rules, each any truncation (a saved cut rule or one set here), singly or doubly truncated. */
 export function StudyRuleRows({ rules, onChange, dimension, presets, errors }: StudyRuleRowsProps) {
-  const change = (k: number, next: Partial<StudyRuleFormValues>) => onChange(rules.map((r, j) => (j === k ? { ...r, ...next } : r)));
+  const change = (k: number, next: Partial<StudyRuleFormValues>) => onChange((now) => now.map((r, j) => (j === k ? { ...r, ...next } : r)));
   const usual = dimension === 4 ? 'the knee (√N/4π is a 2D rule)' : '√N/4π';
   return (
     <div className="flex flex-col gap-6" data-testid="study-rules">
@@ -28,7 +29,7 @@ export function StudyRuleRows({ rules, onChange, dimension, presets, errors }: S
           <legend className="flex w-full items-baseline justify-between gap-4 text-sm font-medium text-ink">
             <span>Cut rule {k + 1}</span>
             {rules.length > 1 && (
-              <Button variant="quiet" onClick={() => onChange(rules.filter((_, j) => j !== k))} aria-label={`Remove cut rule ${k + 1}`}>
+              <Button variant="quiet" onClick={() => onChange((now) => now.filter((_, j) => j !== k))} aria-label={`Remove cut rule ${k + 1}`}>
                 Remove
               </Button>
             )}
@@ -60,7 +61,9 @@ export function StudyRuleRows({ rules, onChange, dimension, presets, errors }: S
         <Button
           variant="quiet"
           disabled={rules.length >= studyFormMaxRules}
-          onClick={() => onChange([...rules, rules.some((r) => r.doubleTruncation) ? { ...untruncatedRuleForm, truncation: { kind: 'sqrtN', value: '' } } : { ...doubleTruncatedRuleForm }])}
+          onClick={() =>
+            onChange((now) => (now.length >= studyFormMaxRules ? now : [...now, now.some((r) => r.doubleTruncation) ? { ...untruncatedRuleForm, truncation: { kind: 'sqrtN', value: '' } } : { ...doubleTruncatedRuleForm }]))
+          }
         >
           Add a cut rule
         </Button>

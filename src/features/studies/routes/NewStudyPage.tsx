@@ -252,7 +252,7 @@ export function NewStudyPage() {
         </Section>
 
         <Section title="Cut rules and field">
-          <StudyRuleRows rules={values.rules} onChange={(rules) => set('rules', rules)} dimension={dimension} presets={cutRules.data ?? []} errors={errors} />
+          <StudyRuleRows rules={values.rules} onChange={(update) => setValues((v) => ({ ...v, rules: update(v.rules) }))} dimension={dimension} presets={cutRules.data ?? []} errors={errors} />
           <div className="mt-6 grid grid-cols-1 gap-6 sm:grid-cols-[12rem_1fr]">
             <TextField label="Mass m" name="mass" inputMode="decimal" value={values.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} disabled={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) !== null} hint={values.source === 'sprinkled' && studyMasslessOnlyReason(values.regionKind) ? `Massless only here: ${studyMasslessOnlyReason(values.regionKind)}` : '0 for the massless field'} />
           </div>

@@ -21,7 +21,7 @@ const filterKeys = ['search', 'status', 'regionKind', 'authorId', 'createdFrom',
 function StudyFilters({ filters, onChange }: { filters: Record<(typeof filterKeys)[number], string>; onChange(key: (typeof filterKeys)[number], value: string): void }) {
   const members = useMembers();
   return (
-    <div className="mb-6 grid grid-cols-1 gap-x-6 gap-y-4 sm:grid-cols-3 lg:grid-cols-6" data-testid="study-filters" role="search">
+    <div className="mb-6 grid grid-cols-1 gap-x-6 gap-y-4 sm:grid-cols-3 lg:grid-cols-7" data-testid="study-filters" role="search">
       <div className="sm:col-span-3 lg:col-span-2">
         <TextField label="Search" name="search" type="search" value={filters.search} onChange={(e) => onChange('search', e.target.value)} placeholder="words of the title, or the id" />
       </div>
@@ -50,7 +50,7 @@ function StudyFilters({ filters, onChange }: { filters: Record<(typeof filterKey
           </option>
         ))}
       </SelectField>
-      <div className="grid grid-cols-2 gap-4 sm:col-span-3 lg:col-span-1 lg:grid-cols-1">
+      <div className="grid grid-cols-2 gap-4 sm:col-span-3 lg:col-span-2">
         <TextField label="Created from" name="createdFrom" type="date" value={filters.createdFrom} onChange={(e) => onChange('createdFrom', e.target.value)} />
         <TextField label="Created until" name="createdTo" type="date" value={filters.createdTo} onChange={(e) => onChange('createdTo', e.target.value)} />
       </div>
