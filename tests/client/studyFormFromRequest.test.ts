@@ -13,6 +13,7 @@ const roundTrip = (input: CreateStudyRequestInput) => {
 describe('studyFormFromRequest', () => {
   it('gives back a sprinkled study with four rules, Rényi orders, Poisson sprinklings and numbered seeds', () => {
     const { request, form, back } = roundTrip({
+      source: 'sprinkled',
       title: 'Area law, four cuts',
       region: { kind: 'cylinder2d', properTime: 2, circumference: 3.5 },
       process: 'poisson',
@@ -36,17 +37,21 @@ describe('studyFormFromRequest', () => {
 
   it('keeps seeds that follow no numbering as a list, and tips, pairs and knee tolerances as they were', () => {
     const tips = roundTrip({
+      source: 'sprinkled',
       region: { kind: 'slab2d', tMin: -1, tMax: 1, xMin: -2, xMax: 2 },
       counts: [300],
       seeds: ['alpha', 'r-2', 'r-7'],
-      subregions: { kind: 'tips', diamonds: [{ past: { t: -0.5, x: 0.1 }, future: { t: 0.5, x: 0.1 } }, { past: { t: -0.25, x: -1 }, future: { t: 0.25, x: -1 } }] },
+      subregions: { kind: 'tips', diamonds: [{ label: 'centre: wide', past: { t: -0.5, x: 0.1 }, future: { t: 0.5, x: 0.1 } }, { past: { t: -0.25, x: -1 }, future: { t: 0.25, x: -1 } }] },
       rules: [{ truncation: { rule: 'knee', tolerance: 0.2 } }, { truncation: { rule: 'knee' }, doubleTruncation: true }],
     });
     expect(tips.back).toEqual(tips.request);
     expect(tips.form.seedMode).toBe('listed');
     expect(tips.form.seedList).toBe('alpha, r-2, r-7');
+    // a named sub-diamond keeps its name in front of its tips (the name may hold a colon itself)
+    expect(tips.form.tips).toBe('centre: wide: -0.5,0.1 0.5,0.1\n-0.25,-1 0.25,-1');
 
     const pairs = roundTrip({
+      source: 'sprinkled',
       region: { kind: 'diamond4d', properTime: 2 },
       counts: [500, 1000],
       seeds: [1, 2],
@@ -63,12 +68,12 @@ describe('studyFormFromRequest', () => {
       source: 'imported',
       title: 'imported ensemble',
       causalSetIds: ['6f9619ff-8b86-4011-b42d-00c04fc964ff', '7f9619ff-8b86-4011-b42d-00c04fc964ff'],
-      subregions: { kind: 'elements', lists: [{ indices: [0, 1, 2, 3] }, { indices: [5, 8, 13] }] },
+      subregions: { kind: 'elements', lists: [{ indices: [0, 1, 2, 3] }, { label: 'tail', indices: [5, 8, 13] }] },
       rules: [{ truncation: { rule: 'sqrtN' }, doubleTruncation: true }],
     });
     expect(back).toEqual(request);
     expect(form.source).toBe('imported');
-    expect(form.elementLists).toBe('0, 1, 2, 3\n5, 8, 13');
+    expect(form.elementLists).toBe('0, 1, 2, 3\ntail: 5, 8, 13');
   });
 });
 

@@ -167,20 +167,33 @@ export function seedsOfForm(values: Pick<StudyFormValues, 'seedMode' | 'seedPref
   return values.seedMode === 'listed' ? parseSeedList(values.seedList) : seedsFrom(values.seedPrefix, Number(values.seedCount));
 }
 
+/**
+ * A subregion line may start with its name: "left: -0.5,0 0.5,0". Numbers never hold a colon, so the
+ * name is whatever comes before the last one.
+ */
+function splitLabel(line: string): { label?: string; rest: string } {
+  const colon = line.lastIndexOf(':');
+  const label = colon > 0 ? line.slice(0, colon).trim() : '';
+  return label ? { label, rest: line.slice(colon + 1).trim() } : { rest: colon === 0 ? line.slice(1).trim() : line };
+}
+
+const labelPrefix = (label: string | undefined) => (label ? `${label}: ` : '');
+
 function parseTips(text: string) {
   return text
     .split('\n')
     .map((line) => line.trim())
     .filter((line) => line !== '')
     .map((line) => {
-      const [past, future] = line.split(/\s+/);
+      const { label, rest } = splitLabel(line);
+      const [past, future] = rest.split(/\s+/);
       // "t,x" in 2D, "t,x,y,z" in 4D; the server checks the count against the region
       const tip = (s: string | undefined) => {
         const [t, x, y, z] = (s ?? '').split(',').map((v) => (v.trim() === '' ? Number.NaN : Number(v)));
         const plane = { t: t ?? Number.NaN, x: x ?? Number.NaN };
         return y === undefined && z === undefined ? plane : { ...plane, y: y ?? Number.NaN, z: z ?? Number.NaN };
       };
-      return { past: tip(past), future: tip(future) };
+      return { ...(label ? { label } : {}), past: tip(past), future: tip(future) };
     });
 }
 
@@ -190,13 +203,25 @@ export function parseElementLists(text: string): number[][] {
     .split('\n')
     .map((line) => line.trim())
     .filter((line) => line !== '')
-    .map(parseNumberList);
+    .map((line) => parseNumberList(splitLabel(line).rest));
+}
+
+/** Element lists with their names ("name: 0, 1, 2"), as the request takes them. */
+function parseNamedElementLists(text: string): { label?: string; indices: number[] }[] {
+  return text
+    .split('\n')
+    .map((line) => line.trim())
+    .filter((line) => line !== '')
+    .map((line) => {
+      const { label, rest } = splitLabel(line);
+      return { ...(label ? { label } : {}), indices: parseNumberList(rest) };
+    });
 }
 
 function subregionsFrom(values: StudyFormValues): CreateStudyRequestInput['subregions'] {
   if (values.subregionKind === 'concentric') return { kind: 'concentric', fractions: parseNumberList(values.fractions) };
   if (values.subregionKind === 'pairs') return { kind: 'pairs', sizes: parseNumberList(values.pairSizes), separations: parseNumberList(values.separations) };
-  if (values.subregionKind === 'elements') return { kind: 'elements', lists: parseElementLists(values.elementLists).map((indices) => ({ indices })) };
+  if (values.subregionKind === 'elements') return { kind: 'elements', lists: parseNamedElementLists(values.elementLists) };
   return { kind: 'tips', diamonds: parseTips(values.tips) };
 }
 
@@ -278,8 +303,8 @@ export function studyFormFromRequest(request: CreateStudyRequest): StudyFormValu
       : subregions.kind === 'pairs'
         ? { subregionKind: 'pairs', pairSizes: subregions.sizes.map(numberText).join(', '), separations: subregions.separations.map(numberText).join(', ') }
         : subregions.kind === 'tips'
-          ? { subregionKind: 'tips', tips: subregions.diamonds.map(tipsLine).join('\n') }
-          : { subregionKind: 'elements', elementLists: subregions.lists.map((l) => l.indices.join(', ')).join('\n') };
+          ? { subregionKind: 'tips', tips: subregions.diamonds.map((d) => `${labelPrefix(d.label)}${tipsLine(d)}`).join('\n') }
+          : { subregionKind: 'elements', elementLists: subregions.lists.map((l) => `${labelPrefix(l.label)}${l.indices.join(', ')}`).join('\n') };
   if (request.source === 'imported') {
     return { ...base, ...subregionValues, rules, source: 'imported', causalSetIds: [...request.causalSetIds] };
   }

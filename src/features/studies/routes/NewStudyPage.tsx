@@ -227,7 +227,7 @@ export function NewStudyPage() {
                 {errors.elementLists ? (
                   <p className="text-xs text-danger" role="alert">{errors.elementLists}</p>
                 ) : (
-                  <p className="text-xs text-ink-faint">the only choice for relation lists; concentric sub-diamonds need sets imported with the same diamond region</p>
+                  <p className="text-xs text-ink-faint">a name may come first, as in "core: 0, 1, 2"; the only choice for relation lists; concentric sub-diamonds need sets imported with the same diamond region</p>
                 )}
               </div>
             ) : values.subregionKind === 'pairs' ? (
@@ -245,7 +245,7 @@ export function NewStudyPage() {
                     : 'Sub-diamonds, one per line: past tip t,x then future tip t,x'}
                 </label>
                 <textarea id="study-tips" name="tips" rows={3} value={values.tips} onChange={(e) => set('tips', e.target.value)} aria-invalid={Boolean(errors.tips)} className="border-0 border-b border-rule bg-transparent font-mono text-sm focus:border-accent focus:outline-none" />
-                {errors.tips && <p className="text-xs text-danger" role="alert">{errors.tips}</p>}
+                {errors.tips ? <p className="text-xs text-danger" role="alert">{errors.tips}</p> : <p className="text-xs text-ink-faint">a name may come first, as in "left: t,x t,x"; tables and exports then use it</p>}
               </div>
             )}
           </div>
