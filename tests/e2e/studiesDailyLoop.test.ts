@@ -79,6 +79,9 @@ describe('the daily loop of scaling studies in the browser', () => {
     await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
     await page.getByRole('heading', { name: /Daily loop \(browser\): N = 120, seed seed-1, ℓ\/T = 0\.5/ }).waitFor();
     await page.getByRole('figure', { name: 'Spectrum' }).waitFor({ timeout: 60_000 });
+    // the run names the study and the cell it came from, linked back to the study
+    await expect(page.getByTestId('run-origin').innerText()).resolves.toMatch(/^from study .+, cell N = 120, seed seed-1$/);
+    expect(await page.getByTestId('run-origin').getByRole('link').getAttribute('href')).toBe(new URL(studyUrl).pathname);
     await screenshot(page, 'study-loop-03-cell-as-run');
 
     // duplicate: the form with every setting of the grown study

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { Link, useLocation, useNavigate, useParams } from 'react-router';
-import type { RunDetail } from '@shared/runs';
+import { runOriginOf, runOriginText, type RunDetail } from '@shared/runs';
 import { isApiError } from '../../../lib/apiClient';
 import { formatDateTime } from '../../../lib/format';
 import { Button } from '../../../ui/Button';
@@ -84,6 +84,7 @@ function RunView({ run }: { run: RunDetail }) {
             <span aria-hidden>·</span>
             <span className="figures">{formatDateTime(run.createdAt)}</span>
             <ImportedSetLink run={run} />
+            <StudyCellOrigin request={run.request} />
             {run.retryOfRunId && (
               <>
                 <span aria-hidden>·</span>
@@ -275,5 +276,21 @@ function RunActions({ run }: { run: RunDetail }) {
         </p>
       )}
     </div>
+  );
+}
+
+/** A run opened from a study cell names the study (linked) and the cell, so its numbers can be traced back. */
+function StudyCellOrigin({ request }: { request: unknown }) {
+  const origin = runOriginOf(request);
+  if (!origin) return null;
+  return (
+    <>
+      <span aria-hidden>·</span>
+      <span data-testid="run-origin">
+        <Link to={`/studies/${origin.studyId}`} className="text-accent hover:underline">
+          {runOriginText(origin)}
+        </Link>
+      </span>
+    </>
   );
 }
