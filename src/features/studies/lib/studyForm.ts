@@ -199,11 +199,7 @@ function parseTips(text: string) {
 
 /** "0, 1, 2\n5 6 7" → [[0, 1, 2], [5, 6, 7]]; blank lines are skipped. */
 export function parseElementLists(text: string): number[][] {
-  return text
-    .split('\n')
-    .map((line) => line.trim())
-    .filter((line) => line !== '')
-    .map((line) => parseNumberList(splitLabel(line).rest));
+  return parseNamedElementLists(text).map((list) => list.indices);
 }
 
 /** Element lists with their names ("name: 0, 1, 2"), as the request takes them. */
