@@ -8,6 +8,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { fetchWork, RemoteUsageError, submit, type RemoteIo } from '../../server/cli/remote';
 import { createTestContext, signUp, startTestWorker, type TestContext } from '../support/app';
+import { exportFileName, runExportFormats } from '@shared/exports';
 
 // Issue 17 §5: `tacet submit` / `tacet fetch` talk to a running service with TACET_URL and TACET_TOKEN.
 let ctx: TestContext;
@@ -70,7 +71,8 @@ describe('tacet submit and fetch against a running service', () => {
     expect(detail).toMatchObject({ id: answer.id, status: 'done', title: 'from a notebook' });
     expect(detail.result.entropy.S).toBeGreaterThan(0);
     const files = readdirSync(out).sort();
-    expect(files).toHaveLength(4);
+    // the detail and one file per run export of the formats table, under the table's file names
+    expect(files).toEqual([`run-${answer.id}.json`, ...runExportFormats.map((format) => exportFileName('run', answer.id, format))].sort());
     expect(files.find((f) => f.endsWith('-points.csv'))).toBeDefined();
     const points = readFileSync(join(out, files.find((f) => f.endsWith('-points.csv'))!), 'utf8');
     expect(points.trim().split('\n')).toHaveLength(151);
