@@ -68,7 +68,8 @@ describe('mutual information on diamond300 against numpy', () => {
       const mi = result.mutualInformation!;
       const other = swapped.mutualInformation!;
       expect(Math.abs(other.I - mi.I)).toBeLessThan(1e-12 * (mi.a.S + mi.b.S));
-      expect(other.a.S).toBe(mi.b.S);
+      // the same restricted problem, solved again: equal up to rounding (threaded BLAS sums need not be bitwise repeatable)
+      expect(Math.abs(other.a.S - mi.b.S)).toBeLessThan(1e-12 * Math.max(1, mi.b.S));
       expect(Array.from(other.union.elements)).toEqual(Array.from(mi.union.elements));
     });
   });
