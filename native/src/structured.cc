@@ -19,7 +19,7 @@
 //       out[oOffset + i + c·ldo] = Σ_j v[i + j·rows] coefficients[j + c·m]: the Ritz vectors, a fat
 //       product, done by dgemm on float64 copies of tiles of rows
 //   solveUpperRight(n, width, w, r)
-//       W ← W R⁻¹ for column-major n × width W and upper triangular width × width R, row by row.
+//       W ← W R⁻¹ for column-major n × width W and upper triangular width × width R (dtrsm).
 // v is a Float32Array or a Float64Array; everything else is Float64Array (ranks and labels Int32Array).
 #pragma GCC optimize("O3")
 #include <napi.h>
@@ -84,15 +84,36 @@ size_t ThreadsFor(size_t work) {
 
 // ---------------------------------------------------------------- the 2D Pauli–Jordan operator
 
+// How far ahead (in sweep order) the tree nodes of a point are prefetched, and how many of each path:
+// the tree of 100 000 ranks × 16 lanes is 12.8 MB, beyond the per-core cache, and the first nodes of
+// each path (the fine levels) are scattered, so each access waited on memory (102 ms per block product
+// at N = 100 000); the coarse levels are shared by all paths and stay cached.
+constexpr int32_t kPrefetchAhead = 12;
+constexpr int kPrefetchNodes = 7;
+
+template <int W>
+inline void PrefetchPaths(const double* tree, int32_t rank, int32_t vRanks, bool future) {
+  const int lines = (W * 8 + 63) / 64;
+  int32_t i = future ? vRanks - rank : rank - 1;
+  for (int k = 0; k < kPrefetchNodes && i > 0; k++, i -= i & -i)
+    for (int l = 0; l < lines; l++) __builtin_prefetch(reinterpret_cast<const char*>(tree + static_cast<size_t>(i) * W) + 64 * l, 0, 3);
+  i = future ? vRanks + 1 - rank : rank;
+  for (int k = 0; k < kPrefetchNodes && i <= vRanks; k++, i += i & -i)
+    for (int l = 0; l < lines; l++) __builtin_prefetch(reinterpret_cast<const char*>(tree + static_cast<size_t>(i) * W) + 64 * l, 1, 3);
+}
+
 template <int W>
 TACET_CLONES void SweepFixed(const int32_t* ranks, const int32_t* groupStart, size_t groups, int32_t vRanks,
                              const double* w, double* sums, double c, bool future, double* tree) {
   std::fill(tree, tree + static_cast<size_t>(vRanks + 1) * W, 0.0);
   double z[W];
+  const int32_t n = groupStart[groups];
   for (size_t gi = 0; gi < groups; gi++) {
     size_t g = future ? groups - 1 - gi : gi;
     int32_t begin = groupStart[g], end = groupStart[g + 1];
     for (int32_t p = begin; p < end; p++) {
+      int32_t ahead = future ? p - kPrefetchAhead : p + kPrefetchAhead;
+      if (ahead >= 0 && ahead < n) PrefetchPaths<W>(tree, ranks[ahead], vRanks, future);
       double acc[W] = {};
       for (int32_t i = future ? vRanks - ranks[p] : ranks[p] - 1; i > 0; i -= i & -i) {
         const double* node = tree + static_cast<size_t>(i) * W;
@@ -150,6 +171,20 @@ void Sweep(const int32_t* ranks, const int32_t* groupStart, size_t groups, int32
   }
 }
 
+struct SweepWorkspace {
+  std::vector<double> sorted, past, future, tree;
+  std::vector<int32_t> position;
+  void Reserve(size_t n, size_t width, size_t vRanks) {
+    if (sorted.size() < n * width) {
+      sorted.resize(n * width);
+      past.resize(n * width);
+      future.resize(n * width);
+    }
+    if (tree.size() < (vRanks + 1) * width) tree.resize((vRanks + 1) * width);
+    if (position.size() < n) position.resize(n);
+  }
+};
+
 Napi::Value StructuredApplyBlock(const Napi::CallbackInfo& info) {
   Napi::Env env = info.Env();
   if (info.Length() < 8) throw Napi::TypeError::New(env, "structuredApplyBlock needs 8 arguments");
@@ -175,26 +210,43 @@ Napi::Value StructuredApplyBlock(const Napi::CallbackInfo& info) {
     if (byU[p] < 0 || static_cast<size_t>(byU[p]) >= n) throw Napi::RangeError::New(env, "byU holds a label out of range");
     if (ranks[p] < 1 || static_cast<size_t>(ranks[p]) > vRanks) throw Napi::RangeError::New(env, "ranks must lie in 1..vRanks");
   }
-  std::vector<double> sorted(n * width), past(n * width), future(n * width), tree((vRanks + 1) * width);
-  for (size_t lane = 0; lane < width; lane++) {
-    const double* column = input + lane * n;
-    for (size_t p = 0; p < n; p++) sorted[p * width + lane] = column[byU[p]];
+  // The work arrays are kept per thread between calls: allocating them afresh cost more than the sweeps
+  // at N = 100 000 (20 ms of page faults and zeroing against 27 ms), and Lanczos calls this per block step.
+  thread_local SweepWorkspace space;
+  space.Reserve(n, width, vRanks);
+  double* sorted = space.sorted.data();
+  double* past = space.past.data();
+  double* future = space.future.data();
+  int32_t* position = space.position.data();
+  // position[label] = its place in sweep order, so that gather and scatter stream through the columns
+  // and touch one contiguous row of `width` lanes per element (lane by lane, each access was a miss)
+  std::fill(position, position + n, -1);
+  for (size_t p = 0; p < n; p++) {
+    if (position[byU[p]] != -1) throw Napi::RangeError::New(env, "byU must list each label once");
+    position[byU[p]] = static_cast<int32_t>(p);
+  }
+  for (size_t q = 0; q < n; q++) {
+    double* row = sorted + static_cast<size_t>(position[q]) * width;
+    for (size_t lane = 0; lane < width; lane++) row[lane] = input[lane * n + q];
   }
   size_t groups = groupEntries - 1;
   int32_t r = static_cast<int32_t>(vRanks);
   // the retarded and the advanced sweep are independent: on two threads when the policy allows two
   if (ThreadsFor(n * width * 16) >= 2) {
-    std::vector<double> second((vRanks + 1) * width);
-    std::thread advanced([&] { Sweep(ranks, groupStart, groups, r, sorted.data(), future.data(), c, true, second.data(), static_cast<int>(width)); });
-    Sweep(ranks, groupStart, groups, r, sorted.data(), past.data(), c, false, tree.data(), static_cast<int>(width));
+    std::thread advanced([&] {
+      thread_local std::vector<double> second;
+      if (second.size() < (vRanks + 1) * width) second.resize((vRanks + 1) * width);
+      Sweep(ranks, groupStart, groups, r, sorted, future, c, true, second.data(), static_cast<int>(width));
+    });
+    Sweep(ranks, groupStart, groups, r, sorted, past, c, false, space.tree.data(), static_cast<int>(width));
     advanced.join();
   } else {
-    Sweep(ranks, groupStart, groups, r, sorted.data(), past.data(), c, false, tree.data(), static_cast<int>(width));
-    Sweep(ranks, groupStart, groups, r, sorted.data(), future.data(), c, true, tree.data(), static_cast<int>(width));
+    Sweep(ranks, groupStart, groups, r, sorted, past, c, false, space.tree.data(), static_cast<int>(width));
+    Sweep(ranks, groupStart, groups, r, sorted, future, c, true, space.tree.data(), static_cast<int>(width));
   }
-  for (size_t lane = 0; lane < width; lane++) {
-    double* column = output + lane * n;
-    for (size_t p = 0; p < n; p++) column[byU[p]] = 0.5 * (past[p * width + lane] - future[p * width + lane]);
+  for (size_t q = 0; q < n; q++) {
+    size_t p = static_cast<size_t>(position[q]) * width;
+    for (size_t lane = 0; lane < width; lane++) output[lane * n + q] = 0.5 * (past[p + lane] - future[p + lane]);
   }
   return env.Undefined();
 }
@@ -313,6 +365,140 @@ void UpdateTileAny(const V* v, size_t ldv, size_t rows, size_t m, const double* 
   }
 }
 
+// ---- AVX-512 tiles for the 16-column blocks of Lanczos
+// The generic tiles above leave the float32 path at about half and the update at about a third of
+// this machine's dgemm rate (measured on the 2-core EPYC of CI: 19 and 12 GFlop/s on one thread against
+// 45); these keep eight basis columns (project) or eight rows (update) of 16 lanes in 16 registers,
+// with the basis widened to float64 once per tile, and reach 30–40 GFlop/s per thread there.
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#define TACET_HAVE_AVX512_TILES 1
+#include <immintrin.h>
+
+bool Avx512Available() {
+  static const bool available = __builtin_cpu_supports("avx512f");
+  return available;
+}
+
+constexpr int kWideColumns = 8;
+
+// scratch[c·kTileRows + i] = v[i + (j + c)·ldv] for c < count, i < rows (a no-op view for float64)
+template <typename V>
+__attribute__((target("avx512f"))) const double* WidenColumns(const V* v, size_t ldv, size_t rows, size_t j, size_t count, double* scratch,
+                                                              size_t& stride) {
+  if constexpr (std::is_same<V, double>::value) {
+    (void)scratch;
+    (void)count;
+    (void)rows;
+    stride = ldv;
+    return v + j * ldv;
+  } else {
+    for (size_t c = 0; c < count; c++) {
+      const float* from = v + (j + c) * ldv;
+      // the tile's next columns, whose first touch would otherwise stall the widening without any
+      // arithmetic to overlap it (measured: 22 against 34 GFlop/s for float64 on one thread)
+      // (a prefetch past the basis's end is harmless: prefetches never fault)
+      uintptr_t ahead = reinterpret_cast<uintptr_t>(from) + kWideColumns * ldv * sizeof(float);
+      for (size_t b = 0; b < rows * sizeof(float); b += 64) _mm_prefetch(reinterpret_cast<const char*>(ahead + b), _MM_HINT_T0);
+      double* to = scratch + c * kTileRows;
+      size_t i = 0;
+      for (; i + 8 <= rows; i += 8) _mm512_storeu_pd(to + i, _mm512_cvtps_pd(_mm256_loadu_ps(from + i)));
+      for (; i < rows; i++) to[i] = from[i];
+    }
+    stride = kTileRows;
+    return scratch;
+  }
+}
+
+// packed (m × 16, row j at 16·j) += Vᵀ W_tile; wp is the tile packed row by row (rows × 16)
+template <typename V>
+__attribute__((target("avx512f"))) void ProjectTile512(const V* v, size_t ldv, size_t rows, size_t m, const double* wp, double* packed,
+                                                       double* scratch) {
+  size_t j = 0;
+  for (; j + kWideColumns <= m; j += kWideColumns) {
+    size_t stride = 0;
+    const double* cols = WidenColumns(v, ldv, rows, j, kWideColumns, scratch, stride);
+    __m512d a0 = _mm512_setzero_pd(), a1 = a0, a2 = a0, a3 = a0, a4 = a0, a5 = a0, a6 = a0, a7 = a0;
+    __m512d b0 = a0, b1 = a0, b2 = a0, b3 = a0, b4 = a0, b5 = a0, b6 = a0, b7 = a0;
+    for (size_t i = 0; i < rows; i++) {
+      __m512d lo = _mm512_loadu_pd(wp + i * 16), hi = _mm512_loadu_pd(wp + i * 16 + 8);
+      const double* x = cols + i;
+      __m512d s;
+      s = _mm512_set1_pd(x[0]);          a0 = _mm512_fmadd_pd(s, lo, a0); b0 = _mm512_fmadd_pd(s, hi, b0);
+      s = _mm512_set1_pd(x[stride]);     a1 = _mm512_fmadd_pd(s, lo, a1); b1 = _mm512_fmadd_pd(s, hi, b1);
+      s = _mm512_set1_pd(x[2 * stride]); a2 = _mm512_fmadd_pd(s, lo, a2); b2 = _mm512_fmadd_pd(s, hi, b2);
+      s = _mm512_set1_pd(x[3 * stride]); a3 = _mm512_fmadd_pd(s, lo, a3); b3 = _mm512_fmadd_pd(s, hi, b3);
+      s = _mm512_set1_pd(x[4 * stride]); a4 = _mm512_fmadd_pd(s, lo, a4); b4 = _mm512_fmadd_pd(s, hi, b4);
+      s = _mm512_set1_pd(x[5 * stride]); a5 = _mm512_fmadd_pd(s, lo, a5); b5 = _mm512_fmadd_pd(s, hi, b5);
+      s = _mm512_set1_pd(x[6 * stride]); a6 = _mm512_fmadd_pd(s, lo, a6); b6 = _mm512_fmadd_pd(s, hi, b6);
+      s = _mm512_set1_pd(x[7 * stride]); a7 = _mm512_fmadd_pd(s, lo, a7); b7 = _mm512_fmadd_pd(s, hi, b7);
+    }
+    double* p = packed + j * 16;
+    const __m512d sums[16] = {a0, b0, a1, b1, a2, b2, a3, b3, a4, b4, a5, b5, a6, b6, a7, b7};
+    for (int q = 0; q < 16; q++) _mm512_storeu_pd(p + q * 8, _mm512_add_pd(_mm512_loadu_pd(p + q * 8), sums[q]));
+  }
+  for (; j < m; j++) {
+    const V* col = v + j * ldv;
+    __m512d lo = _mm512_setzero_pd(), hi = lo;
+    for (size_t i = 0; i < rows; i++) {
+      __m512d s = _mm512_set1_pd(static_cast<double>(col[i]));
+      lo = _mm512_fmadd_pd(s, _mm512_loadu_pd(wp + i * 16), lo);
+      hi = _mm512_fmadd_pd(s, _mm512_loadu_pd(wp + i * 16 + 8), hi);
+    }
+    double* p = packed + j * 16;
+    _mm512_storeu_pd(p, _mm512_add_pd(_mm512_loadu_pd(p), lo));
+    _mm512_storeu_pd(p + 8, _mm512_add_pd(_mm512_loadu_pd(p + 8), hi));
+  }
+}
+
+// wp (rows × 16, packed by rows) += V_tile C, with C packed (m × 16, row j at 16·j, alpha applied)
+template <typename V>
+__attribute__((target("avx512f"))) void UpdateTile512(const V* v, size_t ldv, size_t rows, size_t m, const double* cp, double* wp,
+                                                      double* scratch) {
+  for (size_t j0 = 0; j0 < m; j0 += kWideColumns) {
+    size_t count = std::min<size_t>(kWideColumns, m - j0);
+    size_t stride = 0;
+    const double* cols = WidenColumns(v, ldv, rows, j0, count, scratch, stride);
+    size_t i = 0;
+    for (; i + 8 <= rows; i += 8) {
+      double* x = wp + i * 16;
+      __m512d a0 = _mm512_loadu_pd(x), b0 = _mm512_loadu_pd(x + 8), a1 = _mm512_loadu_pd(x + 16), b1 = _mm512_loadu_pd(x + 24);
+      __m512d a2 = _mm512_loadu_pd(x + 32), b2 = _mm512_loadu_pd(x + 40), a3 = _mm512_loadu_pd(x + 48), b3 = _mm512_loadu_pd(x + 56);
+      __m512d a4 = _mm512_loadu_pd(x + 64), b4 = _mm512_loadu_pd(x + 72), a5 = _mm512_loadu_pd(x + 80), b5 = _mm512_loadu_pd(x + 88);
+      __m512d a6 = _mm512_loadu_pd(x + 96), b6 = _mm512_loadu_pd(x + 104), a7 = _mm512_loadu_pd(x + 112), b7 = _mm512_loadu_pd(x + 120);
+      for (size_t c = 0; c < count; c++) {
+        const double* coefficient = cp + (j0 + c) * 16;
+        __m512d lo = _mm512_loadu_pd(coefficient), hi = _mm512_loadu_pd(coefficient + 8);
+        const double* y = cols + c * stride + i;
+        __m512d s;
+        s = _mm512_set1_pd(y[0]); a0 = _mm512_fmadd_pd(s, lo, a0); b0 = _mm512_fmadd_pd(s, hi, b0);
+        s = _mm512_set1_pd(y[1]); a1 = _mm512_fmadd_pd(s, lo, a1); b1 = _mm512_fmadd_pd(s, hi, b1);
+        s = _mm512_set1_pd(y[2]); a2 = _mm512_fmadd_pd(s, lo, a2); b2 = _mm512_fmadd_pd(s, hi, b2);
+        s = _mm512_set1_pd(y[3]); a3 = _mm512_fmadd_pd(s, lo, a3); b3 = _mm512_fmadd_pd(s, hi, b3);
+        s = _mm512_set1_pd(y[4]); a4 = _mm512_fmadd_pd(s, lo, a4); b4 = _mm512_fmadd_pd(s, hi, b4);
+        s = _mm512_set1_pd(y[5]); a5 = _mm512_fmadd_pd(s, lo, a5); b5 = _mm512_fmadd_pd(s, hi, b5);
+        s = _mm512_set1_pd(y[6]); a6 = _mm512_fmadd_pd(s, lo, a6); b6 = _mm512_fmadd_pd(s, hi, b6);
+        s = _mm512_set1_pd(y[7]); a7 = _mm512_fmadd_pd(s, lo, a7); b7 = _mm512_fmadd_pd(s, hi, b7);
+      }
+      _mm512_storeu_pd(x, a0); _mm512_storeu_pd(x + 8, b0); _mm512_storeu_pd(x + 16, a1); _mm512_storeu_pd(x + 24, b1);
+      _mm512_storeu_pd(x + 32, a2); _mm512_storeu_pd(x + 40, b2); _mm512_storeu_pd(x + 48, a3); _mm512_storeu_pd(x + 56, b3);
+      _mm512_storeu_pd(x + 64, a4); _mm512_storeu_pd(x + 72, b4); _mm512_storeu_pd(x + 80, a5); _mm512_storeu_pd(x + 88, b5);
+      _mm512_storeu_pd(x + 96, a6); _mm512_storeu_pd(x + 104, b6); _mm512_storeu_pd(x + 112, a7); _mm512_storeu_pd(x + 120, b7);
+    }
+    for (; i < rows; i++) {
+      double* x = wp + i * 16;
+      __m512d lo = _mm512_loadu_pd(x), hi = _mm512_loadu_pd(x + 8);
+      for (size_t c = 0; c < count; c++) {
+        __m512d s = _mm512_set1_pd(cols[c * stride + i]);
+        lo = _mm512_fmadd_pd(s, _mm512_loadu_pd(cp + (j0 + c) * 16), lo);
+        hi = _mm512_fmadd_pd(s, _mm512_loadu_pd(cp + (j0 + c) * 16 + 8), hi);
+      }
+      _mm512_storeu_pd(x, lo);
+      _mm512_storeu_pd(x + 8, hi);
+    }
+  }
+}
+#endif
+
 template <typename Body>
 void Split(size_t rows, size_t threads, Body body) {
   if (threads <= 1) {
@@ -334,6 +520,28 @@ void Split(size_t rows, size_t threads, Body body) {
 template <typename V>
 void Project(const V* v, size_t rows, size_t m, size_t width, const double* w, size_t ldw, double* out) {
   size_t threads = ThreadsFor(rows * m * width);
+#ifdef TACET_HAVE_AVX512_TILES
+  if (width == 16 && Avx512Available()) {
+    // each thread sums into its own m × 16 matrix packed by rows, added into out (m × 16 by columns) at the end
+    std::vector<std::vector<double>> packed(std::max<size_t>(threads, 1));
+    Split(rows, threads, [&](size_t begin, size_t end, size_t t) {
+      packed[t].assign(m * 16, 0.0);
+      std::vector<double> wp(static_cast<size_t>(kTileRows) * 16), scratch(static_cast<size_t>(kTileRows) * kWideColumns);
+      for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
+        size_t len = std::min<size_t>(kTileRows, end - r0);
+        for (size_t i = 0; i < len; i++)
+          for (size_t l = 0; l < 16; l++) wp[i * 16 + l] = w[r0 + i + l * ldw];
+        ProjectTile512<V>(v + r0, rows, len, m, wp.data(), packed[t].data(), scratch.data());
+      }
+    });
+    for (const auto& part : packed) {
+      if (part.empty()) continue;
+      for (size_t j = 0; j < m; j++)
+        for (size_t l = 0; l < 16; l++) out[j + l * m] += part[j * 16 + l];
+    }
+    return;
+  }
+#endif
   std::vector<std::vector<double>> partial(threads);
   for (size_t t = 1; t < threads; t++) partial[t].assign(m * width, 0.0);
   Split(rows, threads, [&](size_t begin, size_t end, size_t t) {
@@ -358,6 +566,25 @@ void Project(const V* v, size_t rows, size_t m, size_t width, const double* w, s
 template <typename V>
 void Update(const V* v, size_t rows, size_t m, size_t width, const double* coefficients, double* w, size_t ldw,
             double alpha, double beta) {
+#ifdef TACET_HAVE_AVX512_TILES
+  if (width == 16 && Avx512Available()) {
+    std::vector<double> cp(m * 16);
+    for (size_t j = 0; j < m; j++)
+      for (size_t l = 0; l < 16; l++) cp[j * 16 + l] = alpha * coefficients[j + l * m];
+    Split(rows, ThreadsFor(rows * m * width), [&](size_t begin, size_t end, size_t) {
+      std::vector<double> wp(static_cast<size_t>(kTileRows) * 16), scratch(static_cast<size_t>(kTileRows) * kWideColumns);
+      for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
+        size_t len = std::min<size_t>(kTileRows, end - r0);
+        for (size_t i = 0; i < len; i++)
+          for (size_t l = 0; l < 16; l++) wp[i * 16 + l] = beta == 0 ? 0.0 : beta * w[r0 + i + l * ldw];
+        UpdateTile512<V>(v + r0, rows, len, m, cp.data(), wp.data(), scratch.data());
+        for (size_t i = 0; i < len; i++)
+          for (size_t l = 0; l < 16; l++) w[r0 + i + l * ldw] = wp[i * 16 + l];
+      }
+    });
+    return;
+  }
+#endif
   Split(rows, ThreadsFor(rows * m * width), [&](size_t begin, size_t end, size_t) {
     std::vector<double> wp(static_cast<size_t>(kTileRows) * width), scratch(static_cast<size_t>(kTileRows) * kColumns);
     for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
@@ -481,15 +708,11 @@ Napi::Value SolveUpperRight(const Napi::CallbackInfo& info) {
   for (size_t j = 0; j < width; j++) {
     if (!(r[j + j * width] != 0)) throw Napi::RangeError::New(env, "R has a zero on its diagonal");
   }
-  std::vector<double> row(width);
-  for (size_t i = 0; i < n; i++) {
-    for (size_t j = 0; j < width; j++) {
-      double s = w[j * n + i];
-      for (size_t k = 0; k < j; k++) s -= row[k] * r[k + j * width];
-      row[j] = s / r[j + j * width];
-    }
-    for (size_t j = 0; j < width; j++) w[j * n + i] = row[j];
-  }
+  if (n == 0 || width == 0) return env.Undefined();
+  if (n > INT32_MAX || width > INT32_MAX) throw Napi::RangeError::New(env, "too large for 32-bit BLAS indexing");
+  // BLAS-3 dtrsm: the row-by-row loop it replaces took 15 ms for 100 000 × 16 (twice per Lanczos step)
+  cblas_dtrsm(CblasColMajor, CblasRight, CblasUpper, CblasNoTrans, CblasNonUnit, static_cast<int>(n), static_cast<int>(width), 1.0, r,
+              static_cast<int>(width), w, static_cast<int>(n));
   return env.Undefined();
 }
 

@@ -213,6 +213,31 @@ describe('block products and the plain-JavaScript path', () => {
     }
   });
 
+  it('the native block product equals its JavaScript twin on two threads, after a larger call (kept work arrays)', () => {
+    // 20 000 elements × 16 lanes is above the size from which the two sweeps run on their own threads
+    const large = diamond(20_000, 'native-block');
+    const small = diamond(3000, 'native-block-small');
+    for (const s of [large, small]) {
+      const n = s.points.length / 2;
+      const native = pauliJordan2DFromPoints(s.points, { mass: 0.7, density: s.density });
+      const plain = pauliJordan2DFromPoints(s.points, { mass: 0.7, density: s.density, backend: null });
+      const width = 16;
+      const input = Float64Array.from({ length: n * width }, (_, i) => Math.sin(0.013 * i) + 0.1 * Math.cos(1.7 * i));
+      const fromNative = new Float64Array(n * width);
+      const fromPlain = new Float64Array(n * width);
+      native.applyBlock(input, fromNative, width);
+      plain.applyBlock(input, fromPlain, width);
+      let worst = 0;
+      let largest = 0;
+      for (let i = 0; i < fromPlain.length; i++) {
+        worst = Math.max(worst, Math.abs(fromNative[i] - fromPlain[i]));
+        largest = Math.max(largest, Math.abs(fromPlain[i]));
+      }
+      expect(largest).toBeGreaterThan(1);
+      expect(worst).toBeLessThan(1e-12 * largest);
+    }
+  });
+
   it('the JavaScript kernels (no BLAS) and a block of 1 give the same pairs as BLAS blocks', () => {
     const s = diamond(600, 'kernels');
     const cut = sqrtNCutoff(600);

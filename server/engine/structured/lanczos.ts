@@ -202,14 +202,19 @@ interface RitzPairs {
 /**
  * Ritz pairs of T with θ² above `floor` from one dense eigensolve of TᵀT; eigenvalues come in equal
  * pairs (T is exactly skew), and the first vector of each pair stands for its two-dimensional space.
+ * The whole spectrum is computed and the part above the floor kept: the divide-and-conquer path does
+ * all 2688 pairs of the N = 100 000 check in 1.4 s, where the subset solver (dsyevr) took 3.6 s for
+ * 1300 and 8.4 s for 2000 of them (measured on the 2-core CI machine).
  */
 function ritzPairs(t: SkewBlockTridiagonal, lastG: Float64Array, floor: number, backend: LinearAlgebraBackend): RitzPairs {
   const m = t.dimension;
   const b = t.width;
   const gram = t.gram();
-  const eig = backend.symmetricEigen(gram, floor > 0 ? { above: floor } : {});
-  const values = eig.values;
-  const vec = (eig.vectors as { data: Float64Array }).data;
+  const eig = backend.symmetricEigen(gram, { overwriteInput: true });
+  let firstAbove = 0;
+  if (floor > 0) while (firstAbove < eig.values.length && !(eig.values[firstAbove] > floor)) firstAbove++;
+  const values = eig.values.subarray(firstAbove);
+  const vec = (eig.vectors as { data: Float64Array }).data.subarray(firstAbove * m);
   const count = Math.floor(values.length / 2);
   const theta = new Float64Array(count);
   const vectors = new Float64Array(m * count);
