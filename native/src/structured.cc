@@ -367,7 +367,7 @@ void UpdateTileAny(const V* v, size_t ldv, size_t rows, size_t m, const double* 
 
 // ---- AVX-512 tiles for the 16-column blocks of Lanczos
 // The generic tiles above leave the float32 path at about half and the update at about a third of
-// this machine's dgemm rate (measured on the 2-core EPYC of CI: 19 and 12 GFlop/s on one thread against
+// this machine's dgemm rate (measured on the 2-core EPYC this was developed on: 19 and 12 GFlop/s on one thread against
 // 45); these keep eight basis columns (project) or eight rows (update) of 16 lanes in 16 registers,
 // with the basis widened to float64 once per tile, and reach 30–40 GFlop/s per thread there.
 #if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
