@@ -517,86 +517,102 @@ void Split(size_t rows, size_t threads, Body body) {
   for (auto& thread : pool) thread.join();
 }
 
+// The 16-wide blocks of Lanczos take the AVX-512 tiles where the processor has them; those sum a
+// projection into an m × 16 matrix packed by rows and take the update's coefficients packed the same way.
+bool WideTiles(size_t width) {
+#ifdef TACET_HAVE_AVX512_TILES
+  return width == 16 && Avx512Available();
+#else
+  (void)width;
+  return false;
+#endif
+}
+
+// widened columns a tile holds at once: kColumns for the generic tiles, kWideColumns for the wide ones
+constexpr size_t kScratchColumns = 8;
+static_assert(kColumns <= kScratchColumns, "scratch holds the generic tiles' columns");
+#ifdef TACET_HAVE_AVX512_TILES
+static_assert(kWideColumns <= kScratchColumns, "scratch holds the wide tiles' columns");
+#endif
+
+// wp (len × width, packed by rows) = beta · W[r0 .. r0 + len) (zero when beta is 0, so that W may hold garbage)
+void PackRows(const double* w, size_t ldw, size_t r0, size_t len, size_t width, double beta, double* wp) {
+  for (size_t i = 0; i < len; i++)
+    for (size_t l = 0; l < width; l++) wp[i * width + l] = beta == 0 ? 0.0 : beta * w[r0 + i + l * ldw];
+}
+
+template <typename V>
+void ProjectTileFor(bool wide, const V* tile, size_t ldv, size_t len, size_t m, size_t width, const double* wp, double* target,
+                    double* scratch) {
+#ifdef TACET_HAVE_AVX512_TILES
+  if (wide) return ProjectTile512<V>(tile, ldv, len, m, wp, target, scratch);
+#else
+  (void)wide;
+#endif
+  switch (width) {
+    case 16: ProjectTile<V, 16>(tile, ldv, len, m, wp, target, scratch); break;
+    case 8: ProjectTile<V, 8>(tile, ldv, len, m, wp, target, scratch); break;
+    default: ProjectTileAny<V>(tile, ldv, len, m, wp, target, width);
+  }
+}
+
+template <typename V>
+void UpdateTileFor(bool wide, const V* tile, size_t ldv, size_t len, size_t m, size_t width, const double* coefficients,
+                   const double* packedCoefficients, double alpha, double* wp, double* scratch) {
+#ifdef TACET_HAVE_AVX512_TILES
+  if (wide) return UpdateTile512<V>(tile, ldv, len, m, packedCoefficients, wp, scratch);
+#else
+  (void)wide;
+  (void)packedCoefficients;
+#endif
+  switch (width) {
+    case 16: UpdateTile<V, 16>(tile, ldv, len, m, coefficients, alpha, wp, scratch); break;
+    case 8: UpdateTile<V, 8>(tile, ldv, len, m, coefficients, alpha, wp, scratch); break;
+    default: UpdateTileAny<V>(tile, ldv, len, m, coefficients, alpha, wp, width);
+  }
+}
+
 template <typename V>
 void Project(const V* v, size_t rows, size_t m, size_t width, const double* w, size_t ldw, double* out) {
   size_t threads = ThreadsFor(rows * m * width);
-#ifdef TACET_HAVE_AVX512_TILES
-  if (width == 16 && Avx512Available()) {
-    // each thread sums into its own m × 16 matrix packed by rows, added into out (m × 16 by columns) at the end
-    std::vector<std::vector<double>> packed(std::max<size_t>(threads, 1));
-    Split(rows, threads, [&](size_t begin, size_t end, size_t t) {
-      packed[t].assign(m * 16, 0.0);
-      std::vector<double> wp(static_cast<size_t>(kTileRows) * 16), scratch(static_cast<size_t>(kTileRows) * kWideColumns);
-      for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
-        size_t len = std::min<size_t>(kTileRows, end - r0);
-        for (size_t i = 0; i < len; i++)
-          for (size_t l = 0; l < 16; l++) wp[i * 16 + l] = w[r0 + i + l * ldw];
-        ProjectTile512<V>(v + r0, rows, len, m, wp.data(), packed[t].data(), scratch.data());
-      }
-    });
-    for (const auto& part : packed) {
-      if (part.empty()) continue;
-      for (size_t j = 0; j < m; j++)
-        for (size_t l = 0; l < 16; l++) out[j + l * m] += part[j * 16 + l];
-    }
-    return;
-  }
-#endif
-  std::vector<std::vector<double>> partial(threads);
-  for (size_t t = 1; t < threads; t++) partial[t].assign(m * width, 0.0);
+  const bool wide = WideTiles(width);
+  // each thread sums into its own m × width matrix, added into out at the end; thread 0 of the generic
+  // tiles sums into out itself, having its layout
+  std::vector<std::vector<double>> partial(std::max<size_t>(threads, 1));
+  for (size_t t = 0; t < partial.size(); t++)
+    if (wide || t > 0) partial[t].assign(m * width, 0.0);
   Split(rows, threads, [&](size_t begin, size_t end, size_t t) {
-    double* target = t == 0 ? out : partial[t].data();
-    std::vector<double> wp(static_cast<size_t>(kTileRows) * width), scratch(static_cast<size_t>(kTileRows) * kColumns);
+    double* target = partial[t].empty() ? out : partial[t].data();
+    std::vector<double> wp(static_cast<size_t>(kTileRows) * width), scratch(static_cast<size_t>(kTileRows) * kScratchColumns);
     for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
       size_t len = std::min<size_t>(kTileRows, end - r0);
-      for (size_t i = 0; i < len; i++)
-        for (size_t l = 0; l < width; l++) wp[i * width + l] = w[r0 + i + l * ldw];
-      const V* tile = v + r0;
-      switch (width) {
-        case 16: ProjectTile<V, 16>(tile, rows, len, m, wp.data(), target, scratch.data()); break;
-        case 8: ProjectTile<V, 8>(tile, rows, len, m, wp.data(), target, scratch.data()); break;
-        default: ProjectTileAny<V>(tile, rows, len, m, wp.data(), target, width);
-      }
+      PackRows(w, ldw, r0, len, width, 1.0, wp.data());
+      ProjectTileFor<V>(wide, v + r0, rows, len, m, width, wp.data(), target, scratch.data());
     }
   });
-  for (size_t t = 1; t < threads; t++)
-    for (size_t e = 0; e < m * width; e++) out[e] += partial[t][e];
+  for (const auto& part : partial) {
+    if (part.empty()) continue;
+    for (size_t j = 0; j < m; j++)
+      for (size_t l = 0; l < width; l++) out[j + l * m] += wide ? part[j * width + l] : part[j + l * m];
+  }
 }
 
 template <typename V>
 void Update(const V* v, size_t rows, size_t m, size_t width, const double* coefficients, double* w, size_t ldw,
             double alpha, double beta) {
-#ifdef TACET_HAVE_AVX512_TILES
-  if (width == 16 && Avx512Available()) {
-    std::vector<double> cp(m * 16);
+  const bool wide = WideTiles(width);
+  std::vector<double> packedCoefficients;
+  if (wide) {
+    packedCoefficients.resize(m * width);
     for (size_t j = 0; j < m; j++)
-      for (size_t l = 0; l < 16; l++) cp[j * 16 + l] = alpha * coefficients[j + l * m];
-    Split(rows, ThreadsFor(rows * m * width), [&](size_t begin, size_t end, size_t) {
-      std::vector<double> wp(static_cast<size_t>(kTileRows) * 16), scratch(static_cast<size_t>(kTileRows) * kWideColumns);
-      for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
-        size_t len = std::min<size_t>(kTileRows, end - r0);
-        for (size_t i = 0; i < len; i++)
-          for (size_t l = 0; l < 16; l++) wp[i * 16 + l] = beta == 0 ? 0.0 : beta * w[r0 + i + l * ldw];
-        UpdateTile512<V>(v + r0, rows, len, m, cp.data(), wp.data(), scratch.data());
-        for (size_t i = 0; i < len; i++)
-          for (size_t l = 0; l < 16; l++) w[r0 + i + l * ldw] = wp[i * 16 + l];
-      }
-    });
-    return;
+      for (size_t l = 0; l < width; l++) packedCoefficients[j * width + l] = alpha * coefficients[j + l * m];
   }
-#endif
   Split(rows, ThreadsFor(rows * m * width), [&](size_t begin, size_t end, size_t) {
-    std::vector<double> wp(static_cast<size_t>(kTileRows) * width), scratch(static_cast<size_t>(kTileRows) * kColumns);
+    std::vector<double> wp(static_cast<size_t>(kTileRows) * width), scratch(static_cast<size_t>(kTileRows) * kScratchColumns);
     for (size_t r0 = begin; r0 < end; r0 += kTileRows) {
       size_t len = std::min<size_t>(kTileRows, end - r0);
-      for (size_t i = 0; i < len; i++)
-        for (size_t l = 0; l < width; l++) wp[i * width + l] = beta == 0 ? 0.0 : beta * w[r0 + i + l * ldw];
-      const V* tile = v + r0;
-      switch (width) {
-        case 16: UpdateTile<V, 16>(tile, rows, len, m, coefficients, alpha, wp.data(), scratch.data()); break;
-        case 8: UpdateTile<V, 8>(tile, rows, len, m, coefficients, alpha, wp.data(), scratch.data()); break;
-        default: UpdateTileAny<V>(tile, rows, len, m, coefficients, alpha, wp.data(), width);
-      }
+      PackRows(w, ldw, r0, len, width, beta, wp.data());
+      UpdateTileFor<V>(wide, v + r0, rows, len, m, width, coefficients, packedCoefficients.data(), alpha, wp.data(), scratch.data());
       for (size_t i = 0; i < len; i++)
         for (size_t l = 0; l < width; l++) w[r0 + i + l * ldw] = wp[i * width + l];
     }
