@@ -30,6 +30,7 @@ import { createHealthService } from './api/services/health';
 import { createInvitationService } from './api/services/invitations';
 import { createOutboxService } from './api/services/outbox';
 import { createRunService } from './api/services/runs';
+import { createRenderedExportCache } from './api/services/renderedExports';
 import { createStudyService } from './api/services/studies';
 import { createTeamService } from './api/services/team';
 
@@ -42,7 +43,7 @@ export function createApp(deps: AppDeps): Express {
   const auth = createAuthService({ config, dataSource, mailer, invitations });
   const teams = createTeamService({ dataSource });
   const outbox = createOutboxService({ dataSource });
-  const runs = createRunService({ dataSource, computeQueue });
+  const runs = createRunService({ dataSource, computeQueue, renderedExports: createRenderedExportCache(config.exportCacheBytes) });
   const studies = createStudyService({ dataSource, computeQueue });
   const bundles = createBundleService({ dataSource, studies, runs });
   const cutRules = createCutRuleService({ dataSource });

@@ -20,6 +20,8 @@ export interface Config {
   queuePrefix: string;
   /** lifetime of a session (JWT and sessions row), in seconds */
   sessionTtlSeconds: number;
+  /** memory the API keeps for rendered exports of finished runs (TACET_EXPORT_CACHE_MB; 0 keeps none) */
+  exportCacheBytes: number;
   version: string;
 }
 
@@ -72,6 +74,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     bcryptCost: parseInteger('BCRYPT_COST', env.BCRYPT_COST, 12, 4, 15),
     queuePrefix: env.TACET_QUEUE_PREFIX || 'tacet',
     sessionTtlSeconds: parseInteger('SESSION_TTL_SECONDS', env.SESSION_TTL_SECONDS, 30 * 24 * 3600, 60, 365 * 24 * 3600),
+    exportCacheBytes: parseInteger('TACET_EXPORT_CACHE_MB', env.TACET_EXPORT_CACHE_MB, 128, 0, 65536) * 1024 * 1024,
     version: readVersion(),
   };
 }

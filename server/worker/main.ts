@@ -1,4 +1,5 @@
 /** The worker process: `tsx server/worker/main.ts`. Runs computations so the API never blocks on numerics. */
+import { readdirSync } from 'node:fs';
 import os from 'node:os';
 import { loadConfig } from '../config';
 import { createDataSource } from '../db/data-source';
@@ -14,8 +15,24 @@ const workerNice = Number(process.env.TACET_WORKER_NICE ?? 10);
 if (!Number.isInteger(workerNice) || workerNice < -20 || workerNice > 19) {
   throw new Error(`TACET_WORKER_NICE must be an integer from -20 to 19, got "${process.env.TACET_WORKER_NICE}"`);
 }
+// Linux keeps a priority per thread: the threads Node started before this line (V8's garbage
+// collection and compiler helpers) are lowered one by one, the main thread's later ones inherit it.
+const threadIds = (() => {
+  try {
+    return readdirSync('/proc/self/task').map(Number).filter((tid) => tid !== process.pid);
+  } catch {
+    return [];
+  }
+})();
 try {
   os.setPriority(workerNice);
+  for (const tid of threadIds) {
+    try {
+      os.setPriority(tid, workerNice);
+    } catch {
+      // the thread has ended since the listing
+    }
+  }
 } catch (error) {
   console.warn(`[worker] could not set CPU priority ${workerNice}: ${(error as Error).message}`);
 }

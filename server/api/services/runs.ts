@@ -29,6 +29,7 @@ import { entropiesExport } from '../../exports/runs';
 import type { TeamContext } from '../context';
 import { conflict, HttpError, notFound } from '../errors';
 import { readQueueSnapshot, runTiming, type QueueSnapshot } from './queueStatus';
+import type { RenderedExportCache } from './renderedExports';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -115,8 +116,15 @@ function storedSettings(request: CreateRunRequest): Omit<StoredRunRequest, 'spri
 
 export type RunService = ReturnType<typeof createRunService>;
 
-export function createRunService(deps: { dataSource: DataSource; computeQueue: Queue }) {
-  const { dataSource, computeQueue } = deps;
+/**
+ * The exports of a run that read only what the worker stored when it finished, so that once the run is
+ * done they can be kept rendered (renderedExports.ts); run.json and numbers.tex also carry the title
+ * and notes, which a team may edit later.
+ */
+const exportsFixedWhenDone = new Set<RunExportFormat>(['points.csv', 'spectrum.csv', 'spectrum.json']);
+
+export function createRunService(deps: { dataSource: DataSource; computeQueue: Queue; renderedExports?: RenderedExportCache }) {
+  const { dataSource, computeQueue, renderedExports } = deps;
   const m = dataSource.manager;
 
   async function findOrThrow(team: TeamContext, id: string): Promise<RunWithAuthor> {
@@ -479,7 +487,11 @@ export function createRunService(deps: { dataSource: DataSource; computeQueue: Q
     /** One export of a run: body, content type and the attachment's file name. */
     async exportRun(team: TeamContext, id: string, format: RunExportFormat): Promise<ExportFile> {
       const row = await findOrThrow(team, id);
-      const body = await runRenderers[format]({ points: () => pointsOf(row), spectrum: () => spectrumOf(row), run: () => detail(requireDone(row)) });
+      const render = () => runRenderers[format]({ points: () => pointsOf(row), spectrum: () => spectrumOf(row), run: () => detail(requireDone(row)) });
+      const body =
+        renderedExports && row.status === 'done' && exportsFixedWhenDone.has(format)
+          ? await renderedExports.get(`${row.teamId}/${row.id}/${format}`, render)
+          : await render();
       return exportFile('run', row.id, format, body);
     },
   };
